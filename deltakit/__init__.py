@@ -1,0 +1,99 @@
+"""deltakit: where and how to spend a fixed propellant load.
+
+The numeric layer (SI units, NumPy broadcasting) is importable from here; the
+symbolic layer (:mod:`deltakit.symbolic`), the panels (:mod:`deltakit.widgets`),
+the plot helpers (:mod:`deltakit.plotting`) and :func:`sweep` load on first use,
+so ``import deltakit`` stays fast and never imports sympy, ipywidgets or
+matplotlib.
+
+Results are for preliminary analysis, not for flight operations.
+
+Examples
+--------
+>>> import deltakit as dk
+>>> from deltakit.constants import EARTH
+>>> leo, geo = EARTH.radius + 300e3, 42164e3
+>>> round(float(dk.hohmann(leo, geo, EARTH.mu).total))
+3893
+"""
+
+from __future__ import annotations
+
+import importlib
+from typing import Any
+
+from . import constants
+from .errors import DomainError
+
+__version__ = "0.1.0"
+
+# Public name -> module that defines it. Loaded on first attribute access
+# (PEP 562), so the package import costs only what a user touches.
+_NAMES: dict[str, str] = {
+    # two-body relations
+    "circular_speed": "twobody",
+    "escape_speed": "twobody",
+    "vis_viva": "twobody",
+    "specific_energy": "twobody",
+    # conics
+    "Conic": "conic",
+    # impulsive burns
+    "burn": "burns",
+    "burn_prograde": "burns",
+    "energy_gain": "burns",
+    "BurnOutcome": "burns",
+    # transfers and plane changes
+    "hohmann": "transfers",
+    "bielliptic": "transfers",
+    "Transfer": "transfers",
+    "plane_change": "transfers",
+    "combined_plane_change": "transfers",
+    # departure, arrival, flyby
+    "escape_burn": "departure",
+    "capture_burn": "departure",
+    "powered_flyby": "departure",
+    "Flyby": "departure",
+    # propulsion and energy accounting
+    "exhaust_velocity": "propulsion",
+    "rocket_dv": "propulsion",
+    "propellant_mass": "propulsion",
+    "ejection_energy": "propulsion",
+    "burn_energy": "propulsion",
+    "EnergySplit": "propulsion",
+    "propulsive_efficiency": "propulsion",
+    # budgets
+    "Budget": "budget",
+    # finite burns and Kepler's equation
+    "thrust_arc": "finite",
+    "ArcOutcome": "finite",
+    "loss_table": "finite",
+    "mean_to_eccentric": "kepler",
+    "eccentric_to_mean": "kepler",
+    "mean_to_hyperbolic": "kepler",
+    "hyperbolic_to_mean": "kepler",
+    "mean_anomaly": "kepler",
+    "true_anomaly_from_mean": "kepler",
+    "time_of_flight": "kepler",
+    "propagate": "kepler",
+    # trade-study sweeps (needs the `scale` extra)
+    "sweep": "sweep",
+}
+
+_SUBMODULES = ("symbolic", "widgets", "plotting")
+
+__all__ = ["DomainError", "constants", *_NAMES, *_SUBMODULES]
+
+
+def __getattr__(name: str) -> Any:
+    module = _NAMES.get(name)
+    if module is not None:
+        value = getattr(importlib.import_module(f".{module}", __name__), name)
+        globals()[name] = value
+        return value
+    if name in _SUBMODULES:
+        return importlib.import_module(f".{name}", __name__)
+    raise AttributeError(f"module 'deltakit' has no attribute {name!r}")
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(__all__))
