@@ -1,0 +1,260 @@
+"""Invented vehicles and missions for the notebooks, examples and demos.
+
+Everything here is **invented for demonstration**: the vehicle names, masses,
+thrusts, specific impulses, parking orbits and arrival speeds are our own and
+describe no real spacecraft. Only the central bodies are real, with the cited
+constants of :mod:`deltakit.constants`. Results computed from these cases are
+for preliminary analysis, not for flight operations.
+
+Conventions: SI units throughout (kg, N, s, m, m/s); altitudes are above the
+body's equatorial radius (mean radius for the Moon).
+
+Missions
+--------
+``HALYARD``
+    A small Earth-to-Moon cargo tug: leaves a low Earth parking orbit, coasts to
+    the Moon and brakes into a low lunar orbit.
+``RUSTLINE``
+    A Mars orbiter arriving on a hyperbola and capturing into an elliptical
+    science orbit.
+``CINDERWREN``
+    A Jupiter flyby probe that burns deep in Jupiter's well to leave faster.
+
+Examples
+--------
+>>> from deltakit.demo import HALYARD
+>>> HALYARD.vehicle.name
+'Halyard cargo tug'
+>>> round(float(HALYARD.vehicle.dv_capacity))
+3216
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .constants import EARTH, G0, JUPITER, MARS, CentralBody
+
+__all__ = [
+    "Vehicle",
+    "Mission",
+    "HALYARD",
+    "RUSTLINE",
+    "CINDERWREN",
+    "MISSIONS",
+    "MOON_DISTANCE",
+    "LUNAR_ORBIT_ALTITUDE",
+    "CAUTION",
+]
+
+#: Mean Earth-Moon distance (semi-major axis of the lunar orbit), m.
+#: Source: NASA Goddard Space Flight Center, Moon Fact Sheet, "semimajor axis
+#: 0.3844 x 10^6 km" (value quoted from memory).
+MOON_DISTANCE: float = 384_400e3
+
+#: The caution every notebook and panel shows near the top.
+CAUTION: str = (
+    "Preliminary analysis only, not for flight operations. The missions and "
+    "vehicles here are invented for demonstration; defer to the mission's "
+    "verified tools, local rules and licensed practice."
+)
+
+
+@dataclass(frozen=True)
+class Vehicle:
+    """An invented spacecraft: masses, engine and a one-line note.
+
+    Parameters
+    ----------
+    name : str
+        Display name.
+    dry_mass : float
+        Mass without propellant, kg.
+    propellant_mass : float
+        Usable propellant at the start, kg.
+    isp : float
+        Specific impulse of the main engine, s.
+    thrust : float
+        Thrust of the main engine, N.
+    note : str
+        What the vehicle is for.
+
+    Examples
+    --------
+    >>> v = Vehicle("Test", dry_mass=100.0, propellant_mass=50.0, isp=300.0, thrust=500.0)
+    >>> float(v.wet_mass), round(float(v.exhaust_velocity), 1)
+    (150.0, 2942.0)
+    """
+
+    name: str
+    dry_mass: float
+    propellant_mass: float
+    isp: float
+    thrust: float
+    note: str = ""
+
+    @property
+    def wet_mass(self) -> np.float64:
+        """Mass at the start, kg."""
+        return np.float64(self.dry_mass + self.propellant_mass)
+
+    @property
+    def exhaust_velocity(self) -> np.float64:
+        """Effective exhaust velocity isp * G0, m/s."""
+        return np.float64(self.isp * G0)
+
+    @property
+    def dv_capacity(self) -> np.float64:
+        """Ideal delta-v of the whole propellant load (rocket equation), m/s.
+
+        Examples
+        --------
+        >>> from deltakit.demo import RUSTLINE
+        >>> round(float(RUSTLINE.vehicle.dv_capacity))
+        2905
+        """
+        return np.float64(self.exhaust_velocity * np.log(self.wet_mass / self.dry_mass))
+
+    def thrust_to_weight(self, body: CentralBody | None = None) -> np.float64:
+        """Thrust over the wet weight at standard gravity (or at ``body``'s surface).
+
+        Examples
+        --------
+        >>> from deltakit.demo import HALYARD
+        >>> round(float(HALYARD.vehicle.thrust_to_weight()), 3)
+        0.079
+        """
+        g = G0 if body is None else body.mu / body.radius**2
+        return np.float64(self.thrust / (self.wet_mass * g))
+
+
+@dataclass(frozen=True)
+class Mission:
+    """An invented mission around a real body.
+
+    Parameters
+    ----------
+    name : str
+        Mission name.
+    body : CentralBody
+        The body whose well the analysis happens in (cited constants).
+    vehicle : Vehicle
+        The spacecraft.
+    periapsis_altitude, apoapsis_altitude : float
+        The working orbit (parking orbit before departure, or orbit after
+        capture) above the body's radius, m.
+    vinf : float
+        Hyperbolic excess speed of the departure or arrival, m/s.
+    story : str
+        The analyst's question, in one paragraph.
+
+    Examples
+    --------
+    >>> from deltakit.demo import RUSTLINE
+    >>> round(float(RUSTLINE.rp) / 1e3), round(float(RUSTLINE.ra) / 1e3)
+    (3696, 36396)
+    """
+
+    name: str
+    body: CentralBody
+    vehicle: Vehicle
+    periapsis_altitude: float
+    apoapsis_altitude: float
+    vinf: float
+    story: str = ""
+
+    @property
+    def rp(self) -> np.float64:
+        """Periapsis radius of the working orbit, m."""
+        return np.float64(self.body.radius + self.periapsis_altitude)
+
+    @property
+    def ra(self) -> np.float64:
+        """Apoapsis radius of the working orbit, m."""
+        return np.float64(self.body.radius + self.apoapsis_altitude)
+
+    def orbit(self):  # -> Conic; imported lazily to keep this module light
+        """The working orbit as a :class:`deltakit.Conic`.
+
+        Examples
+        --------
+        >>> from deltakit.demo import HALYARD
+        >>> round(float(HALYARD.orbit().e), 6)
+        0.0
+        """
+        from .conic import Conic
+
+        return Conic.from_apsides(self.rp, self.ra, self.body.mu)
+
+
+HALYARD = Mission(
+    name="Halyard",
+    body=EARTH,
+    vehicle=Vehicle(
+        name="Halyard cargo tug",
+        dry_mass=1_450.0,
+        propellant_mass=4_200.0,
+        isp=321.0,
+        thrust=4_400.0,
+        note="storable-bipropellant tug carrying 600 kg of cargo (included in the dry mass)",
+    ),
+    periapsis_altitude=400e3,
+    apoapsis_altitude=400e3,
+    vinf=0.0,
+    story=(
+        "Halyard waits in a 400 km circular Earth orbit with a cargo pallet for a "
+        "lunar outpost. The analyst must show where to spend the first big burn, "
+        "how much of the tank the trip to a 100 km lunar orbit costs, and whether "
+        "the 4.4 kN engine loses much against the impulsive ideal."
+    ),
+)
+
+RUSTLINE = Mission(
+    name="Rustline",
+    body=MARS,
+    vehicle=Vehicle(
+        name="Rustline orbiter",
+        dry_mass=910.0,
+        propellant_mass=1_400.0,
+        isp=318.0,
+        thrust=660.0,
+        note="science orbiter with a single 660 N main engine",
+    ),
+    periapsis_altitude=300e3,
+    apoapsis_altitude=33_000e3,
+    vinf=2_650.0,
+    story=(
+        "Rustline arrives at Mars with a hyperbolic excess speed of 2.65 km/s. "
+        "The analyst compares capturing low (300 km periapsis) with braking far "
+        "out, and checks what a 660 N engine loses on a long capture burn."
+    ),
+)
+
+CINDERWREN = Mission(
+    name="Cinderwren",
+    body=JUPITER,
+    vehicle=Vehicle(
+        name="Cinderwren probe",
+        dry_mass=480.0,
+        propellant_mass=230.0,
+        isp=312.0,
+        thrust=445.0,
+        note="small outer-planet probe, one 445 N engine",
+    ),
+    periapsis_altitude=0.6 * JUPITER.radius,
+    apoapsis_altitude=0.6 * JUPITER.radius,
+    vinf=5_600.0,
+    story=(
+        "Cinderwren passes Jupiter at 5.6 km/s hyperbolic excess speed. The "
+        "analyst asks how much faster the probe leaves if it fires 300 m/s at "
+        "periapsis deep in the well instead of far away."
+    ),
+)
+
+#: The invented missions by name.
+MISSIONS: dict[str, Mission] = {m.name: m for m in (HALYARD, RUSTLINE, CINDERWREN)}
+
+#: Halyard's target: a circular orbit this high above the Moon (invented), m.
+LUNAR_ORBIT_ALTITUDE: float = 100e3
