@@ -26,7 +26,7 @@ Examples
 >>> HALYARD.vehicle.name
 'Halyard cargo tug'
 >>> round(float(HALYARD.vehicle.dv_capacity))
-3216
+4281
 """
 
 from __future__ import annotations
