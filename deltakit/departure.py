@@ -1,0 +1,206 @@
+"""Leaving and reaching a body: escape and capture burns, powered flybys.
+
+Conventions
+-----------
+* Burns are made at periapsis, along the velocity (tangential), where the
+  Oberth effect makes them cheapest. Escape and capture burns are magnitudes,
+  m/s, >= 0; the ``dv`` of a powered flyby is signed (negative: braking).
+* ``vinf`` is the hyperbolic excess speed, m/s: the speed left over far from
+  the body (``C3 = vinf**2``).
+* The parking orbit has periapsis radius ``rp``; it is circular when ``ra`` is
+  None and the ellipse ``rp..ra`` otherwise.
+* SI units (m, m/s, m^3/s^2, rad); everything broadcasts like a ufunc.
+* A powered flyby whose burn leaves the vehicle bound to the body (or
+  reverses its motion) gives NaN in that element.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+from numpy.typing import ArrayLike
+
+from ._checks import finite, nonnegative, positive, require, scalar_or_array
+from ._results import Result, quantity
+
+__all__ = ["Flyby", "escape_burn", "capture_burn", "powered_flyby"]
+
+
+def _parking_speed(rp: np.ndarray, mu: np.ndarray, ra: ArrayLike | None) -> np.ndarray:
+    """Periapsis speed of the parking orbit, m/s."""
+    if ra is None:
+        return np.sqrt(mu / rp)
+    ra = positive(ra, "ra", "m")
+    require(ra, ra < rp, "ra", ">= rp (apoapsis at or beyond periapsis)", "m")
+    return np.sqrt(2.0 * mu * ra / (rp * (rp + ra)))
+
+
+def _periapsis_burn(rp: ArrayLike, vinf: ArrayLike, mu: ArrayLike, ra: ArrayLike | None) -> Any:
+    rp = positive(rp, "rp", "m")
+    vinf = nonnegative(vinf, "vinf", "m/s")
+    mu = positive(mu, "mu", "m^3/s^2")
+    v_hyperbola = np.sqrt(vinf * vinf + 2.0 * mu / rp)
+    return scalar_or_array(v_hyperbola - _parking_speed(rp, mu, ra))
+
+
+def escape_burn(rp: ArrayLike, vinf: ArrayLike, mu: ArrayLike, ra: ArrayLike | None = None) -> Any:
+    """Prograde burn at parking-orbit periapsis that leaves with excess speed ``vinf``.
+
+    ``sqrt(vinf^2 + 2 mu / rp) - v_park``, where ``v_park`` is the periapsis
+    speed of the parking orbit.
+
+    Parameters
+    ----------
+    rp : array_like, shape (...)
+        Periapsis radius of the parking orbit (its radius when circular), m (> 0).
+    vinf : array_like, shape (...)
+        Hyperbolic excess speed wanted, m/s (>= 0; 0 is just escaping).
+    mu : array_like, shape (...)
+        Gravitational parameter, m^3/s^2 (> 0).
+    ra : array_like, shape (...), optional
+        Apoapsis radius of an elliptic parking orbit, m (>= rp).
+
+    Returns
+    -------
+    ndarray or numpy scalar
+        Delta-v magnitude, m/s.
+
+    Raises
+    ------
+    DomainError
+        Non-finite input, ``rp`` or ``mu`` <= 0, ``vinf`` < 0, ``ra`` < ``rp``.
+
+    Examples
+    --------
+    Leave a 300 km Earth orbit with C3 = 12 km^2/s^2 (an invented departure):
+
+    >>> import numpy as np
+    >>> from deltakit import escape_burn
+    >>> from deltakit.constants import EARTH
+    >>> round(float(escape_burn(EARTH.radius + 300e3, np.sqrt(12e6), EARTH.mu)))
+    3736
+
+    An elliptic parking orbit up to 100 000 km costs much less:
+
+    >>> round(float(escape_burn(EARTH.radius + 300e3, np.sqrt(12e6), EARTH.mu, ra=100000e3)))
+    884
+    """
+    return _periapsis_burn(rp, vinf, mu, ra)
+
+
+def capture_burn(rp: ArrayLike, vinf: ArrayLike, mu: ArrayLike, ra: ArrayLike | None = None) -> Any:
+    """Retrograde burn at periapsis of an arrival hyperbola into a parking orbit.
+
+    The same magnitude as :func:`escape_burn` (the manoeuvre run backwards in
+    time): ``sqrt(vinf^2 + 2 mu / rp) - v_park``.
+
+    Parameters
+    ----------
+    rp : array_like, shape (...)
+        Periapsis radius of the arrival hyperbola and the parking orbit, m (> 0).
+    vinf : array_like, shape (...)
+        Hyperbolic excess speed on arrival, m/s (>= 0).
+    mu : array_like, shape (...)
+        Gravitational parameter, m^3/s^2 (> 0).
+    ra : array_like, shape (...), optional
+        Apoapsis radius of an elliptic capture orbit, m (>= rp).
+
+    Returns
+    -------
+    ndarray or numpy scalar
+        Delta-v magnitude, m/s.
+
+    Examples
+    --------
+    Arrive at Mars with 2.6 km/s excess and capture at 400 km altitude:
+
+    >>> from deltakit import capture_burn
+    >>> from deltakit.constants import MARS
+    >>> rp = MARS.radius + 400e3
+    >>> round(float(capture_burn(rp, 2600.0, MARS.mu))), round(float(capture_burn(rp, 2600.0, MARS.mu, ra=33000e3)))
+    (2056, 917)
+    """
+    return _periapsis_burn(rp, vinf, mu, ra)
+
+
+@dataclass(frozen=True, repr=False, eq=False)
+class Flyby(Result):
+    """Outcome of a powered flyby.
+
+    Attributes
+    ----------
+    vinf_out : ndarray or numpy scalar
+        Hyperbolic excess speed on leaving, m/s (NaN if the burn left the
+        vehicle bound).
+    deflection : ndarray or numpy scalar
+        Angle between the incoming and the outgoing excess velocity, rad.
+    gain : ndarray or numpy scalar
+        ``vinf_out - (vinf_in + dv)``, m/s: the excess speed the burn bought
+        beyond its own delta-v by being made deep in the well.
+    """
+
+    vinf_out: Any = quantity("m/s")
+    deflection: Any = quantity("rad")
+    gain: Any = quantity("m/s")
+
+
+def powered_flyby(vinf_in: ArrayLike, rp: ArrayLike, dv: ArrayLike, mu: ArrayLike) -> Flyby:
+    """Prograde burn ``dv`` at periapsis of a flyby hyperbola.
+
+    The periapsis speed ``vp = sqrt(vinf_in^2 + 2 mu/rp)`` becomes ``vp + dv``, so
+    ``vinf_out = sqrt((vp + dv)^2 - 2 mu / rp)``. The excess velocity turns by
+    ``asin(1/e_in) + asin(1/e_out)`` with ``e = 1 + rp vinf^2 / mu`` on each leg.
+
+    Parameters
+    ----------
+    vinf_in : array_like, shape (...)
+        Hyperbolic excess speed on arrival, m/s (>= 0).
+    rp : array_like, shape (...)
+        Periapsis radius of the flyby, m (> 0).
+    dv : array_like, shape (...)
+        Delta-v along the velocity at periapsis, m/s (negative: braking).
+    mu : array_like, shape (...)
+        Gravitational parameter of the flyby body, m^3/s^2 (> 0).
+
+    Returns
+    -------
+    Flyby
+        NaN in every field where ``(vp + dv)^2 < 2 mu / rp`` (the vehicle is
+        captured) or ``vp + dv <= 0`` (the burn reverses the motion).
+
+    Examples
+    --------
+    500 m/s at 1.1 Jupiter radii, arriving with 5.6 km/s (an invented probe):
+
+    >>> import numpy as np
+    >>> from deltakit import powered_flyby
+    >>> from deltakit.constants import JUPITER
+    >>> f = powered_flyby(5600.0, 1.1 * JUPITER.radius, 500.0, JUPITER.mu)
+    >>> round(float(f.vinf_out)), round(float(f.gain)), round(float(np.degrees(f.deflection)), 1)
+    (9416, 3316, 150.2)
+    """
+    vinf_in = nonnegative(vinf_in, "vinf_in", "m/s")
+    rp = positive(rp, "rp", "m")
+    dv = finite(dv, "dv", "m/s")
+    mu = positive(mu, "mu", "m^3/s^2")
+    vp = np.sqrt(vinf_in * vinf_in + 2.0 * mu / rp)
+    # (vp + dv)^2 - 2 mu/rp without subtracting the large escape term
+    vinf_out_squared = vinf_in * vinf_in + dv * (2.0 * vp + dv)
+    unbound = (vinf_out_squared >= 0.0) & (vp + dv > 0.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        vinf_out = np.where(unbound, np.sqrt(np.where(unbound, vinf_out_squared, np.nan)), np.nan)
+        e_in = 1.0 + rp * vinf_in * vinf_in / mu
+        e_out = 1.0 + rp * vinf_out * vinf_out / mu
+        deflection = np.arcsin(1.0 / e_in) + np.arcsin(1.0 / e_out)
+        # vinf_out - vinf_in = (vinf_out^2 - vinf_in^2) / (vinf_out + vinf_in)
+        speed_up = np.where(
+            vinf_out + vinf_in > 0.0, dv * (2.0 * vp + dv) / (vinf_out + vinf_in), vinf_out - vinf_in
+        )
+        gain = speed_up - dv
+    return Flyby(
+        vinf_out=scalar_or_array(vinf_out),
+        deflection=scalar_or_array(deflection),
+        gain=scalar_or_array(gain),
+    )
