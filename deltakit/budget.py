@@ -35,7 +35,7 @@ Examples
 >>> b = Budget(1200.0, 3100.0, name="Demo tug").add("departure", 900.0, margin=0.05)
 >>> b = b.add("trim", 40.0, ve=2200.0)
 >>> round(float(b.total_dv), 1), round(float(b.propellant), 1)
-(985.0, 307.6)
+(985.0, 331.2)
 """
 
 from __future__ import annotations
