@@ -1,0 +1,501 @@
+"""Trade-study sweeps: one numeric function over the outer product of named axes.
+
+:func:`sweep` calls any function of the numeric layer (or an analyst's own
+function built from them) on every combination of the 1-D axes it is given and
+returns an :class:`xarray.Dataset` labelled by parameter: one dimension and
+coordinate per axis, one data variable per result field, units in ``attrs``.
+
+Conventions
+-----------
+* SI units, as everywhere in deltakit; the ``units`` attribute of every
+  coordinate and variable says which.
+* The function is called with keyword arguments only. Each axis is reshaped to
+  an open-grid shape (``np.ix_`` style: length ``n`` on its own dimension, 1
+  elsewhere), so the function broadcasts the grid itself and no meshgrid is
+  ever materialised.
+* Small grids are evaluated at once with NumPy. Large grids, or any grid when
+  ``chunks=`` is given, come back lazy: dask arrays whose blocks are NumPy
+  calls of the same function, so a reduction such as ``.max("nu")`` runs block
+  by block in bounded memory. With a ``dask.distributed`` ``Client`` active,
+  ``.compute()`` runs on its cluster; nothing else changes.
+* xarray and dask are the ``scale`` extra (``pip install deltakit[scale]``);
+  they are imported only when a sweep is made or opened.
+
+Results are for preliminary analysis, not for flight operations.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import functools
+import inspect
+import math
+import os
+import shutil
+import sys
+import tempfile
+import types
+from collections.abc import Callable, Mapping
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from .errors import DomainError
+
+__all__ = ["sweep", "save_sweep", "open_sweep", "KNOWN_UNITS", "EAGER_LIMIT"]
+
+#: Grids with at most this many cases are evaluated eagerly when ``chunks`` is None.
+EAGER_LIMIT: int = 1 << 22
+
+#: Cases per block when the sweep goes lazy without an explicit chunk layout.
+#: About 8 MB per float64 variable: large enough that the scheduler's cost per
+#: block is small against the NumPy work, small enough for many blocks in flight.
+_BLOCK_CASES: int = 1 << 20
+
+#: Units of the parameter and plain-result names of the numeric layer (DESIGN.md vocabulary).
+KNOWN_UNITS: dict[str, str] = {
+    "nu": "rad", "nu_center": "rad", "angle": "rad", "argp": "rad",
+    "dv": "m/s", "v": "m/s", "v0": "m/s", "v1": "m/s", "v2": "m/s", "ve": "m/s",
+    "u": "m/s", "vinf": "m/s", "vinf_in": "m/s", "radial": "m/s", "transverse": "m/s",
+    "r": "m", "rp": "m", "ra": "m", "r1": "m", "r2": "m", "rb": "m", "a": "m",
+    "e": "1", "mu": "m^3/s^2", "isp": "s",
+    "m0": "kg", "mf": "kg", "m_vehicle": "kg", "m_ejected": "kg",
+    "thrust": "N", "splits": "1", "margin": "1",
+    # plain-array results, named after their function
+    "circular_speed": "m/s", "escape_speed": "m/s", "vis_viva": "m/s", "specific_energy": "J/kg",
+    "energy_gain": "J/kg", "exhaust_velocity": "m/s", "rocket_dv": "m/s", "propellant_mass": "kg",
+    "plane_change": "m/s", "combined_plane_change": "m/s", "propulsive_efficiency": "1",
+}
+
+#: Attribute that marks a dataset (and a file) as a deltakit sweep, and its format version.
+_TAG = "deltakit_sweep"
+_FORMAT_VERSION = 1
+
+
+def _import_scale() -> tuple[Any, Any]:
+    try:
+        import dask.array as da
+        import xarray as xr
+    except ImportError as err:  # pragma: no cover - depends on the environment
+        raise ImportError(
+            "deltakit.sweep needs xarray and dask, the `scale` extra: "
+            "pip install 'deltakit[scale]' (missing: " + str(err.name) + ")"
+        ) from err
+    return xr, da
+
+
+# ---------------------------------------------------------------------- result fields
+def _flatten(value: Any, name: str, unit: str, out: dict[str, tuple[Any, str]]) -> None:
+    """Spread a result into named arrays: dataclass fields, tuple items, dict keys."""
+    if dataclasses.is_dataclass(value) and not isinstance(value, type):
+        for field in dataclasses.fields(value):
+            child = field.name if not name else f"{name}_{field.name}"
+            _flatten(getattr(value, field.name), child, field.metadata.get("unit", ""), out)
+    elif isinstance(value, Mapping):
+        for key, item in value.items():
+            _flatten(item, str(key) if not name else f"{name}_{key}", unit, out)
+    elif isinstance(value, tuple):
+        stem = name[:-1] if name.endswith("s") and not name.endswith("ss") else name
+        for number, item in enumerate(value, start=1):
+            _flatten(item, f"{stem}_{number}", unit, out)
+    else:
+        out[name or "value"] = (value, unit)
+
+
+def _fields(result: Any, name: str) -> dict[str, tuple[Any, str]]:
+    out: dict[str, tuple[Any, str]] = {}
+    top = dataclasses.is_dataclass(result) or isinstance(result, Mapping)
+    _flatten(result, "" if top else name, "", out)
+    return out
+
+
+def _arrays(result: Any, name: str, shape: tuple[int, ...]) -> dict[str, np.ndarray]:
+    """The result's fields as arrays of the block shape, in a fixed order."""
+    arrays = {}
+    for key, (value, _) in _fields(result, name).items():
+        value = np.asarray(value)
+        try:
+            arrays[key] = np.broadcast_to(value, shape)
+        except ValueError:
+            raise ValueError(
+                f"sweep: result field `{key}` has shape {value.shape}, which does not broadcast "
+                f"to the grid shape {shape}; sweep handles results with one value per case"
+            ) from None
+    return arrays
+
+
+# ---------------------------------------------------------------------- axes
+def _function_name(function: Callable[..., Any]) -> str:
+    inner = function.func if hasattr(function, "func") else function  # functools.partial
+    name = getattr(inner, "__name__", "value")
+    return "value" if name == "<lambda>" else name
+
+
+def _check_parameters(function: Callable[..., Any], names: list[str]) -> None:
+    try:
+        signature = inspect.signature(function)
+    except (TypeError, ValueError):  # builtins and ufuncs without a signature
+        return
+    parameters = signature.parameters
+    if any(p.kind is inspect.Parameter.VAR_KEYWORD for p in parameters.values()):
+        return
+    for name in names:
+        parameter = parameters.get(name)
+        if parameter is None or parameter.kind is inspect.Parameter.POSITIONAL_ONLY:
+            raise TypeError(
+                f"sweep: `{name}` is not a keyword parameter of {_function_name(function)}{signature}"
+            )
+
+
+def _axis(value: Any, name: str) -> np.ndarray:
+    array = np.asarray(value)
+    if array.ndim != 1:
+        raise DomainError(f"sweep axis `{name}` must be 1-D (or a scalar for a fixed value), got shape {array.shape}")
+    if array.size == 0:
+        raise DomainError(f"sweep axis `{name}` must have at least one value, got none")
+    return array
+
+
+def _open_grid(axes: dict[str, np.ndarray], blocks: dict[str, np.ndarray] | None = None) -> dict[str, np.ndarray]:
+    """Each axis (or its block) reshaped to length n on its own dimension, 1 elsewhere."""
+    blocks = axes if blocks is None else blocks
+    ndim = len(axes)
+    grid = {}
+    for position, name in enumerate(axes):
+        shape = [1] * ndim
+        shape[position] = blocks[name].size
+        grid[name] = blocks[name].reshape(shape)
+    return grid
+
+
+def _block_layout(
+    axes: dict[str, np.ndarray], chunks: Any
+) -> dict[str, int]:
+    """Chunk length per axis from ``chunks``: dict, int (cases per block) or "auto"."""
+    sizes = {name: axis.size for name, axis in axes.items()}
+    if isinstance(chunks, Mapping):
+        unknown = set(chunks) - set(sizes)
+        if unknown:
+            raise ValueError(f"sweep: `chunks` names {sorted(unknown)}, which are not axes ({list(sizes)})")
+        layout = {}
+        for name, size in sizes.items():
+            length = chunks.get(name, size)
+            length = size if length in (None, -1) else int(length)
+            if length < 1:
+                raise ValueError(f"sweep: `chunks[{name!r}]` must be >= 1 or -1 (whole axis), got {length}")
+            layout[name] = min(length, size)
+        return layout
+    if chunks is None or chunks == "auto":
+        target = _BLOCK_CASES
+    elif isinstance(chunks, (int, np.integer)) and not isinstance(chunks, bool) and chunks >= 1:
+        target = int(chunks)
+    else:
+        raise ValueError(
+            "sweep: `chunks` must be None, 'auto', a number of cases per block (int >= 1) "
+            f"or a dict axis -> chunk length, got {chunks!r}"
+        )
+    # Keep the trailing axes whole while they fit, split the one that overflows,
+    # and give the leading axes one value per block.
+    layout, room = {}, target
+    for name in reversed(list(sizes)):
+        length = max(1, min(sizes[name], room))
+        layout[name] = length
+        room = max(1, room // length)
+    return {name: layout[name] for name in sizes}
+
+
+# ---------------------------------------------------------------------- evaluation
+def _evaluate(function: Callable[..., Any], fixed: dict[str, Any], grid: dict[str, np.ndarray]) -> Any:
+    return function(**grid, **fixed)
+
+
+def _block(function, fixed, names, name, *blocks):
+    """One dask block: the function on the open grid of these axis blocks."""
+    block_axes = dict(zip(names, blocks))
+    grid = _open_grid(block_axes)
+    shape = tuple(b.size for b in blocks)
+    return _arrays(_evaluate(function, fixed, grid), name, shape)
+
+
+def _pick(fields: dict[str, np.ndarray], key: str) -> np.ndarray:
+    # A copy, not the broadcast view: blocks must own their memory for dask and the writers.
+    return np.array(fields[key])
+
+
+def sweep(
+    function: Callable[..., Any],
+    *,
+    chunks: Any = None,
+    fixed: Mapping[str, Any] | None = None,
+    units: Mapping[str, str] | None = None,
+    name: str | None = None,
+    **axes: Any,
+) -> Any:
+    """Evaluate ``function`` over the outer product of named 1-D axes.
+
+    Parameters
+    ----------
+    function : callable
+        A numeric-layer function or the analyst's own. It is called with keyword
+        arguments only and must broadcast like a ufunc. It may return an array,
+        a frozen result dataclass (one variable per field; a tuple field such as
+        ``Transfer.burns`` gives ``burn_1``, ``burn_2``...; a nested result such
+        as a :class:`~deltakit.Conic` gives ``after_rp``, ``after_e``...), a
+        tuple (``<name>_1``, ``<name>_2``...) or a dict (one variable per key).
+    chunks : None, "auto", int, dict or False, optional
+        ``None``: eager NumPy for grids up to :data:`EAGER_LIMIT` cases, lazy
+        dask beyond. ``"auto"`` or an int (cases per block) or a dict
+        (axis -> chunk length, ``-1`` for the whole axis): always lazy.
+        ``False``: always eager.
+    fixed : dict, optional
+        Parameters held fixed, passed unchanged to every call. Numeric scalars
+        given directly as keywords are treated the same way; numeric fixed
+        values are kept as scalar coordinates, others as a text attribute.
+    units : dict, optional
+        Unit per axis or result field, overriding the units found in result
+        metadata and :data:`KNOWN_UNITS`.
+    name : str, optional
+        Variable name for a plain-array result (default: the function's name,
+        ``"value"`` for a lambda).
+    **axes : array_like, shape (n,)
+        One 1-D axis per swept parameter, in the order of the output dimensions.
+        A scalar (0-d) value is a fixed parameter instead.
+
+    Returns
+    -------
+    xarray.Dataset
+        Dimensions and coordinates named after the axes; ``attrs`` hold the
+        function's name and the deltakit sweep tag used by :func:`save_sweep`.
+
+    Raises
+    ------
+    TypeError
+        If an axis or fixed value is not a parameter of ``function``.
+    deltakit.DomainError
+        If an axis is not 1-D or is empty, and whatever the function raises for
+        its first case (checked at once, also for a lazy sweep).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> import deltakit as dk
+    >>> from deltakit.constants import EARTH
+    >>> ds = dk.sweep(dk.circular_speed, r=[7000e3, 8000e3], mu=EARTH.mu)
+    >>> ds["circular_speed"].attrs["units"], ds["r"].attrs["units"]
+    ('m/s', 'm')
+    >>> np.round(ds["circular_speed"].values, 1)
+    array([7546.1, 7058.7])
+    """
+    xr, da = _import_scale()
+    fixed = dict(fixed or {})
+    units = dict(units or {})
+    swept: dict[str, np.ndarray] = {}
+    for key, value in axes.items():
+        if np.ndim(value) == 0:
+            if key in fixed:
+                raise TypeError(f"sweep: `{key}` given both as a keyword and in `fixed`")
+            fixed[key] = value
+        else:
+            swept[key] = _axis(value, key)
+    if not swept:
+        raise TypeError("sweep: give at least one 1-D axis, e.g. sweep(f, dv=np.linspace(0, 1000, 11))")
+    overlap = set(swept) & set(fixed)
+    if overlap:
+        raise TypeError(f"sweep: {sorted(overlap)} given both as an axis and in `fixed`")
+    _check_parameters(function, [*swept, *fixed])
+    result_name = name or _function_name(function)
+
+    # Probe the first case: field names, units and dtypes, and an early error.
+    first = {key: axis[:1] for key, axis in swept.items()}
+    probe = _fields(_evaluate(function, fixed, _open_grid(swept, first)), result_name)
+    fields = {key: (np.asarray(value).dtype, unit) for key, (value, unit) in probe.items()}
+
+    shape = tuple(axis.size for axis in swept.values())
+    cases = math.prod(shape)
+    lazy = chunks is not False and (chunks is not None or cases > EAGER_LIMIT)
+    dims = tuple(swept)
+    if not lazy:
+        arrays = _arrays(_evaluate(function, fixed, _open_grid(swept)), result_name, shape)
+        data = {key: np.array(value) for key, value in arrays.items()}
+    else:
+        layout = _block_layout(swept, None if chunks is False else chunks)
+        axis_arrays = [da.from_array(axis, chunks=layout[key]) for key, axis in swept.items()]
+        pattern = []
+        for position, axis in enumerate(axis_arrays):
+            pattern += [axis, (position,)]
+        raw = da.blockwise(
+            functools.partial(_block, function, fixed, dims, result_name),
+            tuple(range(len(dims))), *pattern,
+            dtype=object, meta=np.empty((0,) * len(dims), dtype=object), concatenate=True,
+        )
+        data = {
+            key: raw.map_blocks(_pick, key, dtype=dtype, meta=np.empty((0,) * len(dims), dtype=dtype))
+            for key, (dtype, _) in fields.items()
+        }
+
+    coords: dict[str, Any] = {}
+    for key, axis in swept.items():
+        unit = units.get(key, KNOWN_UNITS.get(key, ""))
+        coords[key] = xr.Variable(key, axis, attrs={"units": unit} if unit else {})
+    others = {}
+    for key, value in fixed.items():
+        if isinstance(value, (int, float, np.number)) and not isinstance(value, bool):
+            unit = units.get(key, KNOWN_UNITS.get(key, ""))
+            coords[key] = xr.Variable((), np.asarray(value), attrs={"units": unit} if unit else {})
+        else:
+            others[key] = repr(value)
+
+    variables = {}
+    for key, values in data.items():
+        var_name = f"{key}_out" if key in coords else key
+        unit = units.get(key, fields[key][1] or KNOWN_UNITS.get(key, ""))
+        variables[var_name] = xr.Variable(dims, values, attrs={"units": unit} if unit else {})
+
+    attrs = {
+        _TAG: _FORMAT_VERSION,
+        "function": f"{getattr(function, '__module__', '') or ''}.{_function_name(function)}".lstrip("."),
+        "caution": "Preliminary analysis only, not for flight operations.",
+    }
+    if others:
+        attrs["fixed"] = ", ".join(f"{k}={v}" for k, v in others.items())
+    return xr.Dataset(variables, coords=coords, attrs=attrs)
+
+
+# ---------------------------------------------------------------------- saving
+def _read_tag(path: Path, xr: Any) -> Any:
+    """The sweep tag of a saved sweep, or None for anything that is not one."""
+    try:
+        with xr.open_zarr(path, consolidated=False, chunks=None) as ds:
+            return ds.attrs.get(_TAG)
+    except Exception:  # anything unreadable is not ours
+        return None
+
+
+def save_sweep(dataset: Any, path: str | os.PathLike[str]) -> Path:
+    """Write a sweep to a Zarr store (a folder), atomically; lazy sweeps stream block by block.
+
+    The store is first written to a temporary folder beside ``path`` and then
+    renamed into place, so an interrupted save never leaves a half-written
+    sweep. An existing sweep at ``path`` is moved aside first and deleted only
+    once the new one is in place; anything at ``path`` that is not a deltakit
+    sweep is refused and left untouched.
+
+    Parameters
+    ----------
+    dataset : xarray.Dataset
+        A result of :func:`sweep` (or a reduction of one that kept its attrs).
+    path : str or path-like
+        Target folder, conventionally ``*.zarr``.
+
+    Returns
+    -------
+    pathlib.Path
+        The path written.
+
+    Raises
+    ------
+    deltakit.DomainError
+        If ``path`` exists and is not a deltakit sweep (it is left untouched),
+        or if ``dataset`` carries no deltakit sweep tag.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> import deltakit as dk
+    >>> from deltakit.sweep import save_sweep, open_sweep
+    >>> ds = dk.sweep(dk.circular_speed, r=[7000e3, 8000e3], mu=3.986e14)
+    >>> path = pathlib.Path(tempfile.mkdtemp()) / "speeds.zarr"
+    >>> back = open_sweep(save_sweep(ds, path))
+    >>> back.identical(ds)
+    True
+    """
+    xr, _ = _import_scale()
+    if not isinstance(dataset, xr.Dataset) or _TAG not in dataset.attrs:
+        raise DomainError("save_sweep: `dataset` must be a deltakit sweep (an xarray.Dataset made by deltakit.sweep)")
+    path = Path(path)
+    if path.exists() or path.is_symlink():
+        if _read_tag(path, xr) is None:
+            raise DomainError(f"save_sweep: refusing to overwrite {path}: it is not a deltakit sweep")
+    path.parent.mkdir(parents=True, exist_ok=True)
+    temporary = Path(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent))
+    try:
+        dataset.to_zarr(temporary, mode="w", consolidated=False)
+        if _read_tag(temporary, xr) != dataset.attrs[_TAG]:  # read back before it replaces anything
+            raise OSError(f"save_sweep: the store written to {temporary} does not read back")
+        if path.exists():
+            aside = Path(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".old", dir=path.parent))
+            os.replace(path, aside / "sweep")  # the old sweep survives until the new one is in place
+            os.replace(temporary, path)
+            shutil.rmtree(aside, ignore_errors=True)
+        else:
+            os.replace(temporary, path)
+    except BaseException:
+        shutil.rmtree(temporary, ignore_errors=True)
+        raise
+    return path
+
+
+def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> Any:
+    """Reopen a sweep saved by :func:`save_sweep`.
+
+    Parameters
+    ----------
+    path : str or path-like
+        A Zarr store written by :func:`save_sweep`.
+    chunks : dict or "auto", optional
+        ``None`` (default) loads everything into memory; otherwise the
+        variables stay lazy dask arrays read block by block.
+
+    Raises
+    ------
+    FileNotFoundError
+        If there is nothing at ``path``.
+    deltakit.DomainError
+        If the store is unreadable, corrupt, not a deltakit sweep, or of a
+        newer format than this deltakit reads. The store is never modified.
+
+    Examples
+    --------
+    See :func:`save_sweep`.
+    """
+    xr, _ = _import_scale()
+    path = Path(path)
+    if not path.exists():
+        raise FileNotFoundError(f"open_sweep: no such sweep: {path}")
+    try:
+        dataset = xr.open_zarr(path, consolidated=False, chunks=chunks)
+    except Exception as err:
+        raise DomainError(f"open_sweep: {path} is not a readable Zarr store ({type(err).__name__}: {err})") from err
+    version = dataset.attrs.get(_TAG)
+    if version is None:
+        dataset.close()
+        raise DomainError(f"open_sweep: {path} is not a deltakit sweep (no `{_TAG}` attribute)")
+    if not isinstance(version, (int, np.integer)) or not 1 <= version <= _FORMAT_VERSION:
+        dataset.close()
+        raise DomainError(
+            f"open_sweep: {path} has sweep format version {version!r}; this deltakit reads 1 to {_FORMAT_VERSION}"
+        )
+    if chunks is None:
+        try:
+            dataset = dataset.load()
+        except Exception as err:
+            raise DomainError(f"open_sweep: {path} is corrupt ({type(err).__name__}: {err})") from err
+        finally:
+            dataset.close()
+    return dataset
+
+
+# ---------------------------------------------------------------------- module call
+class _CallableModule(types.ModuleType):
+    """``deltakit.sweep`` names both this module and its function; keep both callable.
+
+    Importing a submodule sets the package attribute to the module, which would
+    shadow the function re-exported under the same name.
+    """
+
+    def __call__(self, *args: Any, **kwargs: Any) -> Any:
+        return sweep(*args, **kwargs)
+
+
+sys.modules[__name__].__class__ = _CallableModule
