@@ -637,7 +637,8 @@ class Budget:
 
         Raises :class:`~deltakit.DomainError` (a ``ValueError``) naming the
         file and what is wrong: unreadable or truncated JSON, another format,
-        a newer version, or a damaged field.
+        a newer version, or a damaged field. A missing file raises
+        ``FileNotFoundError``.
         """
         path = Path(path)
         return cls.from_dict(_read_budget_data(path), origin=str(path))
@@ -679,10 +680,7 @@ def _latex_escape(text: str) -> str:
 
 def _read_budget_data(path: Path) -> dict[str, Any]:
     """Read and check the envelope of a budget file; never writes."""
-    try:
-        raw = path.read_bytes()
-    except OSError as err:
-        raise DomainError(f"cannot read budget file {path}: {err.strerror}") from None
+    raw = path.read_bytes()  # a missing or unreadable file raises OSError naming it
     try:
         data = json.loads(raw.decode("utf-8"))
     except UnicodeDecodeError:
