@@ -1,0 +1,50 @@
+"""Plot helpers: orbits, burns, transfers, energy gain and budgets in matplotlib.
+
+Every helper takes the Axes first, keyword-only options after the data, passes
+``**kwargs`` to one named Axes method, returns the artists it drew, and never
+calls ``plt.show()``. Axes show km, km/s, deg and MJ/kg and say so in their
+labels; arguments are SI like the numeric layer. ``update_*`` twins move the
+artists in place so panels redraw without rebuilding the figure.
+
+Results are for preliminary analysis, not for flight operations.
+"""
+
+from __future__ import annotations
+
+from ._style import COLOURS
+from .energy import energy_gain_curve, plot_energy_gain, update_energy_gain
+from .orbits import (
+    BurnArtists,
+    ConicArtists,
+    TransferArtists,
+    burn_at_angle,
+    conic_points,
+    draw_burn,
+    draw_conic,
+    draw_transfer,
+    update_burn,
+    update_conic,
+    update_transfer,
+)
+from .waterfall import WaterfallArtists, plot_budget_waterfall, update_budget_waterfall
+
+__all__ = [
+    "COLOURS",
+    "ConicArtists",
+    "BurnArtists",
+    "TransferArtists",
+    "WaterfallArtists",
+    "conic_points",
+    "burn_at_angle",
+    "draw_conic",
+    "update_conic",
+    "draw_burn",
+    "update_burn",
+    "plot_energy_gain",
+    "update_energy_gain",
+    "energy_gain_curve",
+    "draw_transfer",
+    "update_transfer",
+    "plot_budget_waterfall",
+    "update_budget_waterfall",
+]

@@ -1,0 +1,45 @@
+"""Colours, line styles and unit scales shared by deltakit's figures.
+
+Our own palette: a deep slate for the orbit as it is, a warm amber for the
+orbit after a burn, a raspberry for burn points and delta-v, a pine green and a
+plum for the two transfer families, a cool grey for the central body. They stay
+apart for the common colour-vision deficiencies (no red/green pair carries
+meaning alone: lines also differ in style).
+"""
+
+from __future__ import annotations
+
+__all__ = ["COLOURS", "KM", "MJ_PER_KG", "style_axes"]
+
+#: Named colours used across the plots (hex sRGB).
+COLOURS: dict[str, str] = {
+    "before": "#27476e",
+    "after": "#d98e04",
+    "burn": "#b3245c",
+    "body": "#aebbc7",
+    "body_edge": "#6f7f8c",
+    "hohmann": "#2f7d5b",
+    "bielliptic": "#7b4f9d",
+    "reference": "#7a7a7a",
+    "vehicle": "#27476e",
+    "exhaust": "#d98e04",
+    "total": "#4d4d4d",
+    "grid": "#e4e8ec",
+}
+
+#: Metres per kilometre: plots show km, the numeric layer speaks m.
+KM = 1.0e3
+#: J/kg per MJ/kg: energies are plotted in MJ/kg.
+MJ_PER_KG = 1.0e6
+
+
+def style_axes(ax, *, xlabel: str | None = None, ylabel: str | None = None, title: str | None = None) -> None:
+    """Light grid and labels, set only where the Axes has none yet."""
+    ax.grid(True, color=COLOURS["grid"], linewidth=0.8)
+    ax.set_axisbelow(True)
+    if xlabel and not ax.get_xlabel():
+        ax.set_xlabel(xlabel)
+    if ylabel and not ax.get_ylabel():
+        ax.set_ylabel(ylabel)
+    if title and not ax.get_title():
+        ax.set_title(title, fontsize="medium")

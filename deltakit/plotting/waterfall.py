@@ -1,0 +1,107 @@
+"""A delta-v budget as a waterfall of vehicle mass, line by line.
+
+Each bar stands at the mass before its line: the lower part (slate) is the
+mass left after the line, the upper part (amber) the propellant the line
+burns. The first bar is the starting mass. Masses in kg.
+"""
+
+from __future__ import annotations
+
+from typing import Any, NamedTuple
+
+import numpy as np
+from matplotlib.axes import Axes
+from matplotlib.container import BarContainer
+
+from ._style import COLOURS, style_axes
+
+__all__ = ["WaterfallArtists", "budget_masses", "plot_budget_waterfall", "update_budget_waterfall"]
+
+
+class WaterfallArtists(NamedTuple):
+    """What :func:`plot_budget_waterfall` drew: remaining-mass and propellant bars."""
+
+    remaining: BarContainer
+    spent: BarContainer
+
+
+def budget_masses(budget: Any) -> tuple[list[str], np.ndarray]:
+    """Labels and masses (kg) for the waterfall: the start, then after each line.
+
+    Examples
+    --------
+    >>> from deltakit import Budget
+    >>> b = Budget(1000.0, 3000.0).add("raise", 300.0)
+    >>> labels, masses = budget_masses(b)
+    >>> labels, [round(float(m), 1) for m in masses]
+    (['start', 'raise'], [1000.0, 904.8])
+    """
+    labels = ["start", *[line.label for line in budget.lines]]
+    masses = np.concatenate([[float(budget.m0)], np.asarray(budget.mass_after, dtype=float).reshape(-1)])
+    return labels, masses
+
+
+def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs: Any) -> WaterfallArtists:
+    """Draw the mass after each line of a :class:`deltakit.Budget`.
+
+    Parameters
+    ----------
+    ax : matplotlib Axes
+    budget : Budget
+    width : float
+        Bar width (fraction of the spacing).
+    **kwargs
+        Passed to :meth:`Axes.bar` for the remaining-mass bars.
+
+    Returns
+    -------
+    WaterfallArtists
+        ``remaining`` (bar heights: mass after each line, kg; the first bar is
+        the starting mass) and ``spent`` (propellant of each line, kg, stacked
+        on top).
+
+    Examples
+    --------
+    >>> from matplotlib.figure import Figure
+    >>> from deltakit import Budget
+    >>> b = Budget(1000.0, 3000.0).add("raise", 300.0)
+    >>> art = plot_budget_waterfall(Figure().add_subplot(), b)
+    >>> [round(p.get_height(), 1) for p in art.remaining]
+    [1000.0, 904.8]
+    """
+    labels, masses = budget_masses(budget)
+    before = np.concatenate([[masses[0]], masses[:-1]])
+    spent = before - masses
+    x = np.arange(len(masses))
+    kwargs.setdefault("color", COLOURS["vehicle"])
+    remaining = ax.bar(x, masses, width, label="mass after the line", **kwargs)
+    spent_bars = ax.bar(x, spent, width, bottom=masses, color=COLOURS["exhaust"], alpha=0.85,
+                        label="propellant of the line")
+    ax.set_xticks(x, labels, rotation=30 if len(labels) > 4 else 0, ha="right" if len(labels) > 4 else "center")
+    ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
+    style_axes(ax, ylabel="vehicle mass (kg)")
+    ax.grid(False, axis="x")
+    return WaterfallArtists(remaining, spent_bars)
+
+
+def update_budget_waterfall(ax: Axes, artists: WaterfallArtists | None, budget: Any, **kwargs: Any) -> WaterfallArtists:
+    """Redraw the waterfall after the budget changed.
+
+    Heights move in place when the number of lines is the same; otherwise the
+    bars are replaced (a line was added or removed).
+    """
+    labels, masses = budget_masses(budget)
+    if artists is not None and len(artists.remaining) == len(masses):
+        before = np.concatenate([[masses[0]], masses[:-1]])
+        for bar, m, s in zip(artists.remaining, masses, before - masses):
+            bar.set_height(m)
+        for bar, m, s in zip(artists.spent, masses, before - masses):
+            bar.set_y(m)
+            bar.set_height(s)
+        ax.set_xticks(np.arange(len(labels)), labels)
+        ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
+        return artists
+    if artists is not None:
+        artists.remaining.remove()
+        artists.spent.remove()
+    return plot_budget_waterfall(ax, budget, **kwargs)

@@ -1,0 +1,43 @@
+"""Notebook panels: ipywidgets boxes that answer as the analyst slides.
+
+Each panel is an :class:`ipywidgets.VBox` made with keyword-only arguments
+(all with defaults: a panel made with no arguments shows a meaningful case
+around a real body and an invented vehicle), with ``.controls``, ``.values``
+(SI), ``.figure``, ``.set(**values)`` and ``.export()``. Controls show km,
+km/s, deg and s in their labels; values and exports are SI.
+
+Results are for preliminary analysis, not for flight operations; defer to the
+mission's verified tools, local rules and licensed practice.
+"""
+
+from __future__ import annotations
+
+import importlib
+from typing import Any
+
+from ._base import CAUTION, Panel
+
+# Panel -> module; each loads on first use.
+_PANELS = {
+    "BurnPointExplorer": "burn_point",
+    "PropellantTrade": "propellant",
+    "TransferTrade": "transfer",
+    "EscapeFlyby": "escape",
+    "BudgetBuilder": "budget_builder",
+    "FormulaSheet": "formula_sheet",
+}
+
+__all__ = ["CAUTION", "Panel", *_PANELS]
+
+
+def __getattr__(name: str) -> Any:
+    module = _PANELS.get(name)
+    if module is None:
+        raise AttributeError(f"module 'deltakit.widgets' has no attribute {name!r}")
+    value = getattr(importlib.import_module(f".{module}", __name__), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(__all__))
