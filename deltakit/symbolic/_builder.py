@@ -1,0 +1,71 @@
+"""Helpers the catalog modules use to record a derivation step by step."""
+
+from __future__ import annotations
+
+from typing import Any, Callable, Iterable, Mapping
+
+import sympy as sp
+
+from .derivation import Derivation, Meaning
+
+__all__ = ["Builder"]
+
+
+class Builder:
+    """Collects symbols and steps, then freezes them into a :class:`Derivation`.
+
+    ``step(sentence, lhs, rhs)`` records ``lhs = rhs`` unevaluated (so SymPy
+    does not collapse it to ``True``) and returns ``rhs`` so derivations read
+    as a chain of assignments.
+    """
+
+    def __init__(self, name: str, title: str) -> None:
+        self.name = name
+        self.title = title
+        self.symbols: dict[sp.Symbol, Meaning] = {}
+        self.steps: list[tuple[str, sp.Basic]] = []
+
+    def symbol(self, name: str, meaning: str, unit: str, latex: str | None = None, **assumptions: Any) -> sp.Symbol:
+        """A SymPy symbol named ``name`` (a Python identifier), with its meaning."""
+        if not assumptions:
+            assumptions = {"positive": True}
+        symbol = sp.Symbol(name, **assumptions)
+        self.symbols[symbol] = Meaning(meaning, unit, latex if latex is not None else sp.latex(symbol))
+        return symbol
+
+    def step(self, sentence: str, lhs: Any, rhs: Any) -> Any:
+        """Record ``lhs = rhs`` with its sentence and return ``rhs``."""
+        self.steps.append((sentence, sp.Eq(lhs, rhs, evaluate=False)))
+        return rhs
+
+    def relation(self, sentence: str, relation: sp.Basic) -> sp.Basic:
+        """Record a relation that is not an assignment (e.g. a balance = 0)."""
+        self.steps.append((sentence, relation))
+        return relation
+
+    def build(
+        self,
+        *,
+        result: sp.Expr,
+        target: sp.Symbol,
+        parameters: Iterable[sp.Symbol],
+        twin: str,
+        assumptions: Iterable[str],
+        outputs: Mapping[str, sp.Expr] | None = None,
+        references: Iterable[str] = (),
+        twin_adapter: Callable[..., Any] | None = None,
+    ) -> Derivation:
+        return Derivation(
+            name=self.name,
+            title=self.title,
+            assumptions=tuple(assumptions),
+            symbols=dict(self.symbols),
+            steps=tuple(self.steps),
+            result=result,
+            target=target,
+            parameters=tuple(parameters),
+            twin=twin,
+            outputs=dict(outputs or {}),
+            references=tuple(references),
+            twin_adapter=twin_adapter,
+        )

@@ -1,0 +1,202 @@
+"""Catalog entries about one orbit: vis-viva, burn energy gains, apsis change.
+
+Conventions: SI units, two-body motion about a point mass of gravitational
+parameter ``mu``; burns are impulsive (the position does not change during
+the burn). A prograde delta-v is positive, a retrograde one negative.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import sympy as sp
+
+from ._builder import Builder
+from ._registry import derive, entry
+from .derivation import Derivation
+
+__all__: list[str] = []
+
+_TWO_BODY = "Two-body motion: a point mass in the field of one spherical central body, no other forces."
+_IMPULSIVE = "Impulsive burn: the velocity changes instantly, the position does not."
+
+
+@entry("vis_viva")
+def _vis_viva() -> Derivation:
+    b = Builder("vis_viva", "Vis-viva: speed at a radius")
+    r = b.symbol("r", "distance from the centre of the central body", "m")
+    a = b.symbol("a", "semi-major axis (negative for a hyperbola)", "m", real=True, nonzero=True)
+    mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
+    v = b.symbol("v", "speed at radius r", "m/s")
+    rp = b.symbol("rp", "periapsis radius", "m", "r_{p}")
+    ra = b.symbol("ra", "apoapsis radius", "m", "r_{a}")
+    vp = b.symbol("vp", "speed at periapsis", "m/s", "v_{p}")
+    va = b.symbol("va", "speed at apoapsis", "m/s", "v_{a}")
+    energy = b.symbol("energy", "specific orbital energy", "J/kg", r"\varepsilon", real=True)
+
+    b.step("Specific energy: kinetic plus potential, per unit mass, is conserved.", energy, v**2 / 2 - mu / r)
+    conserve_energy = b.relation(
+        "Energy conservation between periapsis and apoapsis.",
+        sp.Eq(vp**2 / 2 - mu / rp, va**2 / 2 - mu / ra),
+    )
+    momentum = sp.Eq(rp * vp, ra * va)
+    b.relation("Angular momentum conservation: at the apsides the velocity is perpendicular to the radius.", momentum)
+    va_of_vp = sp.solve(momentum, va)[0]
+    vp_value = sp.solve(conserve_energy.subs(va, va_of_vp), vp)[0]
+    b.step("Eliminate the apoapsis speed and solve for the periapsis speed.", vp, vp_value)
+    energy_apsides = sp.simplify((vp**2 / 2 - mu / rp).subs(vp, vp_value))
+    b.step("Energy evaluated at periapsis.", energy, energy_apsides)
+    energy_a = sp.simplify(energy_apsides.subs(ra, 2 * a - rp))
+    b.step("The apsides are $2a$ apart along the major axis: $r_p + r_a = 2a$.", energy, energy_a)
+    speed = sp.solve(sp.Eq(v**2 / 2 - mu / r, energy_a), v)[0]
+    speed = sp.sqrt(sp.expand(speed**2))  # v > 0, so v = sqrt(v^2) in expanded form
+    b.step("Solve the energy relation at radius $r$ for the speed.", v, speed)
+    return b.build(
+        result=speed,
+        target=v,
+        parameters=(r, a, mu),
+        twin="deltakit.vis_viva",
+        assumptions=[_TWO_BODY, "Holds on every conic: a > 0 for an ellipse, a < 0 for a hyperbola."],
+        references=[
+            "Curtis, Orbital Mechanics for Engineering Students, energy law and vis-viva (Ch. 2)",
+            "Vallado, Fundamentals of Astrodynamics and Applications, vis-viva equation (Ch. 1)",
+        ],
+    )
+
+
+@entry("oberth", "energy_gain")
+def _oberth() -> Derivation:
+    b = Builder("oberth", "Energy gain of a prograde burn (Oberth relation)")
+    v = b.symbol("v", "speed just before the burn", "m/s")
+    dv = b.symbol("dv", "delta-v along the velocity (negative: retrograde)", "m/s", r"\Delta v", real=True)
+    r = b.symbol("r", "radius where the burn happens", "m")
+    mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
+    e_before = b.symbol("energy_before", "specific orbital energy before the burn", "J/kg", r"\varepsilon_{0}", real=True)
+    e_after = b.symbol("energy_after", "specific orbital energy after the burn", "J/kg", r"\varepsilon_{1}", real=True)
+    gain = b.symbol("energy_change", "change of specific orbital energy", "J/kg", r"\Delta\varepsilon", real=True)
+    slope = b.symbol("slope", "extra gain per unit of speed at the burn point", "m/s", r"\frac{\partial \Delta\varepsilon}{\partial v}", real=True)
+
+    before = b.step("Specific energy before the burn.", e_before, v**2 / 2 - mu / r)
+    after = b.step(
+        "The burn adds $\\Delta v$ along the velocity at the same radius: the potential term is unchanged.",
+        e_after,
+        (v + dv) ** 2 / 2 - mu / r,
+    )
+    change = sp.expand(after - before)
+    b.step("Subtract: the potential energy cancels.", gain, change)
+    b.step(
+        "The same $\\Delta v$ gives more energy the faster the vehicle moves: deep in the well, at periapsis.",
+        slope,
+        sp.diff(change, v),
+    )
+    return b.build(
+        result=change,
+        target=gain,
+        parameters=(v, dv),
+        twin="deltakit.energy_gain",
+        assumptions=[_TWO_BODY, _IMPULSIVE, "The delta-v is along the velocity (prograde or retrograde)."],
+        references=["Common practice: direct consequence of the specific-energy definition"],
+    )
+
+
+@entry("inplane_burn")
+def _inplane_burn() -> Derivation:
+    b = Builder("inplane_burn", "Energy gain of a general in-plane burn")
+    rp = b.symbol("rp", "periapsis radius of the orbit before the burn", "m", "r_{p}")
+    e = b.symbol("e", "eccentricity before the burn", "1", "e", nonnegative=True, real=True)
+    mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
+    nu = b.symbol("nu", "true anomaly of the burn point", "rad", r"\nu", real=True)
+    radial = b.symbol("radial", "delta-v component along the outward radius", "m/s", r"\Delta v_{r}", real=True)
+    transverse = b.symbol("transverse", "delta-v component along the motion, perpendicular to the radius", "m/s", r"\Delta v_{t}", real=True)
+    h = b.symbol("h", "specific angular momentum", "m^2/s")
+    r = b.symbol("r", "radius at the burn point", "m")
+    v_r = b.symbol("v_radial", "radial velocity before the burn", "m/s", "v_{r}", real=True)
+    v_t = b.symbol("v_transverse", "transverse velocity before the burn", "m/s", "v_{t}", real=True)
+    gain = b.symbol("energy_change", "change of specific orbital energy", "J/kg", r"\Delta\varepsilon", real=True)
+    t = sp.Symbol("t", real=True)
+
+    change_components = sp.expand(((v_r + radial) ** 2 + (v_t + transverse) ** 2 - v_r**2 - v_t**2) / 2)
+    b.step(
+        "Specific energy is $v^2/2 - \\mu/r$; the radius does not change, so only the kinetic term changes.",
+        gain,
+        change_components,
+    )
+    radius = b.step("The conic equation, with h the specific angular momentum.", r, h**2 / (mu * (1 + e * sp.cos(nu))))
+    h_value = sp.solve(sp.Eq(radius.subs(nu, 0), rp), h)[0]
+    b.step("At periapsis ($\\nu = 0$) the radius is $r_p$.", h, h_value)
+    b.step("Angular momentum is r times the transverse velocity.", v_t, sp.simplify(h / radius))
+    nu_t = sp.Function("nu")(t)
+    radial_rate = sp.diff(radius.subs(nu, nu_t), t).subs(sp.Derivative(nu_t, t), h / radius**2).subs(nu_t, nu)
+    b.step("Radial velocity: differentiate the conic equation in time, with $\\dot\\nu = h/r^2$.", v_r, sp.simplify(radial_rate))
+    velocities = {v_r: sp.simplify(radial_rate), v_t: sp.simplify(h / radius)}
+    change = sp.simplify(change_components.subs(velocities).subs(h, h_value))
+    change = sp.expand(change)
+    b.step("Substitute the velocity components before the burn.", gain, change)
+    return b.build(
+        result=change,
+        target=gain,
+        parameters=(rp, e, mu, nu, radial, transverse),
+        twin="deltakit.burn:energy_change",
+        assumptions=[_TWO_BODY, _IMPULSIVE, "The delta-v lies in the orbit plane (radial and transverse parts)."],
+        references=["Common practice: specific energy of the velocity after the burn, conic velocity components"],
+        twin_adapter=_burn_twin,
+    )
+
+
+def _burn_twin(rp: Any, e: Any, mu: Any, nu: Any, radial: Any, transverse: Any) -> Any:
+    import deltakit as dk
+
+    return dk.burn(dk.Conic(rp, e, mu), nu, radial=radial, transverse=transverse).energy_change
+
+
+@entry("apsis_change")
+def _apsis_change() -> Derivation:
+    b = Builder("apsis_change", "Tangential apsis change: apoapsis after a prograde periapsis burn")
+    rp = b.symbol("rp", "periapsis radius (where the burn happens)", "m", "r_{p}")
+    ra = b.symbol("ra", "apoapsis radius before the burn", "m", "r_{a}")
+    mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
+    dv = b.symbol("dv", "prograde delta-v at periapsis", "m/s", r"\Delta v")
+    vp = b.symbol("vp", "periapsis speed before the burn", "m/s", "v_{p}")
+    w = b.symbol("w", "periapsis speed after the burn", "m/s", "w_{p}")
+    r_new = b.symbol("ra_new", "apoapsis radius after the burn", "m", r"r_{a}'")
+    v_new = b.symbol("va_new", "apoapsis speed after the burn", "m/s", r"v_{a}'")
+
+    vis_viva = derive("vis_viva")
+    r_s, a_s, mu_s = vis_viva.parameters
+    vp_value = vis_viva.result.subs({r_s: rp, a_s: (rp + ra) / 2, mu_s: mu}, simultaneous=True)
+    vp_value = sp.simplify(vp_value)
+    b.step("Periapsis speed from vis-viva with $a = (r_p + r_a)/2$.", vp, vp_value)
+    b.step("A tangential burn at periapsis keeps periapsis where it is and adds $\\Delta v$.", w, vp + dv)
+    momentum = b.relation("Angular momentum at the new apsides.", sp.Eq(rp * w, r_new * v_new))
+    energy = b.relation(
+        "Energy conservation between the new apsides.", sp.Eq(w**2 / 2 - mu / rp, v_new**2 / 2 - mu / r_new)
+    )
+    v_new_value = sp.solve(momentum, v_new)[0]
+    roots = sp.solve(energy.subs(v_new, v_new_value), r_new)
+    other = [root for root in roots if sp.simplify(root - rp) != 0]
+    (apoapsis_w,) = other
+    apoapsis_w = sp.factor(apoapsis_w)
+    b.step("Solve for the radius: one root is $r_p$ itself, the other is the new apoapsis.", r_new, apoapsis_w)
+    apoapsis = apoapsis_w.subs(w, vp_value + dv)
+    b.step("Substitute the speed after the burn.", r_new, apoapsis)
+    return b.build(
+        result=apoapsis,
+        target=r_new,
+        parameters=(rp, ra, mu, dv),
+        twin="deltakit.burn_prograde:after.ra",
+        assumptions=[
+            _TWO_BODY,
+            _IMPULSIVE,
+            "The burn is prograde at periapsis and the orbit stays bound (new apoapsis finite).",
+        ],
+        references=[
+            "Curtis, Orbital Mechanics for Engineering Students, orbit equation at apoapsis (Ch. 2)",
+        ],
+        twin_adapter=_apsis_twin,
+    )
+
+
+def _apsis_twin(rp: Any, ra: Any, mu: Any, dv: Any) -> Any:
+    import deltakit as dk
+
+    return dk.burn_prograde(dk.Conic.from_apsides(rp, ra, mu), 0.0, dv).after.ra
