@@ -66,7 +66,7 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
     >>> from deltakit import Budget
     >>> b = Budget(1000.0, 3000.0).add("raise", 300.0)
     >>> art = plot_budget_waterfall(Figure().add_subplot(), b)
-    >>> [round(p.get_height(), 1) for p in art.remaining]
+    >>> [round(float(p.get_height()), 1) for p in art.remaining]
     [1000.0, 904.8]
     """
     labels, masses = budget_masses(budget)
