@@ -137,7 +137,12 @@ def _inplane_burn() -> Derivation:
         target=gain,
         parameters=(rp, e, mu, nu, radial, transverse),
         twin="deltakit.burn:energy_change",
-        assumptions=[_TWO_BODY, _IMPULSIVE, "The delta-v lies in the orbit plane (radial and transverse parts)."],
+        assumptions=[
+            _TWO_BODY,
+            _IMPULSIVE,
+            "The delta-v lies in the orbit plane (radial and transverse parts).",
+            "The transverse speed after the burn stays positive (the motion is not reversed).",
+        ],
         references=["Common practice: specific energy of the velocity after the burn, conic velocity components"],
         twin_adapter=_burn_twin,
     )
