@@ -28,8 +28,8 @@ def _describe(name: str, rule: str, unit: str, values: np.ndarray, bad: np.ndarr
     if values.ndim == 0:
         return f"`{name}` must be {rule}{unit_text}, got {values.item()!r}"
     count = int(np.count_nonzero(bad))
-    first = np.unravel_index(int(np.argmax(bad)), bad.shape)
-    index = first[0] if len(first) == 1 else first
+    first = tuple(int(i) for i in np.unravel_index(int(np.argmax(bad)), bad.shape))
+    index = first[0] if len(first) == 1 else first  # plain ints: no np.int64(...) under NumPy 2
     return (
         f"`{name}` must be {rule}{unit_text}: {count} of {values.size} elements "
         f"break this rule (first at index {index}: {values[first].item()!r})"
