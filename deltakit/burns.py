@@ -57,7 +57,7 @@ class BurnOutcome(Result):
     energy_change : ndarray or numpy scalar
         Change of specific orbital energy, J/kg.
     nu_after : ndarray or numpy scalar
-        True anomaly of the burn point on ``after``, rad in (-pi, pi].
+        True anomaly of the burn point on ``after``, rad in [-pi, pi].
     """
 
     before: Conic = quantity("")
