@@ -17,6 +17,7 @@ from matplotlib.axes import Axes
 from matplotlib.lines import Line2D
 from matplotlib.patches import Circle
 from matplotlib.quiver import Quiver
+from matplotlib.ticker import MaxNLocator
 
 from .._checks import finite, positive
 from ..conic import Conic
@@ -118,6 +119,9 @@ def _body_disc(ax: Axes, body_radius: float | None) -> Circle | None:
 
 def _plane_axes(ax: Axes) -> None:
     ax.set_aspect("equal", adjustable="datalim")
+    # few ticks: six-digit km labels must not run into each other
+    ax.xaxis.set_major_locator(MaxNLocator(nbins=4))
+    ax.yaxis.set_major_locator(MaxNLocator(nbins=5))
     style_axes(ax, xlabel="x (km)", ylabel="y (km)")
 
 

@@ -12,6 +12,7 @@ from typing import Any, NamedTuple
 import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.container import BarContainer
+from matplotlib.lines import Line2D
 
 from ._style import COLOURS, style_axes
 
@@ -23,6 +24,7 @@ class WaterfallArtists(NamedTuple):
 
     remaining: BarContainer
     spent: BarContainer
+    dry: Line2D | None = None
 
 
 def budget_masses(budget: Any) -> tuple[list[str], np.ndarray]:
@@ -81,7 +83,12 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
     ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
     style_axes(ax, ylabel="vehicle mass (kg)")
     ax.grid(False, axis="x")
-    return WaterfallArtists(remaining, spent_bars)
+    dry = None
+    dry_mass = getattr(budget, "dry_mass", None)
+    if dry_mass is not None:
+        dry = ax.axhline(float(dry_mass), color=COLOURS["burn"], linestyle="--", linewidth=1.2, label="dry mass")
+    ax.legend(loc="upper right", fontsize="small", framealpha=0.9)
+    return WaterfallArtists(remaining, spent_bars, dry)
 
 
 def update_budget_waterfall(ax: Axes, artists: WaterfallArtists | None, budget: Any, **kwargs: Any) -> WaterfallArtists:
@@ -100,8 +107,14 @@ def update_budget_waterfall(ax: Axes, artists: WaterfallArtists | None, budget: 
             bar.set_height(s)
         ax.set_xticks(np.arange(len(labels)), labels)
         ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
-        return artists
+        dry_mass = getattr(budget, "dry_mass", None)
+        if (artists.dry is None) == (dry_mass is None):
+            if artists.dry is not None:
+                artists.dry.set_ydata([float(dry_mass)] * 2)
+            return artists
     if artists is not None:
         artists.remaining.remove()
         artists.spent.remove()
+        if artists.dry is not None:
+            artists.dry.remove()
     return plot_budget_waterfall(ax, budget, **kwargs)

@@ -1,0 +1,124 @@
+"""FormulaSheet: the derivation behind a number, typeset, ready for a report.
+
+Choose a catalog entry of :mod:`deltakit.symbolic`; the panel shows its
+assumptions, its steps (each a sentence and the relation SymPy derived), the
+boxed result and the symbols with their units, typeset with the notebook's
+MathJax. Its LaTeX (an ``align*`` block) and Markdown sit in text boxes to copy
+and behind download links.
+
+SymPy loads when the first FormulaSheet is made.
+"""
+
+from __future__ import annotations
+
+import base64
+import html
+from typing import Any
+
+import ipywidgets as widgets
+
+from ._base import Panel
+
+__all__ = ["FormulaSheet"]
+
+
+def _text(sentence: str) -> str:
+    """Sentence text as HTML, keeping its inline ``$...$`` math for MathJax."""
+    return html.escape(sentence, quote=False)
+
+
+def sheet_html(derivation: Any, *, steps: bool = True) -> str:
+    """The derivation as HTML with TeX for MathJax (used by :class:`FormulaSheet`).
+
+    Examples
+    --------
+    >>> from deltakit.symbolic import derive
+    >>> "\\\\boxed" in sheet_html(derive("oberth"))
+    True
+    """
+    d = derivation
+    parts = [f"<h4 style='margin:4px 0'>{html.escape(d.title)}</h4>", "<b>Assumptions</b><ul>"]
+    parts += [f"<li>{_text(a)}</li>" for a in d.assumptions]
+    parts.append("</ul>")
+    if steps:
+        parts.append("<b>Steps</b><ol>")
+        for sentence, relation in d.steps:
+            parts.append(f"<li>{_text(sentence)}<br>$${html.escape(d.tex(relation), quote=False)}$$</li>")
+        parts.append("</ol>")
+    parts.append(f"<b>Result</b>$$\\boxed{{{html.escape(d.result_tex(), quote=False)}}}$$")
+    parts.append("<b>Symbols</b><table>")
+    for info in d.symbols.values():
+        parts.append(f"<tr><td style='padding:0 10px 0 0'>${html.escape(info.latex, quote=False)}$</td>"
+                     f"<td style='padding:0 10px 0 0'>{html.escape(info.meaning, quote=False)}</td>"
+                     f"<td>{html.escape(info.unit or '-', quote=False)}</td></tr>")
+    parts.append("</table>")
+    if d.references:
+        parts.append("<p style='font-size:0.9em'><b>Literature:</b> "
+                     + html.escape("; ".join(d.references), quote=False) + ".</p>")
+    parts.append(f"<p style='font-size:0.9em'>Numeric twin: <code>{html.escape(d.twin)}</code></p>")
+    return "".join(parts)
+
+
+def _download(text: str, filename: str, mime: str, label: str) -> str:
+    data = base64.b64encode(text.encode("utf-8")).decode("ascii")
+    return f'<a download="{html.escape(filename)}" href="data:{mime};base64,{data}">{html.escape(label)}</a>'
+
+
+class FormulaSheet(Panel):
+    """Choose a derivation and read, copy or download it.
+
+    Parameters (keyword-only)
+    -------------------------
+    derivation : str
+        Catalog name (see :func:`deltakit.symbolic.catalog`).
+    steps : bool
+        Show the steps, not only the result.
+
+    ``figure`` is None: this panel shows typeset text, not a plot.
+
+    Examples
+    --------
+    >>> from deltakit.widgets import FormulaSheet
+    >>> sheet = FormulaSheet(derivation="rocket_equation")
+    >>> sheet.results["title"]
+    'Rocket equation (Tsiolkovsky)'
+    """
+
+    def __init__(self, *, derivation: str = "oberth", steps: bool = True) -> None:
+        super().__init__()
+        from ..symbolic import catalog, derive
+
+        self._derive = derive
+        names = list(catalog())
+        # catalog names as labels: deriving every entry just for its title would take seconds
+        options = [(name.replace("_", " "), name) for name in names]
+        self._control("derivation", widgets.Dropdown(options=options, value=derivation, description="derivation",
+                                                     layout=widgets.Layout(width="420px")))
+        self._control("steps", widgets.Checkbox(value=steps, description="show the steps"))
+        self.sheet = widgets.HTMLMath(value="")
+        self.sheet.add_class("deltakit-formula")
+        self.latex_text = widgets.Textarea(value="", description="LaTeX", layout=widgets.Layout(width="100%", height="120px"))
+        self.markdown_text = widgets.Textarea(value="", description="Markdown",
+                                              layout=widgets.Layout(width="100%", height="120px"))
+        self.downloads = widgets.HTML("")
+        self.downloads.add_class("deltakit-download")
+        copy = widgets.Accordion(children=[widgets.VBox([self.latex_text, self.markdown_text])])
+        copy.set_title(0, "LaTeX and Markdown to copy")
+        self._finish("Formula sheet: the derivation behind each number",
+                     [["derivation", "steps"]], extra=[self.sheet, copy, self.downloads])
+
+    def _update(self, changed: set[str]) -> None:
+        v = self.values
+        name = v["derivation"]
+        d = self._derive(name)
+        latex = d.latex(steps=v["steps"])
+        markdown = d.markdown()
+        sheet = sheet_html(d, steps=v["steps"])
+        self.sheet.value = sheet
+        self.latex_text.value = latex
+        self.markdown_text.value = markdown
+        self.downloads.value = (_download(latex, f"{name}.tex", "application/x-tex", "Download LaTeX")
+                                + " &nbsp; " + _download(markdown, f"{name}.md", "text/markdown", "Download Markdown"))
+        self._results = {"name": name, "title": d.title, "result_latex": d.result_tex(), "latex": latex,
+                         "markdown": markdown}
+        self.readouts.value = (f"<div>Result: <b>${html.escape(d.result_tex(), quote=False)}$</b></div>")
