@@ -30,6 +30,8 @@ class Builder:
         if not assumptions:
             assumptions = {"positive": True}
         symbol = sp.Symbol(name, **assumptions)
+        if latex is not None and latex.startswith("\\Delta"):
+            latex = "{" + latex + "}"  # so a power reads (Delta v)^2, not Delta (v^2)
         self.symbols[symbol] = Meaning(meaning, unit, latex if latex is not None else sp.latex(symbol))
         return symbol
 

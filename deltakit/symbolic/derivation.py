@@ -145,22 +145,23 @@ class Derivation:
     def _names(self) -> dict[sp.Symbol, str]:
         return {symbol: info.latex for symbol, info in self.symbols.items()}
 
+    def _latex(self, expr: Any) -> str:
+        # a thin space between factors keeps products of multi-letter symbols
+        # readable (Delta v times v, not "Delta vv")
+        return sp.latex(expr, symbol_names=self._names(), mul_symbol=r"\,")
+
     def tex(self, expr: Any) -> str:
         """LaTeX of an expression or relation with this derivation's symbol names."""
-        names = self._names()
         if isinstance(expr, sp.Rel):
             op = _REL_LATEX.get(expr.rel_op, expr.rel_op)
-            return f"{sp.latex(expr.lhs, symbol_names=names)} {op} {sp.latex(expr.rhs, symbol_names=names)}"
-        return sp.latex(expr, symbol_names=names)
+            return f"{self._latex(expr.lhs)} {op} {self._latex(expr.rhs)}"
+        return self._latex(expr)
 
     def _aligned_rows(self, relation: Any) -> str:
-        names = self._names()
         if isinstance(relation, sp.Rel):
             op = _REL_LATEX.get(relation.rel_op, relation.rel_op)
-            lhs = sp.latex(relation.lhs, symbol_names=names)
-            rhs = sp.latex(relation.rhs, symbol_names=names)
-            return f"{lhs} &{op} {rhs}"
-        return f"&{sp.latex(relation, symbol_names=names)}"
+            return f"{self._latex(relation.lhs)} &{op} {self._latex(relation.rhs)}"
+        return f"&{self._latex(relation)}"
 
     def result_tex(self) -> str:
         """``target = result`` as one LaTeX line (no environment)."""
@@ -177,7 +178,7 @@ class Derivation:
         >>> from deltakit.symbolic import derive
         >>> print(derive("rocket_equation").latex(steps=False))
         \\begin{align*}
-          \\Delta v &= v_{e} \\log{\\left(\\frac{m_{0}}{m_{f}} \\right)}
+          {\\Delta v} &= v_{e}\\,\\log{\\left(\\frac{m_{0}}{m_{f}} \\right)}
         \\end{align*}
         """
         lines = [r"\begin{align*}"]

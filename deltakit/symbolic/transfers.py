@@ -58,7 +58,8 @@ def _hohmann() -> Derivation:
     arrive = b.step("Vis-viva on the transfer ellipse at $r_2$.", v_arrive, _vis_viva(r2, a_value, mu))
     first = b.step("First burn: from the circular speed to the ellipse speed at $r_1$.", burn1, sp.Abs(depart - speed1))
     second = b.step("Second burn: from the ellipse speed to the circular speed at $r_2$.", burn2, sp.Abs(speed2 - arrive))
-    whole = b.step("Total.", total, first + second)
+    b.step("The total is the sum of the two burn magnitudes.", total, burn1 + burn2)
+    whole = first + second
     return b.build(
         result=whole,
         target=total,
@@ -106,7 +107,8 @@ def _bielliptic() -> Derivation:
         burn3,
         sp.Abs(circle.subs(r, r2) - _vis_viva(r2, second_a, mu)),
     )
-    whole = b.step("Total.", total, first + second + third)
+    b.step("The total is the sum of the three burn magnitudes.", total, burn1 + burn2 + burn3)
+    whole = first + second + third
     return b.build(
         result=whole,
         target=total,
