@@ -20,7 +20,7 @@ _NO_GRAVITY = "Straight-line motion with no external force during the ejection (
 
 @entry("rocket_equation", "rocket_dv")
 def _rocket_equation() -> Derivation:
-    b = Builder("rocket_equation", "Rocket equation")
+    b = Builder("rocket_equation", "Rocket equation (Tsiolkovsky)")
     ve = b.symbol("ve", "effective exhaust velocity relative to the vehicle", "m/s", "v_{e}")
     m0 = b.symbol("m0", "mass before the burn", "kg", "m_{0}")
     mf = b.symbol("mf", "mass after the burn", "kg", "m_{f}")
