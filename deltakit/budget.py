@@ -40,6 +40,7 @@ Examples
 
 from __future__ import annotations
 
+import copy
 import json
 import math
 import os
@@ -130,7 +131,7 @@ class BudgetLine:
             "dv_m_per_s": self.dv,
             "ve_m_per_s": self.ve,
             "margin": self.margin,
-            "source": self.source,
+            "source": copy.deepcopy(self.source),  # the caller may edit it freely
         }
 
 
@@ -517,6 +518,10 @@ class Budget:
     def to_latex(self) -> str:
         """The budget as a LaTeX ``tabular`` (no extra packages), with a total row.
 
+        Special characters of labels are escaped; a few symbols analysts type
+        (Δ, δ, μ, °, ±, ×, →, ≈, ≤, ≥) become math so that pdflatex sets them.
+        Line breaks in labels become spaces (also in :meth:`to_markdown`).
+
         Examples
         --------
         >>> from deltakit import Budget
@@ -598,7 +603,7 @@ class Budget:
                 source = entry.get("source", {"kind": "number"})
                 if not isinstance(source, dict) or source.get("kind") not in ("number", "transfer"):
                     raise DomainError(f"line {number} has an unknown source {source!r}")
-                budget._lines.append(replace(line, source=source))
+                budget._lines.append(replace(line, source=copy.deepcopy(source)))
         except KeyError as err:
             raise DomainError(f"{origin} is a damaged deltakit budget: field {err.args[0]!r} is missing") from None
         except DomainError as err:
@@ -671,6 +676,11 @@ def _markdown_escape(text: str) -> str:
 _LATEX_SPECIAL = {
     "\\": r"\textbackslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#", "_": r"\_",
     "{": r"\{", "}": r"\}", "~": r"\textasciitilde{}", "^": r"\textasciicircum{}",
+    # Symbols analysts type in labels that pdflatex cannot set from UTF-8 text;
+    # other non-ASCII text needs a Unicode engine (lualatex, xelatex).
+    "\u0394": r"$\Delta$", "\u03b4": r"$\delta$", "\u03bc": r"$\mu$", "\u00b5": r"$\mu$",
+    "\u00b0": r"$^\circ$", "\u00b1": r"$\pm$", "\u00d7": r"$\times$", "\u2192": r"$\rightarrow$",
+    "\u2248": r"$\approx$", "\u2264": r"$\leq$", "\u2265": r"$\geq$",
 }
 
 

@@ -249,8 +249,25 @@ def test_frame_has_units_in_headers_and_the_numbers():
 
 
 def _markdown_cells(line: str) -> list[str]:
-    cells = re.split(r"(?<!\\)\|", line.strip())[1:-1]
-    return [c.strip().replace("\\|", "|").replace("\\\\", "\\") for c in cells]
+    """Split a pipe-table row; a backslash escapes the next character."""
+    cells, cell, chars = [], "", iter(line.strip())
+    for ch in chars:
+        if ch == "\\":
+            cell += next(chars)
+        elif ch == "|":
+            cells.append(cell.strip())
+            cell = ""
+        else:
+            cell += ch
+    return cells[1:]  # drop the empty text before the leading pipe
+
+
+@given(st.text(st.characters(blacklist_categories=("Cs", "Cc", "Zl", "Zp")), min_size=1, max_size=20))
+def test_markdown_labels_survive_any_text(label):
+    label = label.strip()
+    b = Budget(100.0, 3000.0).add(label, 10.0)
+    table = [line for line in b.to_markdown().splitlines() if line.startswith("|")]
+    assert _markdown_cells(table[2])[1] == label
 
 
 def test_markdown_parses_back():
@@ -303,7 +320,7 @@ def test_latex_parses_back():
 
 @pytest.mark.skipif(shutil.which("pdflatex") is None, reason="pdflatex not installed")
 def test_latex_compiles(tmp_path, artifacts):
-    b = tamsin().add("trim_2 & 5% #1 {x} ~^\\", 1.0)
+    b = tamsin().add("trim_2 & 5% #1 {x} ~^\\", 1.0).add("\u0394v 5\u00b0 \u00b1 1 \u00b5s \u2192 \u2248", 2.0)
     document = "\\documentclass{article}\n\\usepackage[margin=1cm,landscape]{geometry}\n\\begin{document}\n"
     document += "\\scriptsize\n" + b.to_latex() + "\n\\end{document}\n"
     (tmp_path / "budget.tex").write_text(document)
