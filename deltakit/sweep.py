@@ -35,6 +35,7 @@ import shutil
 import sys
 import tempfile
 import types
+import warnings
 from collections.abc import Callable, Mapping
 from pathlib import Path
 from typing import Any
@@ -127,9 +128,17 @@ def _arrays(result: Any, name: str, shape: tuple[int, ...]) -> dict[str, np.ndar
 
 # ---------------------------------------------------------------------- axes
 def _function_name(function: Callable[..., Any]) -> str:
-    inner = function.func if hasattr(function, "func") else function  # functools.partial
-    name = getattr(inner, "__name__", "value")
+    while isinstance(function, functools.partial):
+        function = function.func
+    name = getattr(function, "__name__", "value")
     return "value" if name == "<lambda>" else name
+
+
+def _function_path(function: Callable[..., Any]) -> str:
+    while isinstance(function, functools.partial):
+        function = function.func
+    module = getattr(function, "__module__", None) or ""
+    return f"{module}.{_function_name(function)}".lstrip(".")
 
 
 def _check_parameters(function: Callable[..., Any], names: list[str]) -> None:
@@ -289,6 +298,10 @@ def sweep(
     """
     xr, da = _import_scale()
     fixed = dict(fixed or {})
+    if isinstance(function, functools.partial) and not function.args:
+        # unwrap, so the partial's keywords are recorded like any fixed value
+        fixed = {**function.keywords, **fixed}
+        function = function.func
     units = dict(units or {})
     swept: dict[str, np.ndarray] = {}
     for key, value in axes.items():
@@ -324,11 +337,14 @@ def sweep(
         pattern = []
         for position, axis in enumerate(axis_arrays):
             pattern += [axis, (position,)]
-        raw = da.blockwise(
-            functools.partial(_block, function, fixed, dims, result_name),
-            tuple(range(len(dims))), *pattern,
-            dtype=object, meta=np.empty((0,) * len(dims), dtype=object), concatenate=True,
-        )
+        with warnings.catch_warnings():
+            # an outer product has many more blocks than its 1-D axes: that is the point
+            warnings.filterwarnings("ignore", "Increasing number of chunks", category=Warning)
+            raw = da.blockwise(
+                functools.partial(_block, function, fixed, dims, result_name),
+                tuple(range(len(dims))), *pattern,
+                dtype=object, meta=np.empty((0,) * len(dims), dtype=object), concatenate=True,
+            )
         data = {
             key: raw.map_blocks(_pick, key, dtype=dtype, meta=np.empty((0,) * len(dims), dtype=dtype))
             for key, (dtype, _) in fields.items()
@@ -354,7 +370,7 @@ def sweep(
 
     attrs = {
         _TAG: _FORMAT_VERSION,
-        "function": f"{getattr(function, '__module__', '') or ''}.{_function_name(function)}".lstrip("."),
+        "function": _function_path(function),
         "caution": "Preliminary analysis only, not for flight operations.",
     }
     if others:
@@ -370,6 +386,14 @@ def _read_tag(path: Path, xr: Any) -> Any:
             return ds.attrs.get(_TAG)
     except Exception:  # anything unreadable is not ours
         return None
+
+
+def _missing_chunks(path: Path) -> list[str]:
+    """Names of the stored arrays with fewer chunks on disk than their shape needs."""
+    import zarr
+
+    group = zarr.open_group(path, mode="r")
+    return [name for name, array in group.arrays() if array.nchunks_initialized < array.nchunks]
 
 
 def save_sweep(dataset: Any, path: str | os.PathLike[str]) -> Path:
@@ -420,7 +444,8 @@ def save_sweep(dataset: Any, path: str | os.PathLike[str]) -> Path:
     path.parent.mkdir(parents=True, exist_ok=True)
     temporary = Path(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent))
     try:
-        dataset.to_zarr(temporary, mode="w", consolidated=False)
+        # every chunk written, even all-NaN ones, so a missing chunk reveals damage
+        dataset.to_zarr(temporary, mode="w", consolidated=False, write_empty_chunks=True)
         if _read_tag(temporary, xr) != dataset.attrs[_TAG]:  # read back before it replaces anything
             raise OSError(f"save_sweep: the store written to {temporary} does not read back")
         if path.exists():
@@ -476,6 +501,10 @@ def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> Any:
         raise DomainError(
             f"open_sweep: {path} has sweep format version {version!r}; this deltakit reads 1 to {_FORMAT_VERSION}"
         )
+    missing = _missing_chunks(path)
+    if missing:
+        dataset.close()
+        raise DomainError(f"open_sweep: {path} is corrupt: chunks missing in {', '.join(missing)}")
     if chunks is None:
         try:
             dataset = dataset.load()

@@ -1,0 +1,341 @@
+"""deltakit.sweep: labelled grids equal the NumPy broadcast, lazily, on a cluster, saved.
+
+The reference for every sweep is the same function called by hand on an open
+grid (``np.ix_`` shapes): a sweep must give exactly those numbers, element for
+element, whether it is evaluated eagerly, block by block with dask, or on a
+dask.distributed cluster.
+"""
+
+from __future__ import annotations
+
+import functools
+import json
+import shutil
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+xr = pytest.importorskip("xarray")
+da = pytest.importorskip("dask.array")
+
+import deltakit as dk  # noqa: E402
+import deltakit.sweep as sweep_module  # noqa: E402
+from deltakit import DomainError  # noqa: E402
+from deltakit.constants import EARTH, MARS  # noqa: E402
+from deltakit.sweep import KNOWN_UNITS, open_sweep, save_sweep  # noqa: E402
+
+MU = EARTH.mu
+R1 = np.linspace(6700e3, 9000e3, 7)
+R2 = np.geomspace(10000e3, 400000e3, 5)
+NU = np.linspace(0.0, 2.0 * np.pi, 24, endpoint=False)
+DV = np.array([-300.0, -20.0, 0.0, 50.0, 400.0])
+
+
+def orbit_energy(nu, dv, rp, ra, mu):
+    """An analyst's own function built from the numeric layer."""
+    return dk.burn_prograde(dk.Conic.from_apsides(rp, ra, mu), nu, dv).energy_change
+
+
+def assert_same(a, b):
+    """Element for element, NaN where NaN."""
+    np.testing.assert_array_equal(np.asarray(a), np.asarray(b))
+
+
+# ---------------------------------------------------------------------- equals the broadcast
+def test_transfer_fields_equal_the_broadcast_and_carry_units():
+    ds = dk.sweep(dk.hohmann, r1=R1, r2=R2, mu=MU)
+    direct = dk.hohmann(R1[:, None], R2[None, :], MU)
+    assert set(ds.data_vars) == {"burn_1", "burn_2", "total", "duration"}
+    assert ds["total"].dims == ("r1", "r2")
+    assert_same(ds["burn_1"], direct.burns[0])
+    assert_same(ds["burn_2"], direct.burns[1])
+    assert_same(ds["total"], direct.total)
+    assert_same(ds["duration"], direct.duration)
+    # units from the Transfer field metadata and the table of parameter names
+    assert ds["burn_2"].attrs["units"] == "m/s"
+    assert ds["duration"].attrs["units"] == "s"
+    assert ds["r1"].attrs["units"] == "m"
+    assert ds["mu"].attrs["units"] == "m^3/s^2"
+    assert float(ds["mu"]) == MU  # the fixed value stays in the dataset
+
+
+def test_nested_result_and_fixed_object():
+    """burn_prograde over nu x dv on one orbit: nested Conic fields get prefixes."""
+    gto = dk.Conic.from_apsides(EARTH.radius + 250e3, 42164e3, EARTH.mu)
+    ds = dk.sweep(dk.burn_prograde, fixed={"conic": gto}, nu=NU, dv=DV)
+    direct = dk.burn_prograde(gto, NU[:, None], DV[None, :])
+    for name in ("after_rp", "after_e", "after_argp", "energy_change", "nu_after"):
+        assert name in ds
+    assert_same(ds["after_e"], direct.after.e)
+    assert_same(ds["after_argp"], direct.after.argp)
+    assert_same(ds["energy_change"], direct.energy_change)
+    assert ds["energy_change"].attrs["units"] == "J/kg"
+    assert ds["after_rp"].attrs["units"] == "m"
+    assert "Conic" in ds.attrs["fixed"]
+    # the `nu` and `dv` fields would collide with the axes: they are renamed, not lost
+    assert_same(ds["dv_out"], np.broadcast_to(np.abs(DV), (NU.size, DV.size)))
+
+
+def test_plain_array_dict_and_tuple_results():
+    plain = dk.sweep(dk.propellant_mass, dv=[100.0, 900.0], ve=[2900.0, 3100.0, 4400.0], m0=1500.0)
+    assert_same(plain["propellant_mass"], dk.propellant_mass(np.array([100.0, 900.0])[:, None],
+                                                             np.array([2900.0, 3100.0, 4400.0]), m0=1500.0))
+    assert plain["propellant_mass"].attrs["units"] == "kg"
+
+    def books(dv, ve):
+        return {"fraction": -np.expm1(-dv / ve), "ratio": np.exp(dv / ve)}
+
+    as_dict = dk.sweep(books, dv=[100.0, 900.0], ve=[3000.0], units={"fraction": "1"})
+    assert set(as_dict.data_vars) == {"fraction", "ratio"}
+    assert as_dict["fraction"].attrs == {"units": "1"}
+    assert "units" not in as_dict["ratio"].attrs
+
+    conic = dk.Conic.from_apsides(7000e3, 20000e3, MU)
+    as_tuple = dk.sweep(lambda nu: conic.velocity(nu), nu=NU, name="velocity")
+    radial, transverse = conic.velocity(NU)
+    assert_same(as_tuple["velocity_1"], radial)
+    assert_same(as_tuple["velocity_2"], transverse)
+
+
+def test_partial_with_scalar_results_broadcasts_over_the_grid():
+    """A field that does not depend on an axis is spread over it (no meshgrid by the caller)."""
+    ds = dk.sweep(functools.partial(dk.hohmann, mu=MARS.mu), r1=[MARS.radius + 300e3], r2=[2e7, 3e7])
+    assert ds["total"].shape == (1, 2)
+    assert ds.attrs["function"] == "deltakit.transfers.hohmann"
+    assert float(ds["mu"]) == MARS.mu  # the partial's keyword is kept like a fixed value
+
+
+@given(
+    sizes=st.lists(st.integers(1, 6), min_size=4, max_size=4),
+    dv_span=st.floats(-500.0, 2000.0),
+    seed=st.integers(0, 2**32 - 1),
+)
+@settings(max_examples=60)
+def test_any_grid_equals_the_open_grid_broadcast(sizes, dv_span, seed):
+    rng = np.random.default_rng(seed)
+    nu = rng.uniform(-np.pi, np.pi, sizes[0])
+    dv = np.linspace(-abs(dv_span) / 4, dv_span, sizes[1])
+    rp = rng.uniform(6600e3, 9000e3, sizes[2])
+    ra = rng.uniform(9000e3, 50000e3, sizes[3])
+    ds = dk.sweep(orbit_energy, nu=nu, dv=dv, rp=rp, ra=ra, mu=MU)
+    grid = np.ix_(nu, dv, rp, ra)
+    assert_same(ds["orbit_energy"], orbit_energy(*grid, MU))
+    assert list(ds.dims) == ["nu", "dv", "rp", "ra"]
+
+
+# ---------------------------------------------------------------------- lazy, chunked
+@pytest.mark.parametrize("chunks", ["auto", 7, 100, {"nu": 5, "ra": 2}, {"rp": -1, "nu": 24}])
+def test_chunked_equals_eager(chunks):
+    axes = dict(nu=NU, dv=DV, rp=R1, ra=np.geomspace(9500e3, 60000e3, 6))
+    eager = dk.sweep(orbit_energy, mu=MU, **axes)
+    lazy = dk.sweep(orbit_energy, mu=MU, chunks=chunks, **axes)
+    assert isinstance(lazy["orbit_energy"].data, da.Array)
+    assert isinstance(eager["orbit_energy"].data, np.ndarray)
+    assert_same(lazy["orbit_energy"].compute(), eager["orbit_energy"])
+    # reductions are the same too (computed block by block)
+    assert_same(lazy["orbit_energy"].max("nu").compute(), eager["orbit_energy"].max("nu"))
+    assert lazy["orbit_energy"].attrs == eager["orbit_energy"].attrs
+
+
+def test_multi_field_lazy_sweep_computes_each_block_once():
+    calls = []
+
+    def counted(r1, r2):
+        calls.append(np.size(r1) * np.size(r2))
+        return dk.hohmann(r1, r2, MU)
+
+    lazy = dk.sweep(counted, r1=R1, r2=R2, chunks={"r1": 4})
+    calls.clear()
+    computed = lazy.compute()
+    eager = dk.sweep(functools.partial(dk.hohmann, mu=MU), r1=R1, r2=R2)
+    for name in ("burn_1", "burn_2", "total", "duration"):
+        assert_same(computed[name], eager[name])
+    assert len(calls) == 2  # two blocks, four fields: one call per block
+
+
+def test_large_grid_goes_lazy_by_itself(monkeypatch):
+    monkeypatch.setattr(sweep_module, "EAGER_LIMIT", 100)
+    ds = dk.sweep(dk.hohmann, r1=R1, r2=np.geomspace(1e7, 1e9, 20), mu=MU)
+    assert isinstance(ds["total"].data, da.Array)
+    forced = dk.sweep(dk.hohmann, r1=R1, r2=np.geomspace(1e7, 1e9, 20), mu=MU, chunks=False)
+    assert isinstance(forced["total"].data, np.ndarray)
+    assert_same(ds["total"].compute(), forced["total"])
+
+
+def test_a_ten_billion_case_sweep_is_built_without_computing_it():
+    """Building the sweep costs nothing; one element computes one small block."""
+    n = 320  # 320**4 = 1.05e10 cases, 84 GB if it were materialised
+    axes = dict(
+        nu=np.linspace(0, 2 * np.pi, n, endpoint=False),
+        dv=np.linspace(1.0, 1000.0, n),
+        rp=np.linspace(6600e3, 8000e3, n),
+        ra=np.linspace(8000e3, 60000e3, n),
+    )
+    ds = dk.sweep(orbit_energy, mu=MU, **axes)
+    assert ds["orbit_energy"].size > 10**10
+    assert np.prod(ds["orbit_energy"].data.chunksize) <= sweep_module._BLOCK_CASES  # bounded blocks
+    one = ds["orbit_energy"].isel(nu=17, dv=200, rp=3, ra=n - 1).compute()
+    expected = orbit_energy(axes["nu"][17], axes["dv"][200], axes["rp"][3], axes["ra"][n - 1], MU)
+    assert float(one) == pytest.approx(float(expected), rel=1e-15)
+
+
+# ---------------------------------------------------------------------- on a cluster
+@pytest.mark.slow
+def test_local_cluster_run_equals_local_run():
+    distributed = pytest.importorskip("dask.distributed")
+    axes = dict(nu=NU, dv=DV, rp=R1, ra=np.geomspace(9500e3, 60000e3, 6))
+    local = dk.sweep(orbit_energy, mu=MU, chunks={"rp": 2}, **axes)
+    expected = local["orbit_energy"].max("nu").compute(scheduler="sync")
+    with distributed.LocalCluster(
+        n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None, memory_limit="1GiB"
+    ) as cluster, distributed.Client(cluster) as client:
+        on_cluster = dk.sweep(orbit_energy, mu=MU, chunks={"rp": 2}, **axes)
+        with distributed.get_task_stream(client) as stream:
+            result = on_cluster["orbit_energy"].max("nu").compute()  # the active Client picks it up
+    workers_used = {task["worker"] for task in stream.data}
+    assert len(workers_used) == 2  # both worker processes evaluated blocks
+    assert_same(result, expected)
+
+
+# ---------------------------------------------------------------------- bad input
+def test_errors_name_the_parameter():
+    with pytest.raises(TypeError, match="`rx` is not a keyword parameter of hohmann"):
+        dk.sweep(dk.hohmann, r1=R1, rx=R2, mu=MU)
+    with pytest.raises(DomainError, match="sweep axis `r2` must be 1-D"):
+        dk.sweep(dk.hohmann, r1=R1, r2=np.ones((2, 2)), mu=MU)
+    with pytest.raises(DomainError, match="sweep axis `r2` must have at least one value"):
+        dk.sweep(dk.hohmann, r1=R1, r2=[], mu=MU)
+    with pytest.raises(TypeError, match="at least one 1-D axis"):
+        dk.sweep(dk.hohmann, r1=7e6, r2=8e6, mu=MU)
+    with pytest.raises(TypeError, match="`mu` given both"):
+        dk.sweep(dk.hohmann, r1=R1, r2=R2, mu=MU, fixed={"mu": MU})
+    with pytest.raises(ValueError, match="`chunks` names \\['rr'\\]"):
+        dk.sweep(dk.hohmann, r1=R1, r2=R2, mu=MU, chunks={"rr": 2})
+    with pytest.raises(ValueError, match="`chunks` must be"):
+        dk.sweep(dk.hohmann, r1=R1, r2=R2, mu=MU, chunks=-3)
+    # the function's own domain checks reach the analyst, naming its parameter
+    with pytest.raises(DomainError, match="`r2` must be > 0"):
+        dk.sweep(dk.hohmann, r1=R1, r2=[-1.0, 2e7], mu=MU)
+
+
+def test_known_units_cover_the_design_vocabulary():
+    for name in ("nu", "dv", "rp", "ra", "r1", "r2", "rb", "mu", "ve", "isp", "m0", "mf", "thrust", "vinf"):
+        assert name in KNOWN_UNITS
+
+
+def test_module_and_function_are_both_callable():
+    """Importing deltakit.sweep as a module must not shadow the function."""
+    import deltakit.trades  # noqa: F401  (imports the module deltakit.sweep)
+
+    ds = dk.sweep(dk.circular_speed, r=[7e6], mu=MU)
+    assert float(ds["circular_speed"][0]) == pytest.approx(float(dk.circular_speed(7e6, MU)))
+    assert_same(sweep_module(dk.circular_speed, r=[7e6], mu=MU)["circular_speed"], ds["circular_speed"])
+
+
+# ---------------------------------------------------------------------- save and reopen
+def test_round_trip_keeps_values_coords_and_attrs(tmp_path):
+    gto = dk.Conic.from_apsides(EARTH.radius + 250e3, 42164e3, EARTH.mu)
+    ds = dk.sweep(dk.burn_prograde, fixed={"conic": gto}, nu=NU, dv=DV)
+    path = save_sweep(ds, tmp_path / "burns.zarr")
+    back = open_sweep(path)
+    xr.testing.assert_identical(back, ds)
+    assert back["energy_change"].attrs["units"] == "J/kg"
+    assert back["nu"].attrs["units"] == "rad"
+    assert not list(tmp_path.glob(".*"))  # no temporary left behind
+
+
+def test_lazy_sweep_streams_to_disk_and_reopens_lazily(tmp_path):
+    lazy = dk.sweep(orbit_energy, nu=NU, dv=DV, rp=R1, ra=np.geomspace(9500e3, 60000e3, 6), mu=MU,
+                    chunks={"rp": 3})
+    path = save_sweep(lazy, tmp_path / "grid.zarr")
+    back = open_sweep(path, chunks={})
+    assert isinstance(back["orbit_energy"].data, da.Array)
+    xr.testing.assert_identical(back.compute(), lazy.compute())
+    back.close()
+
+
+def test_bool_and_nan_survive(tmp_path):
+    ds = dk.sweep(dk.bielliptic, r1=[7e6], r2=[7e7, 1e8], rb=[5e7, 2e8], mu=MU)
+    ds["cheaper"] = ds["total"] < 4000.0
+    assert np.isnan(ds["total"].values).any()
+    back = open_sweep(save_sweep(ds, tmp_path / "b.zarr"))
+    xr.testing.assert_identical(back, ds)
+    assert back["cheaper"].dtype == bool
+
+
+def test_overwrites_a_sweep_but_refuses_anything_else(tmp_path):
+    first = dk.sweep(dk.circular_speed, r=[7e6, 8e6], mu=MU)
+    second = dk.sweep(dk.circular_speed, r=[9e6], mu=MU)
+    path = tmp_path / "s.zarr"
+    save_sweep(first, path)
+    save_sweep(second, path)
+    xr.testing.assert_identical(open_sweep(path), second)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["s.zarr"]
+
+    notes = tmp_path / "notes.zarr"
+    notes.write_text("an analyst's notes")
+    with pytest.raises(DomainError, match="refusing to overwrite .*not a deltakit sweep"):
+        save_sweep(first, notes)
+    assert notes.read_text() == "an analyst's notes"
+
+    foreign = tmp_path / "foreign.zarr"
+    xr.Dataset({"x": ("i", [1.0, 2.0])}).to_zarr(foreign, consolidated=False)
+    with pytest.raises(DomainError, match="not a deltakit sweep"):
+        save_sweep(first, foreign)
+    with pytest.raises(DomainError, match="not a deltakit sweep"):
+        open_sweep(foreign)
+    assert xr.open_zarr(foreign, consolidated=False)["x"].values.tolist() == [1.0, 2.0]
+
+    with pytest.raises(DomainError, match="`dataset` must be a deltakit sweep"):
+        save_sweep(xr.Dataset({"x": ("i", [1.0])}), tmp_path / "new.zarr")
+
+
+def test_failed_save_leaves_the_old_sweep(tmp_path, monkeypatch):
+    old = dk.sweep(dk.circular_speed, r=[7e6, 8e6], mu=MU)
+    path = save_sweep(old, tmp_path / "s.zarr")
+
+    def broken(self, *args, **kwargs):
+        raise OSError("disk full")
+
+    monkeypatch.setattr(xr.Dataset, "to_zarr", broken)
+    with pytest.raises(OSError, match="disk full"):
+        save_sweep(dk.sweep(dk.circular_speed, r=[9e6], mu=MU), path)
+    monkeypatch.undo()
+    xr.testing.assert_identical(open_sweep(path), old)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["s.zarr"]
+
+
+def test_corrupt_or_newer_store_is_refused_untouched(tmp_path):
+    ds = dk.sweep(dk.circular_speed, r=np.linspace(7e6, 9e6, 50), mu=MU)
+    path = save_sweep(ds, tmp_path / "s.zarr")
+    meta = path / "zarr.json"
+    content = json.loads(meta.read_text())
+    content["attributes"]["deltakit_sweep"] = 99
+    meta.write_text(json.dumps(content))
+    with pytest.raises(DomainError, match="format version 99"):
+        open_sweep(path)
+
+    path2 = save_sweep(ds, tmp_path / "t.zarr")
+    (path2 / "zarr.json").write_text("{ truncated")
+    before = (path2 / "zarr.json").read_bytes()
+    with pytest.raises(DomainError, match="not a readable Zarr store"):
+        open_sweep(path2)
+    assert (path2 / "zarr.json").read_bytes() == before
+
+    # a lost chunk would otherwise read back as fill values: refused instead
+    path3 = save_sweep(ds, tmp_path / "u.zarr")
+    shutil.rmtree(path3 / "circular_speed" / "c")
+    with pytest.raises(DomainError, match="corrupt: chunks missing in circular_speed"):
+        open_sweep(path3)
+
+    # a damaged chunk does not decode
+    path4 = save_sweep(ds, tmp_path / "v.zarr")
+    chunk_files = [p for p in (path4 / "circular_speed" / "c").rglob("*") if p.is_file()]
+    chunk_files[0].write_bytes(b"garbage" * 3)
+    with pytest.raises(DomainError, match="corrupt"):
+        open_sweep(path4)
+
+    with pytest.raises(FileNotFoundError):
+        open_sweep(tmp_path / "missing.zarr")
