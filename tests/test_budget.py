@@ -449,3 +449,32 @@ def test_repr_and_markdown_hook():
     assert "Tamsin relay tug" in repr(b) and "m/s" in repr(b) and "kg" in repr(b)
     assert b._repr_markdown_() == b.to_markdown()
     assert io.StringIO(b.to_markdown()).read().count("\n") == len(b) + 4
+
+
+line_strategy = st.tuples(
+    st.text(max_size=30),
+    st.floats(0.0, 1e4),
+    st.one_of(st.none(), st.floats(100.0, 1e5)),
+    st.floats(0.0, 2.0),
+)
+
+
+@given(
+    m0=st.floats(1.0, 1e6),
+    ve=st.floats(100.0, 1e5),
+    name=st.text(max_size=30),
+    lines=st.lists(line_strategy, max_size=6),
+)
+def test_any_budget_round_trips_through_a_file(m0, ve, name, lines):
+    import tempfile
+
+    b = Budget(m0, ve, name=name)
+    for label, dv, line_ve, margin in lines:
+        b.add(label, dv, ve=line_ve, margin=margin)
+    with tempfile.TemporaryDirectory() as folder:
+        path = b.save(Path(folder) / "b.json")
+        loaded = Budget.load(path)
+        assert os.listdir(folder) == ["b.json"]
+    assert loaded == b
+    np.testing.assert_array_equal(loaded.mass_after, b.mass_after)
+    assert loaded.name == name and loaded.lines == b.lines
