@@ -77,6 +77,8 @@ _COLUMNS = (
 
 def _number(value: Any, name: str, unit: str, *, minimum: float | None = None, strict: bool = False) -> float:
     """One finite real number (a 0-d or size-1 array is accepted)."""
+    if isinstance(value, (str, bytes, bool, np.bool_)):  # "1000" or True must not pass as a number
+        raise DomainError(f"`{name}` must be a real number, got {value!r}")
     try:
         array = np.asarray(value, dtype=float)
     except (TypeError, ValueError) as err:

@@ -213,6 +213,8 @@ def test_settings_can_be_changed():
         (lambda b: b.add("x", 1.0, margin=-0.1), "margin"),
         (lambda b: b.add("x", 1.0, ve=0.0), "ve"),
         (lambda b: b.add(3, 1.0), "label"),
+        (lambda b: b.add("x", "12"), "dv_or_transfer"),
+        (lambda b: b.add("x", True), "dv_or_transfer"),
         (lambda b: b.remove(10), "index"),
         (lambda b: b.move(0, 10), "new_index"),
         (lambda b: b.update(0, thrust=3.0), "update"),
@@ -374,6 +376,7 @@ def _damaged(good: bytes) -> dict[str, tuple[bytes, str]]:
     negative = dict(data, m0_kg=-5.0)
     missing = {k: v for k, v in data.items() if k != "lines"}
     bad_line = dict(data, lines=[dict(data["lines"][0], margin="lots")])
+    text_mass = dict(data, m0_kg="1450")
     return {
         "garbage": (b"\x00\x01not json at all", "corrupt|not UTF-8|not a deltakit"),
         "truncated": (good[: len(good) // 2], "corrupt or truncated"),
@@ -384,6 +387,7 @@ def _damaged(good: bytes) -> dict[str, tuple[bytes, str]]:
         "negative mass": (json.dumps(negative).encode(), "damaged.*`m0`"),
         "missing lines": (json.dumps(missing).encode(), "damaged.*'lines'"),
         "bad margin": (json.dumps(bad_line).encode(), "damaged.*`margin`"),
+        "mass as text": (json.dumps(text_mass).encode(), "damaged.*`m0`"),
     }
 
 
