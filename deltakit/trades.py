@@ -227,8 +227,9 @@ def bielliptic_break_even(r2_ratio: ArrayLike, rb_ratio: ArrayLike, *, chunks: A
     import xarray as xr  # the sweep above has already required it
 
     wins = (advantage > _TIE).assign_attrs(long_name="bi-elliptic cheaper than Hohmann")
+    rows = advantage.chunk({"rb_ratio": -1}) if advantage.chunks else advantage  # whole rb rows per block
     rb_break_even = xr.apply_ufunc(
-        _break_even_rb, advantage, grid["rb_ratio"],
+        _break_even_rb, rows, grid["rb_ratio"],
         input_core_dims=[["rb_ratio"], ["rb_ratio"]], dask="parallelized", output_dtypes=[float],
     ).assign_attrs(units="1", long_name="rb/r1 from which every bi-elliptic on the grid beats Hohmann")
     beyond_r2 = grid["rb_ratio"] > grid["r2_ratio"] * (1.0 + 1e-9)
