@@ -152,3 +152,348 @@ def test_explorer_figure_saved(explorer, artifacts):
 def test_set_refuses_unknown_names(explorer):
     with pytest.raises(TypeError, match="unknown names"):
         explorer.set(altitude=1.0)
+
+
+# ---------------------------------------------------------------------- PropellantTrade
+@pytest.fixture
+def trade():
+    return dk.widgets.PropellantTrade()
+
+
+def test_propellant_default_matches_numeric_layer(trade):
+    v = trade.values
+    m0 = v["dry_mass"] + v["propellant_mass"]
+    ve = float(dk.exhaust_velocity(v["isp"]))
+    r = trade.results
+    assert trade.error == ""
+    assert r["dv"] == pytest.approx(float(dk.rocket_dv(ve, m0, v["dry_mass"])), rel=1e-12)
+    split = dk.burn_energy(m0, v["dry_mass"], ve, v["speed"])
+    assert r["energy_vehicle"] == pytest.approx(float(split.vehicle), rel=1e-9)
+    assert r["energy_exhaust"] == pytest.approx(float(split.ejecta), rel=1e-9)
+    assert r["efficiency_start"] == pytest.approx(float(dk.propulsive_efficiency(v["speed"], ve)), rel=1e-12)
+    widths = [bar.get_width() for bar in trade._bars]
+    np.testing.assert_allclose(widths, np.array([split.vehicle, split.ejecta, split.total]) / 1e9, rtol=1e-9)
+    assert readout_text(trade, "dv") == fmt(r["dv"], 1.0, "m/s")
+    check_common(trade)
+
+
+def test_propellant_rocket_equation_by_hand(trade):
+    # ve = Isp g0 with g0 = 9.80665 m/s^2 exactly (ISO 80000-3); dv = ve ln(m0/mf)
+    trade.set(dry_mass=1000.0, mass_input="mass ratio", mass_ratio=math.e, isp=300.0, speed=0.0)
+    assert trade.results["dv"] == pytest.approx(300.0 * 9.80665, rel=1e-9)
+    # the propellant box follows the ratio: m0 - mf = (e - 1) mf
+    assert trade.values["propellant_mass"] == pytest.approx((math.e - 1.0) * 1000.0, rel=1e-6)
+    assert trade.controls["propellant_mass"].disabled and not trade.controls["mass_ratio"].disabled
+
+
+def test_propellant_energy_released_does_not_depend_on_speed(trade):
+    trade.set(speed=0.0)
+    at_rest = trade.results
+    trade.set(speed=9000.0)
+    moving = trade.results
+    # total = 0.5 (m0 - mf) ve^2 whatever the speed (DESIGN.md, burn_energy)
+    assert moving["energy_total"] == pytest.approx(at_rest["energy_total"], rel=1e-12)
+    assert moving["energy_vehicle"] > at_rest["energy_vehicle"]
+    assert trade._now.get_xdata()[0] == pytest.approx(9000.0 / moving["exhaust_velocity"])
+
+
+def test_propellant_exhaust_velocity_input(trade):
+    trade.set(exhaust_input="exhaust velocity", exhaust_velocity=4400.0)
+    assert trade.results["exhaust_velocity"] == 4400.0
+    assert trade.values["isp"] == pytest.approx(4400.0 / 9.80665, rel=1e-6)
+
+
+@pytest.mark.parametrize("bad, words", [({"dry_mass": 0.0}, "dry mass"),
+                                        ({"mass_input": "mass ratio", "mass_ratio": 0.5}, "mass ratio"),
+                                        ({"isp": -3.0}, "specific impulse")])
+def test_propellant_invalid_input(trade, bad, words):
+    results = trade.results
+    trade.set(**bad)
+    assert words in trade.error and trade.results == results
+    trade.set(dry_mass=900.0, mass_input="propellant mass", isp=310.0)
+    assert trade.error == ""
+
+
+def test_propellant_figure_saved(trade, artifacts):
+    trade.figure.savefig(artifacts / "propellant_trade.png", dpi=100)
+
+
+# ---------------------------------------------------------------------- TransferTrade
+@pytest.fixture(scope="module")
+def transfer():
+    return dk.widgets.TransferTrade()
+
+
+def test_transfer_textbook_hohmann(transfer):
+    # Vallado, Fundamentals of Astrodynamics and Applications, 4th ed., Example 6-1:
+    # 191.34411 km to 35 781.34857 km altitude, total 3.935224 km/s (quoted from memory).
+    transfer.set(body="Earth", r1=6378.137e3 + 191.34411e3, r2=6378.137e3 + 35781.34857e3, rb=100000e3,
+                 plane_change=0.0)
+    assert transfer.results["hohmann_total"] == pytest.approx(3935.224, rel=2e-5)
+    assert transfer.results["best_split"] == 0.0
+
+
+def test_transfer_matches_numeric_layer_and_artists(transfer):
+    transfer.set(body="Earth", r1=7000e3, r2=105000e3, rb=210000e3, plane_change=20 * DEG)
+    v = transfer.values
+    r = transfer.results
+    h = dk.hohmann(v["r1"], v["r2"], EARTH.mu)
+    b = dk.bielliptic(v["r1"], v["r2"], v["rb"], EARTH.mu)
+    assert r["hohmann_total"] == pytest.approx(float(h.total), rel=1e-12)
+    assert r["bielliptic_total"] == pytest.approx(float(b.total), rel=1e-12)
+    from deltakit.transfers import best_plane_change_split, hohmann_plane_change
+
+    best = float(best_plane_change_split(v["r1"], v["r2"], EARTH.mu, v["plane_change"]))
+    assert r["best_split"] == pytest.approx(best)
+    split_y = transfer._split_curve.get_ydata()
+    np.testing.assert_allclose(
+        split_y, hohmann_plane_change(v["r1"], v["r2"], EARTH.mu, v["plane_change"], np.linspace(0, 1, 201)).total / 1e3
+    )
+    assert transfer._ratio_now.get_xdata()[0] == pytest.approx(15.0)
+    # the drawn Hohmann arc ends on the final orbit
+    hx, hy = transfer._transfer.hohmann.get_data()
+    assert math.hypot(hx[-1], hy[-1]) == pytest.approx(105000.0)
+    # past the published ratio 15.58 every bi-elliptic beats Hohmann (Vallado, 4th ed., Sec. 6.3.2)
+    assert r["bielliptic_saving"] > 0.0
+
+
+def test_transfer_bielliptic_needs_high_intermediate_radius(transfer):
+    transfer.set(r1=7000e3, r2=42164e3, rb=30000e3, plane_change=0.0)
+    assert transfer.error == ""
+    assert math.isnan(transfer.results["bielliptic_total"])
+    assert "intermediate radius" in transfer.readouts.value
+    assert transfer.export()["results"]["bielliptic_total"] is None
+    json.dumps(transfer.export(), allow_nan=False)
+
+
+def test_transfer_invalid_radius_inside_body(transfer):
+    transfer.set(r1=7000e3, r2=42164e3, rb=90000e3)
+    results = transfer.results
+    transfer.set(r1=1000e3)
+    assert "inside Earth" in transfer.error and transfer.results == results
+    transfer.set(r1=7000e3)
+    assert transfer.error == ""
+
+
+def test_transfer_common_contract(transfer, artifacts):
+    transfer.set(body="Earth", r1=EARTH.radius + 400e3, r2=120000e3, rb=240000e3, plane_change=28.5 * DEG)
+    transfer.figure.savefig(artifacts / "transfer_trade.png", dpi=100)
+    check_common(transfer)
+
+
+# ---------------------------------------------------------------------- EscapeFlyby
+@pytest.fixture
+def escape():
+    return dk.widgets.EscapeFlyby()
+
+
+def test_escape_matches_numeric_layer(escape):
+    v = escape.values
+    from deltakit.constants import BODIES as bodies
+
+    body = bodies[v["body"]]
+    rp, ra = body.radius + v["periapsis_altitude"], body.radius + v["apoapsis_altitude"]
+    r = escape.results
+    assert r["dv_periapsis"] == pytest.approx(float(dk.escape_burn(rp, v["vinf"], body.mu, ra)), rel=1e-12)
+    assert r["dv_far"] == pytest.approx(float(dk.escape_burn(rp, 0.0, body.mu, ra)) + v["vinf"], rel=1e-12)
+    flyby = dk.powered_flyby(v["vinf"], body.radius + v["flyby_altitude"], v["flyby_dv"], body.mu)
+    assert r["gain"] == pytest.approx(float(flyby.gain), rel=1e-12)
+    assert r["deflection"] == pytest.approx(float(flyby.deflection), rel=1e-12)
+    x, y = escape._flyby_now.get_data()
+    assert y[0] == pytest.approx(float(flyby.gain))
+    check_common(escape)
+
+
+def test_escape_from_circle_with_zero_excess_is_root_two_minus_one(escape):
+    # escape from a circular orbit costs (sqrt(2) - 1) v_circ (common practice)
+    escape.set(body="Earth", periapsis_altitude=400e3, apoapsis_altitude=400e3, vinf=0.0)
+    v_circ = float(dk.circular_speed(EARTH.radius + 400e3, EARTH.mu))
+    assert escape.results["dv_periapsis"] == pytest.approx((math.sqrt(2) - 1) * v_circ, rel=1e-12)
+    assert escape.results["saving"] == pytest.approx(0.0, abs=1e-9)
+    escape.set(vinf=3000.0)
+    assert escape.results["saving"] > 0.0  # burning deep in the well always saves
+
+
+def test_escape_flyby_curves_update_with_burn(escape):
+    before = escape._gain_curves[1][1].get_ydata().copy()
+    escape.set(flyby_dv=600.0)
+    after = escape._gain_curves[1][1].get_ydata()
+    np.testing.assert_allclose(after, before * 0 + dk.powered_flyby(
+        escape.values["vinf"], np.geomspace(1.0, 50.0, 300) * BODIES[escape.values["body"]].radius, 600.0,
+        BODIES[escape.values["body"]].mu).gain)
+    assert (after > before).all()
+
+
+@pytest.mark.parametrize("bad, words", [({"periapsis_altitude": -10e3}, "below the surface"),
+                                        ({"apoapsis_altitude": 1e3}, "below the periapsis"),
+                                        ({"flyby_altitude": -5e3}, "flyby periapsis")])
+def test_escape_invalid_input(escape, bad, words):
+    results = escape.results
+    escape.set(**bad)
+    assert words in escape.error and escape.results == results
+
+
+def test_escape_figure_saved(escape, artifacts):
+    escape.figure.savefig(artifacts / "escape_flyby.png", dpi=100)
+
+
+# ---------------------------------------------------------------------- BudgetBuilder
+@pytest.fixture
+def builder():
+    return dk.widgets.BudgetBuilder()
+
+
+def budget_by_hand(values):
+    from deltakit.widgets._formulas import evaluate
+
+    budget = dk.Budget(values["m0"], values["isp"] * 9.80665, values["name"], dry_mass=values["dry_mass"] or None)
+    for line in values["lines"]:
+        ve = None if line["isp"] is None else line["isp"] * 9.80665
+        budget.add(line["label"], evaluate(line["formula"], line["params"]), ve=ve, margin=line["margin"])
+    return budget
+
+
+def test_builder_default_matches_budget(builder):
+    budget = budget_by_hand(builder.values)
+    r = builder.results
+    assert builder.error == ""
+    assert r["total_dv"] == pytest.approx(float(budget.total_dv), rel=1e-12)
+    assert r["final_mass"] == pytest.approx(float(budget.final_mass), rel=1e-12)
+    np.testing.assert_allclose([b.get_height() for b in builder._waterfall.remaining][1:], budget.mass_after)
+    assert builder.export_text.value == budget.to_markdown()
+    check_common(builder)
+
+
+def test_builder_capture_line_is_capture_formula(builder):
+    from deltakit.constants import MOON
+
+    line = next(l for l in builder.values["lines"] if l["formula"] == "capture_burn")
+    rp = MOON.radius + line["params"]["periapsis_altitude"]
+    index = builder.values["lines"].index(line)
+    assert builder.budget.lines[index].dv == pytest.approx(float(dk.capture_burn(rp, line["params"]["vinf"], MOON.mu)))
+
+
+def test_builder_editor_add_update_move_remove(builder):
+    n = len(builder.values["lines"])
+    builder.form["label"].value = "apoapsis raise"
+    builder.form["formula"].value = "hohmann"
+    fields = builder._param_widgets["hohmann"]
+    fields["body"].value = "Earth"
+    fields["r1"].value = 7000.0
+    fields["r2"].value = 9000.0
+    builder.form["margin"].value = 10.0
+    builder.buttons["add"].click()
+    lines = builder.values["lines"]
+    assert len(lines) == n + 1 and lines[-1]["label"] == "apoapsis raise"
+    assert lines[-1]["params"]["r2"] == pytest.approx(9000e3)
+    assert builder.budget.lines[-1].dv == pytest.approx(float(dk.hohmann(7000e3, 9000e3, EARTH.mu).total))
+    assert builder.budget.lines[-1].margin == pytest.approx(0.1)
+    assert builder.controls["lines"].value == n  # the new line is selected
+    builder.buttons["up"].click()
+    assert builder.values["lines"][n - 1]["label"] == "apoapsis raise"
+    builder.form["label"].value = "apoapsis raise, revised"
+    builder.buttons["update"].click()
+    assert builder.values["lines"][n - 1]["label"] == "apoapsis raise, revised"
+    builder.buttons["remove"].click()
+    assert [l["label"] for l in builder.values["lines"]] == [l["label"] for l in lines[:-1]]
+    assert len(builder._waterfall.remaining) == n + 1
+
+
+def test_builder_editor_refuses_bad_line_without_raising(builder):
+    lines = builder.values["lines"]
+    builder.form["formula"].value = "bielliptic"
+    fields = builder._param_widgets["bielliptic"]
+    fields["r1"].value, fields["r2"].value, fields["rb"].value = 7000.0, 42164.0, 20000.0  # rb below r2
+    builder.buttons["add"].click()
+    assert "no solution" in builder.error
+    assert builder.values["lines"] == lines
+
+
+def test_builder_save_load_round_trip(builder, tmp_path):
+    path = tmp_path / "halyard.json"
+    builder.set(path=str(path))
+    builder.file_buttons["save"].click()
+    assert builder.error == "" and path.exists()
+    fresh = dk.widgets.BudgetBuilder(lines=[], m0=100.0, isp=200.0, dry_mass=0.0, path=str(path))
+    fresh.file_buttons["load"].click()
+    assert fresh.error == ""
+    mine, theirs = builder.values, fresh.values
+    mine.pop("path"), theirs.pop("path")
+    assert theirs == mine
+    assert fresh.results == builder.results
+
+
+def test_builder_refuses_corrupt_file_and_leaves_it(builder, tmp_path):
+    path = tmp_path / "notes.json"
+    path.write_text('{"format": "someone else", "data": [1, 2')
+    builder.set(path=str(path))
+    values = builder.values
+    builder.file_buttons["load"].click()
+    assert "load failed" in builder.error
+    assert builder.values == values
+    builder.file_buttons["save"].click()  # must not overwrite a foreign file
+    assert "save failed" in builder.error
+    assert path.read_text() == '{"format": "someone else", "data": [1, 2'
+
+
+def test_builder_exports_and_downloads(builder):
+    import base64
+
+    for kind, method in (("Markdown", "to_markdown"), ("LaTeX", "to_latex")):
+        builder.export_format.value = kind
+        expected = getattr(builder.budget, method)()
+        assert builder.export_text.value == expected
+        encoded = builder.export_link.value.split("base64,", 1)[1].split('"', 1)[0]
+        assert base64.b64decode(encoded).decode() == expected
+    builder.export_format.value = "CSV"
+    assert builder.export_text.value.splitlines()[0].count(",") >= 5
+    assert "download=" in builder.export_link.value
+
+
+def test_builder_invalid_masses(builder):
+    results = builder.results
+    builder.set(dry_mass=99999.0)
+    assert "dry mass" in builder.error and builder.results == results
+    builder.set(dry_mass=1450.0)
+    assert builder.error == ""
+
+
+def test_builder_infeasible_budget_says_so(builder):
+    builder.set(dry_mass=3000.0)
+    assert builder.error == ""
+    assert "does not close" in builder.readouts.value
+    assert builder.export()["results"]["final_mass"] is None
+
+
+def test_builder_figure_saved(builder, artifacts):
+    builder.figure.savefig(artifacts / "budget_builder.png", dpi=100)
+
+
+# ---------------------------------------------------------------------- FormulaSheet
+@pytest.fixture(scope="module")
+def sheet():
+    pytest.importorskip("sympy")
+    return dk.widgets.FormulaSheet()
+
+
+def test_sheet_shows_derivation(sheet):
+    from deltakit.symbolic import derive
+
+    sheet.set(derivation="hohmann", steps=True)
+    d = derive("hohmann")
+    assert d.title in sheet.sheet.value
+    assert d.result_tex() in sheet.sheet.value.replace("&amp;", "&").replace("&lt;", "<").replace("&gt;", ">")
+    for assumption in d.assumptions[:1]:
+        assert assumption.split("$")[0][:30] in sheet.sheet.value
+    assert sheet.latex_text.value == d.latex(steps=True)
+    assert sheet.markdown_text.value == d.markdown()
+    assert "download=\"hohmann.tex\"" in sheet.downloads.value
+    sheet.set(steps=False)
+    assert sheet.latex_text.value == d.latex(steps=False)
+    assert "<ol>" not in sheet.sheet.value
+    assert sheet.figure is None
+
+
+def test_sheet_contract(sheet):
+    sheet.set(derivation="rocket_equation", steps=True)
+    check_common(sheet)
