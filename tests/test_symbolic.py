@@ -19,7 +19,7 @@ import deltakit as dk
 symbolic = pytest.importorskip("deltakit.symbolic")
 
 REQUIRED = {
-    "vis_viva", "oberth", "inplane_burn", "ejection_energy", "burn_energy", "rocket_equation",
+    "vis_viva", "orbital_period", "oberth", "inplane_burn", "ejection_energy", "burn_energy", "rocket_equation",
     "propulsive_efficiency", "apsis_change", "hohmann", "bielliptic", "plane_change",
     "combined_plane_change", "escape_burn", "capture_burn", "powered_flyby",
 }  # fmt: skip
@@ -29,7 +29,7 @@ ROOT = Path(__file__).resolve().parent.parent
 
 def _run_python(code: str) -> str:
     done = subprocess.run(
-        [sys.executable, "-c", textwrap.dedent(code)], cwd=ROOT, capture_output=True, text=True, timeout=120
+        [sys.executable, "-c", textwrap.dedent(code)], cwd=ROOT, capture_output=True, text=True, timeout=120, check=False
     )
     assert done.returncode == 0, done.stderr
     return done.stdout
@@ -249,7 +249,7 @@ def test_function_reports_argument_mistakes():
         f(7e6, r1=7e6, r2=4e7, mu=1.0)
     with pytest.raises(dk.DomainError, match="`r2`"):
         f(r1=7e6, r2="far", mu=1.0)
-    with pytest.raises(KeyError, match="burn1, burn2, total|'burn1', 'burn2', 'total'"):
+    with pytest.raises(KeyError, match="no output 'burn3'.*'burn1', 'burn2'"):
         symbolic.derive("hohmann").function("burn3")
 
 
@@ -287,6 +287,7 @@ def _compile(engine: str, tex: Path) -> Path:
         capture_output=True,
         text=True,
         timeout=120,
+        check=False,
     )
     assert done.returncode == 0, done.stdout[-3000:]
     pdf = tex.with_suffix(".pdf")

@@ -34,6 +34,26 @@ def test_vis_viva():
     _assert_same(d.result, sp.sqrt(mu * (2 / r - 1 / a)))
 
 
+def test_orbital_period():
+    # Curtis, 3rd ed., Ch. 2, period of an elliptical orbit T = 2 pi a^(3/2) / sqrt(mu)
+    # (Kepler's third law; equation number not quoted, from memory).
+    d, s = _symbols("orbital_period")
+    a, mu = s["a"], s["mu"]
+    _assert_same(d.result, 2 * sp.pi * sp.sqrt(a**3 / mu))
+
+
+def test_transfer_durations():
+    # Curtis, 3rd ed., Ch. 6: a Hohmann transfer takes half the transfer ellipse's period;
+    # a bi-elliptic one half of each of its two ellipses (common practice).
+    d, s = _symbols("hohmann")
+    r1, r2, mu = s["r1"], s["r2"], s["mu"]
+    _assert_same(d.outputs["duration"], sp.pi * sp.sqrt(((r1 + r2) / 2) ** 3 / mu))
+    d, s = _symbols("bielliptic")
+    r1, r2, rb, mu = s["r1"], s["r2"], s["rb"], s["mu"]
+    both = sp.pi * sp.sqrt(((r1 + rb) / 2) ** 3 / mu) + sp.pi * sp.sqrt(((r2 + rb) / 2) ** 3 / mu)
+    _assert_same(d.outputs["duration"], both)
+
+
 def test_oberth_relation():
     # Common practice: specific energy v^2/2 - mu/r at fixed r; the gain of a
     # prograde dv is v dv + dv^2/2, growing with the speed at the burn point.
@@ -85,7 +105,7 @@ def test_hohmann_worked_example():
     # 35 781.34857 km altitude, Earth radius 6378.137 km, mu = 398 600.4418 km^3/s^2:
     # dv_a = 2.457038 km/s, dv_b = 1.478187 km/s, total 3.935224 km/s.
     d = symbolic.derive("hohmann")
-    args = dict(r1=(6378.137 + 191.34411) * 1e3, r2=(6378.137 + 35781.34857) * 1e3, mu=398600.4418e9)
+    args = {"r1": (6378.137 + 191.34411) * 1e3, "r2": (6378.137 + 35781.34857) * 1e3, "mu": 398600.4418e9}
     assert d.function("burn1")(**args) / 1e3 == pytest.approx(2.457038, abs=2e-6)
     assert d.function("burn2")(**args) / 1e3 == pytest.approx(1.478187, abs=2e-6)
     assert d.function()(**args) / 1e3 == pytest.approx(3.935224, abs=2e-6)
@@ -113,12 +133,12 @@ def test_bielliptic_worked_example():
     # Vallado, 4th ed., Example 6-2 (values from memory): 191.34411 km to 376 310 km altitude
     # through 503 873 km: dv = 3.156233, 0.677358, 0.070465 km/s, total 3.904057 km/s.
     d = symbolic.derive("bielliptic")
-    args = dict(
-        r1=(6378.137 + 191.34411) * 1e3,
-        r2=(6378.137 + 376310.0) * 1e3,
-        rb=(6378.137 + 503873.0) * 1e3,
-        mu=398600.4418e9,
-    )
+    args = {
+        "r1": (6378.137 + 191.34411) * 1e3,
+        "r2": (6378.137 + 376310.0) * 1e3,
+        "rb": (6378.137 + 503873.0) * 1e3,
+        "mu": 398600.4418e9,
+    }
     for output, km_s in (("burn1", 3.156233), ("burn2", 0.677358), ("burn3", 0.070465), ("total", 3.904057)):
         assert d.function(output)(**args) / 1e3 == pytest.approx(km_s, abs=2e-6), output
 
@@ -227,7 +247,7 @@ def test_propulsive_efficiency():
 def test_every_entry_is_checked_here(name):
     # A new catalog entry must come with a textbook check in this file.
     checks = {
-        "vis_viva", "oberth", "inplane_burn", "apsis_change", "hohmann", "bielliptic",
+        "vis_viva", "orbital_period", "oberth", "inplane_burn", "apsis_change", "hohmann", "bielliptic",
         "plane_change", "combined_plane_change", "escape_burn", "capture_burn",
         "powered_flyby", "rocket_equation", "ejection_energy", "burn_energy",
         "propulsive_efficiency",

@@ -43,6 +43,11 @@ def _vis_viva(rng):
     return {"r": r, "a": a, "mu": mu}
 
 
+def _period(rng):
+    mu, radius = _body(rng, N)
+    return {"a": radius * _u(rng, 1.0, 100.0), "mu": mu}
+
+
 def _oberth(rng):
     v = _u(rng, 1000.0, 20000.0)
     return {"v": v, "dv": v * _u(rng, -1.5, 1.5)}
@@ -147,6 +152,7 @@ def _energy_scale(kw):
 
 CASES = {
     "vis_viva": (_vis_viva, None),
+    "orbital_period": (_period, None),
     "oberth": (_oberth, None),
     "inplane_burn": (_inplane, lambda kw: (np.sqrt(kw["mu"] / kw["rp"] * (1 + kw["e"])) + 2000.0) * 4000.0),
     "apsis_change": (_apsis, None),
@@ -167,6 +173,8 @@ CASES = {
 EXTRA_OUTPUTS = [
     ("hohmann", "burn1", lambda kw: dk.hohmann(**kw).burns[0], None),
     ("hohmann", "burn2", lambda kw: dk.hohmann(**kw).burns[1], None),
+    ("hohmann", "duration", lambda kw: dk.hohmann(**kw).duration, None),
+    ("bielliptic", "duration", lambda kw: dk.bielliptic(**kw).duration, None),
     ("bielliptic", "burn1", lambda kw: dk.bielliptic(**kw).burns[0], None),
     ("bielliptic", "burn2", lambda kw: dk.bielliptic(**kw).burns[1], None),
     ("bielliptic", "burn3", lambda kw: dk.bielliptic(**kw).burns[2], None),

@@ -20,14 +20,9 @@ True
 
 from __future__ import annotations
 
-# importing the entry modules registers them; this order is the catalog order
-from . import orbits  # noqa: I001,F401
-from . import transfers  # noqa: F401
-from . import departure  # noqa: F401
-from . import energetics  # noqa: F401
+from . import departure, energetics, orbits, transfers  # noqa: F401  (importing registers the entries)
 from ._registry import UnknownEntry, catalog, derive
 from .derivation import Derivation, Meaning
 from .report import report
 
-
-__all__ = ["catalog", "derive", "report", "Derivation", "Meaning", "UnknownEntry"]
+__all__ = ["Derivation", "Meaning", "UnknownEntry", "catalog", "derive", "report"]

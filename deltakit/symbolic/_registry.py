@@ -3,14 +3,16 @@
 from __future__ import annotations
 
 import functools
-from typing import Callable
+from collections.abc import Callable
 
 from .derivation import Derivation
 
-__all__ = ["entry", "catalog", "derive", "UnknownEntry"]
+__all__ = ["UnknownEntry", "catalog", "derive", "entry"]
 
 _BUILDERS: dict[str, Callable[[], Derivation]] = {}
 _ALIASES: dict[str, str] = {}
+#: Catalog order: one orbit, transfers, leaving and reaching a body, propellant.
+_FAMILIES = ("orbits", "transfers", "departure", "energetics")
 
 
 class UnknownEntry(KeyError):
@@ -41,7 +43,14 @@ def catalog() -> tuple[str, ...]:
     >>> "hohmann" in catalog()
     True
     """
-    return tuple(_BUILDERS)
+    rank = {family: number for number, family in enumerate(_FAMILIES)}
+    order = {name: number for number, name in enumerate(_BUILDERS)}
+
+    def key(name: str) -> tuple[int, int]:
+        family = _BUILDERS[name].__module__.rpartition(".")[2]
+        return rank.get(family, len(rank)), order[name]
+
+    return tuple(sorted(_BUILDERS, key=key))
 
 
 @functools.cache

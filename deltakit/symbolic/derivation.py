@@ -11,7 +11,8 @@ from __future__ import annotations
 
 import dataclasses
 import importlib
-from typing import Any, Callable, Mapping, NamedTuple, Sequence
+from collections.abc import Callable, Mapping, Sequence
+from typing import Any, NamedTuple
 
 import numpy as np
 import sympy as sp

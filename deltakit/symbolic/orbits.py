@@ -64,6 +64,48 @@ def _vis_viva() -> Derivation:
     )
 
 
+@entry("orbital_period", "period")
+def _orbital_period() -> Derivation:
+    b = Builder("orbital_period", "Period of an elliptic orbit (Kepler's third law)")
+    a = b.symbol("a", "semi-major axis", "m")
+    mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
+    e = b.symbol("e", "eccentricity (below 1)", "1", "e", nonnegative=True, real=True)
+    h = b.symbol("h", "specific angular momentum", "m^2/s")
+    r = b.symbol("r", "distance from the centre of the central body", "m")
+    nu_rate = b.symbol("nu_rate", "rate of change of the true anomaly", "rad/s", r"\dot{\nu}")
+    area_rate = b.symbol("area_rate", "area swept per unit time by the radius", "m^2/s", r"\dot{A}")
+    area = b.symbol("area", "area of the ellipse", "m^2", "A")
+    minor = b.symbol("b", "semi-minor axis", "m", "b")
+    period = b.symbol("period", "orbital period", "s", "T")
+
+    rate = b.step("The radius sweeps a thin triangle: the area rate is $r^2\\dot\\nu/2$.", area_rate, r**2 * nu_rate / 2)
+    rate = b.step("Angular momentum is $h = r^2 \\dot\\nu$, so the area rate is constant (Kepler's second law).", area_rate, rate.subs(nu_rate, h / r**2))
+    b.step("Area of the ellipse, with $b = a\\sqrt{1 - e^2}$.", area, sp.pi * a * minor)
+    ellipse_area = sp.pi * a * a * sp.sqrt(1 - e**2)
+    conic = b.relation("Periapsis from the conic equation ($\\nu = 0$) and from the geometry ($a(1 - e)$).", sp.Eq(h**2 / (mu * (1 + e)), a * (1 - e)))
+    h_value = b.step("Solve for the angular momentum.", h, sp.solve(conic, h)[0])
+    value = sp.simplify(sp.powsimp(ellipse_area / rate.subs(h, h_value), force=True))
+    b.step("The period is the whole area divided by the constant area rate: e cancels.", period, value)
+    return b.build(
+        result=value,
+        target=period,
+        parameters=(a, mu),
+        twin="deltakit.Conic:period",
+        assumptions=[_TWO_BODY, "A closed orbit: an ellipse or a circle (e < 1)."],
+        references=[
+            "Curtis, Orbital Mechanics for Engineering Students, period of an elliptical orbit (Ch. 2)",
+            "Vallado, Fundamentals of Astrodynamics and Applications, Kepler's third law (Ch. 1)",
+        ],
+        twin_adapter=_period_twin,
+    )
+
+
+def _period_twin(a: Any, mu: Any) -> Any:
+    import deltakit as dk
+
+    return dk.Conic.circular(a, mu).period
+
+
 @entry("oberth", "energy_gain")
 def _oberth() -> Derivation:
     b = Builder("oberth", "Energy gain of a prograde burn (Oberth relation)")

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import os
 import tempfile
+from collections.abc import Iterable
 from pathlib import Path
-from typing import Iterable
 
 from ._registry import derive
 from .derivation import escape_text, text_tex, unit_tex

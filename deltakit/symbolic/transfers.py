@@ -27,6 +27,13 @@ def _vis_viva(r: sp.Expr, a: sp.Expr, mu: sp.Expr) -> sp.Expr:
     return sp.simplify(d.result.subs({r_s: r, a_s: a, mu_s: mu}, simultaneous=True))
 
 
+def _half_period(a: sp.Expr, mu: sp.Expr) -> sp.Expr:
+    """Half the period of an ellipse of semi-major axis ``a``, from the period entry."""
+    d = derive("orbital_period")
+    a_s, mu_s = d.parameters
+    return d.result.subs({a_s: a, mu_s: mu}, simultaneous=True) / 2
+
+
 def _circular_speed(b: Builder, r: sp.Symbol, mu: sp.Symbol) -> sp.Expr:
     """Record gravity = centripetal acceleration, solve it, return the speed."""
     v = b.symbol("v_circle", "speed on a circular orbit of radius r", "m/s", r"v_{c}")
@@ -60,12 +67,15 @@ def _hohmann() -> Derivation:
     second = b.step("Second burn: from the ellipse speed to the circular speed at $r_2$.", burn2, sp.Abs(speed2 - arrive))
     b.step("The total is the sum of the two burn magnitudes.", total, burn1 + burn2)
     whole = first + second
+    duration = b.symbol("duration", "time from the first burn to the second", "s", "t_{t}")
+    coast = b.step("The coast is half the period of the transfer ellipse (Kepler's third law).", duration, _half_period(a_t, mu))
+    coast = coast.subs(a_t, a_value)
     return b.build(
         result=whole,
         target=total,
         parameters=(r1, r2, mu),
         twin="deltakit.hohmann:total",
-        outputs={"burn1": first, "burn2": second, "total": whole},
+        outputs={"burn1": first, "burn2": second, "total": whole, "duration": coast},
         assumptions=[_TWO_BODY, _IMPULSIVE, _COPLANAR, "The transfer is half an ellipse tangent to both orbits."],
         references=[
             "Curtis, Orbital Mechanics for Engineering Students, Hohmann transfer (Ch. 6)",
@@ -109,12 +119,19 @@ def _bielliptic() -> Derivation:
     )
     b.step("The total is the sum of the three burn magnitudes.", total, burn1 + burn2 + burn3)
     whole = first + second + third
+    duration = b.symbol("duration", "time from the first burn to the third", "s", "t_{t}")
+    coast = b.step(
+        "Two coasts, each half the period of its ellipse (Kepler's third law).",
+        duration,
+        _half_period(a1, mu) + _half_period(a2, mu),
+    )
+    coast = coast.subs({a1: first_a, a2: second_a})
     return b.build(
         result=whole,
         target=total,
         parameters=(r1, r2, rb, mu),
         twin="deltakit.bielliptic:total",
-        outputs={"burn1": first, "burn2": second, "burn3": third, "total": whole},
+        outputs={"burn1": first, "burn2": second, "burn3": third, "total": whole, "duration": coast},
         assumptions=[
             _TWO_BODY,
             _IMPULSIVE,
