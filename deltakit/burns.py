@@ -85,51 +85,46 @@ def _cos_sin(nu: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return cos_nu, sin_nu
 
 
-def _mark_infeasible(q: np.ndarray, x: np.ndarray, *others: np.ndarray) -> tuple[np.ndarray, ...]:
-    """``1 + x`` and ``others``, NaN where the burn is infeasible.
+def _infeasible(q: np.ndarray, x: np.ndarray) -> np.ndarray | None:
+    """Mask of infeasible burns, or None when there is none (the usual case).
 
     Infeasible: the burn point is unreachable (``q <= 0``) or the burn stops
-    or reverses the motion (``x <= -1``, a new transverse speed ``<= 0``).
-    Such elements are rare, so two reductions decide whether any exists and
-    the arrays are only masked when one does (NaN in ``x`` counts as one).
+    or reverses the motion (``x <= -1``: a new transverse speed ``<= 0``).
+    Two reductions decide whether any exists; a NaN in ``x`` counts as one.
     """
-    scale_t = 1.0 + x
     if np.min(q) > 0.0 and np.min(x) > -1.0:
-        return (scale_t, *others)
-    bad = (q <= 0.0) | ~(x > -1.0)
-    shape = np.broadcast_shapes(bad.shape, *(np.shape(o) for o in (scale_t, *others)))
-    bad = np.broadcast_to(bad, shape)
-    marked = []
-    for array in (scale_t, *others):
-        array = np.array(np.broadcast_to(array, shape), dtype=float)
-        array[bad] = np.nan
-        marked.append(array)
-    return tuple(marked)
+        return None
+    return (q <= 0.0) | ~(x > -1.0)
 
 
 def _after_elements(
-    scale_t2: np.ndarray, e_cos_new: np.ndarray, e_sin_new: np.ndarray, p: np.ndarray, argp_nu: np.ndarray
-) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """Elements after the burn from the new eccentricity vector in RTN.
+    scale_t2: np.ndarray,
+    e_cos_new: np.ndarray,
+    e_sin_new: np.ndarray,
+    p: np.ndarray,
+    argp_nu: np.ndarray,
+    out: tuple[np.ndarray, ...],
+) -> None:
+    """Write the elements after the burn into ``out`` = (rp, e, argp, nu_after, ...).
 
     ``scale_t2`` is (new transverse speed / old transverse speed)^2, NaN where
     infeasible, so the new semi-latus rectum is ``p * scale_t2``;
     ``e_cos_new`` and ``e_sin_new`` are ``e' cos nu'`` and ``e' sin nu'``;
     ``argp_nu`` is ``argp + nu``, the direction of the burn point.
-    Returns rp, e, argp after the burn and the burn point's true anomaly on it.
     """
-    e_new = e_cos_new * e_cos_new
+    rp_new, e_new, argp_new, nu_after = out[:4]
+    np.multiply(e_cos_new, e_cos_new, out=e_new)
     e_new += e_sin_new * e_sin_new
     np.sqrt(e_new, out=e_new)
-    nu_after = np.arctan2(e_sin_new, e_cos_new)
-    rp_new = scale_t2 * p  # may broadcast up
+    np.arctan2(e_sin_new, e_cos_new, out=nu_after)
+    np.multiply(scale_t2, p, out=rp_new)
     rp_new /= 1.0 + e_new
-    argp_new = argp_nu - nu_after
-    return rp_new, e_new, argp_new, nu_after
+    np.subtract(argp_nu, nu_after, out=argp_new)
 
 
-def _prograde_kernel(rp, e, mu, argp, nu, dv):
-    """rp, e, argp, nu_after, energy_change of prograde burns, arrays >= 1-d."""
+def _prograde_kernel(rp, e, mu, argp, nu, dv, out):
+    """Prograde burns: write rp, e, argp, nu_after, energy_change into ``out``."""
+    energy_change = out[4]
     p = rp * (1.0 + e)
     cos_nu, sin_nu = _cos_sin(nu)
     e_cos = e * cos_nu
@@ -140,23 +135,28 @@ def _prograde_kernel(rp, e, mu, argp, nu, dv):
     v = v * (mu / p)  # may broadcast up
     np.sqrt(v, out=v)
     x = dv / v
-    energy_change = v + 0.5 * dv
+    np.add(v, 0.5 * dv, out=energy_change)
     energy_change *= dv
-    scale_t, energy_change = _mark_infeasible(q, x, energy_change)
+    scale_t = 1.0 + x
+    bad = _infeasible(q, x)
+    if bad is not None:
+        scale_t = np.where(bad, np.nan, scale_t)
+        np.copyto(energy_change, np.nan, where=bad)
     # Both velocity components scale by (1 + x):
     # e' cos nu' = q (1 + x)^2 - 1, e' sin nu' = (1 + x)^2 e sin nu,
     # the first written without the "- 1" cancellation for small burns.
     e_cos_new = x + 2.0
     e_cos_new *= x
-    e_cos_new *= q
+    e_cos_new = e_cos_new * q  # may broadcast up
     e_cos_new += e_cos
-    scale_t2 = scale_t * scale_t
-    e_sin_new = scale_t2 * (e * sin_nu)
-    return (*_after_elements(scale_t2, e_cos_new, e_sin_new, p, argp + nu), energy_change)
+    scale_t *= scale_t
+    e_sin_new = scale_t * (e * sin_nu)
+    _after_elements(scale_t, e_cos_new, e_sin_new, p, argp + nu, out)
 
 
-def _rtn_kernel(rp, e, mu, argp, nu, radial, transverse):
-    """rp, e, argp, nu_after, energy_change of burns given in RTN, arrays >= 1-d."""
+def _rtn_kernel(rp, e, mu, argp, nu, radial, transverse, out):
+    """Burns given in RTN: write rp, e, argp, nu_after, energy_change into ``out``."""
+    energy_change = out[4]
     p = rp * (1.0 + e)
     cos_nu, sin_nu = _cos_sin(nu)
     q = 1.0 + e * cos_nu  # p / r, > 0 where the conic reaches nu
@@ -164,40 +164,46 @@ def _rtn_kernel(rp, e, mu, argp, nu, radial, transverse):
     vr = e * sin_nu / root_p_mu
     vt = q / root_p_mu
     x = transverse / vt  # relative change of transverse speed
-    energy_change = vr * radial + vt * transverse + 0.5 * (radial * radial + transverse * transverse)
-    scale_t, energy_change = _mark_infeasible(q, x, energy_change)
+    np.add(vr * radial + vt * transverse, 0.5 * (radial * radial + transverse * transverse), out=energy_change)
+    scale_t = 1.0 + x
+    bad = _infeasible(q, x)
+    if bad is not None:
+        scale_t = np.where(bad, np.nan, scale_t)
+        np.copyto(energy_change, np.nan, where=bad)
     # e' cos nu' = r vt'^2/mu - 1 and e' sin nu' = r vt' vr'/mu, written
     # without the "- 1" cancellation for small burns on near-circles.
     e_cos_new = e * cos_nu + q * x * (2.0 + x)
     e_sin_new = scale_t * (e * sin_nu + radial * root_p_mu)
-    return (*_after_elements(scale_t * scale_t, e_cos_new, e_sin_new, p, argp + nu), energy_change)
+    _after_elements(scale_t * scale_t, e_cos_new, e_sin_new, p, argp + nu, out)
 
 
 def _blockwise(kernel, *arrays: np.ndarray) -> tuple[np.ndarray, ...]:
     """Run an elementwise kernel over the broadcast of ``arrays`` in cache-sized blocks.
 
-    Blocks are slices along the first axis of the broadcast shape; an input
-    that is broadcast along that axis is passed whole, so work on a short axis
-    (say ``cos nu`` of a 1000 x 1000 grid of burn points x delta-v) is done
-    once per block row, not once per element. Small inputs run in one call.
-    The outputs are five arrays of the broadcast shape.
+    The kernel writes five outputs of the broadcast shape. Blocks are slices
+    along the first axis; an input that is broadcast along that axis is passed
+    whole, so work on a short axis (``cos nu`` of a 1000 x 1000 grid of burn
+    points x delta-v) is done once per block row, not once per element.
+    Small inputs run in one call.
     """
     shape = np.broadcast_shapes(*(a.shape for a in arrays))
-    ndim = max(len(shape), 1)
+    if not shape:  # one case: work on 1-element arrays, so in-place steps hold
+        return tuple(o.reshape(()) for o in _blockwise(kernel, *(a.reshape(1) for a in arrays)))
+    outputs = tuple(np.empty(shape) for _ in range(5))
+    size = outputs[0].size
+    ndim = len(shape)
     arrays = tuple(a.reshape((1,) * (ndim - a.ndim) + a.shape) for a in arrays)
-    shape = shape or (1,)
-    size = int(np.prod(shape))
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         if size <= 2 * _BLOCK:
-            return tuple(np.broadcast_to(out, shape) for out in kernel(*arrays))
+            if size:
+                kernel(*arrays, out=outputs)
+            return outputs
         rows = max(1, _BLOCK * shape[0] // size)
-        outputs = tuple(np.empty(shape) for _ in range(5))
         for start in range(0, shape[0], rows):  # blocks of many cases, not cases
             stop = start + rows
             block = tuple(a if a.shape[0] == 1 else a[start:stop] for a in arrays)
-            for output, result in zip(outputs, kernel(*block)):
-                output[start:stop] = result
-        return outputs
+            kernel(*block, out=tuple(o[start:stop] for o in outputs))
+    return outputs
 
 
 def _fresh_conic(rp: np.ndarray, e: np.ndarray, mu: Any, argp: np.ndarray) -> Conic:
@@ -221,7 +227,7 @@ def _fresh_conic(rp: np.ndarray, e: np.ndarray, mu: Any, argp: np.ndarray) -> Co
 def _outcome(
     conic: Conic, nu: np.ndarray, dv: np.ndarray, results: tuple[np.ndarray, ...], shape: tuple[int, ...]
 ) -> BurnOutcome:
-    rp_new, e_new, argp_new, nu_after, energy_change = (np.reshape(r, shape) for r in results)
+    rp_new, e_new, argp_new, nu_after, energy_change = results
     return BurnOutcome(
         before=conic,
         after=_fresh_conic(rp_new, e_new, conic.mu, argp_new),

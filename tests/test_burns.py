@@ -270,6 +270,11 @@ def test_scalars_in_give_numpy_scalars_and_units_in_repr():
     assert "J/kg" in text and "m/s" in text
 
 
+def test_empty_arrays_give_empty_outcomes():
+    out = burn_prograde(Conic.circular(7000e3, MU), np.zeros((0, 3)), 1.0)
+    assert out.after.shape == (0, 3) and out.energy_change.shape == (0, 3)
+
+
 def test_results_are_read_only():
     conic = Conic(np.full(3, 7e6), 0.1, MU)
     out = burn(conic, 0.0, transverse=[1.0, 2.0, 3.0])
