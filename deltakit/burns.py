@@ -85,15 +85,21 @@ def _cos_sin(nu: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return cos_nu, sin_nu
 
 
-def _infeasible(q: np.ndarray, x: np.ndarray) -> np.ndarray | None:
+def _infeasible(q: np.ndarray, dv: np.ndarray, v: np.ndarray, x: np.ndarray) -> np.ndarray | None:
     """Mask of infeasible burns, or None when there is none (the usual case).
 
     Infeasible: the burn point is unreachable (``q <= 0``) or the burn stops
-    or reverses the motion (``x <= -1``: a new transverse speed ``<= 0``).
-    Two reductions decide whether any exists; a NaN in ``x`` counts as one.
+    or reverses the motion (``x = dv / v <= -1``, with ``v > 0`` the speed
+    component the burn acts on: the new one is ``<= 0``). A few reductions
+    decide whether any exists, on the small factors ``dv`` and ``v`` when
+    they are smaller than ``x`` (a sweep grid); a NaN counts as infeasible.
     """
-    if np.min(q) > 0.0 and np.min(x) > -1.0:
-        return None
+    if np.min(q) > 0.0:
+        if dv.size + v.size < x.size:
+            if np.min(dv) > -np.min(v):  # then dv > -v everywhere
+                return None
+        elif np.min(x) > -1.0:
+            return None
     return (q <= 0.0) | ~(x > -1.0)
 
 
@@ -138,7 +144,7 @@ def _prograde_kernel(rp, e, mu, argp, nu, dv, out):
     np.add(v, 0.5 * dv, out=energy_change)
     energy_change *= dv
     scale_t = 1.0 + x
-    bad = _infeasible(q, x)
+    bad = _infeasible(q, dv, v, x)
     if bad is not None:
         scale_t = np.where(bad, np.nan, scale_t)
         np.copyto(energy_change, np.nan, where=bad)
@@ -166,7 +172,7 @@ def _rtn_kernel(rp, e, mu, argp, nu, radial, transverse, out):
     x = transverse / vt  # relative change of transverse speed
     np.add(vr * radial + vt * transverse, 0.5 * (radial * radial + transverse * transverse), out=energy_change)
     scale_t = 1.0 + x
-    bad = _infeasible(q, x)
+    bad = _infeasible(q, transverse, vt, x)
     if bad is not None:
         scale_t = np.where(bad, np.nan, scale_t)
         np.copyto(energy_change, np.nan, where=bad)

@@ -253,6 +253,21 @@ def test_reversing_or_stopping_the_motion_is_nan_only_there():
     assert np.isnan(zero_h.after.rp[0]) and np.isfinite(zero_h.after.rp[1])
 
 
+def test_infeasible_cells_of_a_sweep_grid_are_nan():
+    # On a burn point x delta-v grid the feasibility check works on the grid's
+    # factors; the NaN cells must still be exactly those with dv <= -v.
+    gto = Conic.from_apsides(6.7e6, 4.2e7, MU)
+    nu = np.linspace(-math.pi, math.pi, 41)[:, None]
+    dv = np.linspace(-12000.0, 500.0, 60)[None, :]
+    out = burn_prograde(gto, nu, dv)
+    stopped = dv <= -gto.speed(nu)
+    assert stopped.any() and (~stopped).any()
+    np.testing.assert_array_equal(np.isnan(out.energy_change), stopped)
+    np.testing.assert_array_equal(np.isnan(out.after.rp), stopped)
+    transverse = burn(gto, nu, transverse=dv)
+    np.testing.assert_array_equal(np.isnan(transverse.after.e), dv <= -gto.velocity(nu)[1])
+
+
 def test_point_a_hyperbola_never_reaches_is_nan():
     hyperbola = Conic.from_vinf(7000e3, 3000.0, MU)
     limit = float(hyperbola.true_anomaly_limit)
