@@ -1,0 +1,414 @@
+"""The panels in a real browser: JupyterLab + headless Chromium via Playwright.
+
+One JupyterLab server and one browser serve the whole module (about a minute in
+all). A notebook written to a temporary folder shows a plain ipywidgets slider
+(to prove the browser set-up itself: widget and ipympl front-ends loaded) and
+then each of the six panels with its defaults. The test runs it through the Run
+menu, then per panel moves the first slider one step with the keyboard (or picks
+the next entry of the first drop-down when a panel has no slider), waits for the
+readouts to show exactly what the same panel shows in this process after
+``.set()`` to the same value, and checks that the figure redrew by comparing
+canvas screenshots before and after. Screenshots of every panel land in the
+artefact folder for a person to look at.
+
+Follows /work/shared/BROWSER-TESTS.md. Without /usr/bin/chromium or Playwright the
+tests skip, unless ``DELTAKIT_REQUIRE_BROWSER=1`` (set by CI), where they fail.
+"""
+
+from __future__ import annotations
+
+import html
+import json
+import os
+import re
+import secrets
+import shutil
+import socket
+import subprocess
+import sys
+import time
+import urllib.request
+from pathlib import Path
+from typing import Any, Iterator
+
+import pytest
+
+pytestmark = [pytest.mark.browser, pytest.mark.slow]
+
+CHROMIUM = Path("/usr/bin/chromium")
+REQUIRE = os.environ.get("DELTAKIT_REQUIRE_BROWSER") == "1"
+
+#: The panels the notebook shows, in order (DESIGN.md, "Widgets and plots").
+PANELS = ["BurnPointExplorer", "PropellantTrade", "TransferTrade", "EscapeFlyby", "BudgetBuilder", "FormulaSheet"]
+
+#: Lab extensions the kernel's widgets need in the browser.
+NEEDED_EXTENSIONS = ("@jupyter-widgets/jupyterlab-manager", "jupyter-matplotlib")
+
+CHROMIUM_ARGS = [
+    "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+    "--disable-background-networking", "--disable-component-update", "--disable-sync",
+]
+
+
+def _missing_browser_reason() -> str | None:
+    if not CHROMIUM.exists():
+        return f"{CHROMIUM} not found (apt-get install chromium)"
+    try:
+        import playwright.sync_api  # noqa: F401
+    except ImportError:
+        return "playwright is not installed (pip install playwright; no browser download needed)"
+    return None
+
+
+def _skip_or_fail(reason: str) -> None:
+    if REQUIRE:
+        pytest.fail(f"DELTAKIT_REQUIRE_BROWSER=1 but the browser test cannot run: {reason}")
+    pytest.skip(reason)
+
+
+# --------------------------------------------------------------------------- the notebook
+
+SMOKE_CELL = """\
+# Browser set-up check: a plain slider, a readout and an ipympl figure.
+%matplotlib widget
+import ipywidgets as widgets
+import matplotlib.pyplot as plt
+
+smoke_slider = widgets.FloatSlider(value=1.0, min=0.0, max=5.0, step=0.1, description="dv (km/s)")
+smoke_readout = widgets.HTML()
+smoke_readout.add_class("deltakit-readout")
+with plt.ioff():
+    smoke_fig, smoke_ax = plt.subplots(figsize=(4, 2.5))
+(smoke_line,) = smoke_ax.plot([0, 1], [0, 1.0])
+smoke_ax.set_ylim(0, 5)
+smoke_ax.set_xlabel("x (-)")
+smoke_ax.set_ylabel("dv (km/s)")
+
+def _smoke_update(change=None):
+    smoke_readout.value = f"twice: <b>{2 * smoke_slider.value:.1f}</b> km/s"
+    smoke_line.set_ydata([0, smoke_slider.value])
+    smoke_fig.canvas.draw_idle()
+
+smoke_slider.observe(_smoke_update, names="value")
+_smoke_update()
+smoke_box = widgets.VBox([smoke_slider, smoke_readout, smoke_fig.canvas])
+smoke_box.add_class("bt-smoke")
+smoke_box
+"""
+
+
+def _panel_cell(name: str) -> str:
+    return (
+        f"from deltakit.widgets import {name}\n"
+        f"panel_{name} = {name}()\n"
+        f"panel_{name}.add_class('bt-{name}')\n"
+        f"panel_{name}\n"
+    )
+
+
+def _write_notebook(folder: Path) -> Path:
+    import nbformat
+
+    cells = [nbformat.v4.new_markdown_cell("# Browser test: every panel with its defaults")]
+    cells.append(nbformat.v4.new_code_cell(SMOKE_CELL))
+    cells += [nbformat.v4.new_code_cell(_panel_cell(name)) for name in PANELS]
+    nb = nbformat.v4.new_notebook(cells=cells)
+    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3 (ipykernel)", "language": "python"}
+    path = folder / "panels.ipynb"
+    nbformat.write(nb, path)
+    return path
+
+
+# --------------------------------------------------------------------------- the server
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+def _get(url: str, timeout: float = 2.0) -> bytes:
+    with urllib.request.urlopen(url, timeout=timeout) as response:  # noqa: S310 (loopback only)
+        return response.read()
+
+
+@pytest.fixture(scope="module")
+def lab(tmp_path_factory: pytest.TempPathFactory) -> Iterator[dict[str, Any]]:
+    reason = _missing_browser_reason()
+    if reason:
+        _skip_or_fail(reason)
+    home = tmp_path_factory.mktemp("lab-home")
+    root = tmp_path_factory.mktemp("lab-root")
+    _write_notebook(root)
+    env = dict(os.environ)
+    for var, sub in [("JUPYTER_CONFIG_DIR", "config"), ("JUPYTER_DATA_DIR", "data"),
+                     ("IPYTHONDIR", "ipython"), ("MPLCONFIGDIR", "mpl"), ("JUPYTER_RUNTIME_DIR", "runtime")]:
+        (home / sub).mkdir()
+        env[var] = str(home / sub)
+    env.pop("MPLBACKEND", None)  # let the kernel use ipympl as the notebook asks
+    # Keep the news and update pop-ups away; JupyterLab reads overrides from the
+    # environment's share/jupyter/lab/settings, which we must not touch, so the
+    # same settings go to the per-user settings folder of the temporary home.
+    settings = home / "config" / "lab" / "user-settings" / "@jupyterlab" / "apputils-extension"
+    settings.mkdir(parents=True)
+    (settings / "notification.jupyterlab-settings").write_text(
+        json.dumps({"fetchNews": "false", "checkForUpdates": False})
+    )
+    port, token = _free_port(), secrets.token_hex(16)
+    log = open(home / "lab.log", "wb")  # noqa: SIM115 (closed below)
+    process = subprocess.Popen(
+        [sys.executable, "-m", "jupyterlab", "--no-browser", "--allow-root",
+         "--ServerApp.ip=127.0.0.1", f"--ServerApp.port={port}", "--ServerApp.port_retries=0",
+         f"--IdentityProvider.token={token}", f"--ServerApp.root_dir={root}",
+         "--LabApp.news_url=None", "--LabApp.check_for_updates_class=jupyterlab.NeverCheckForUpdate"],
+        env=env, stdout=log, stderr=subprocess.STDOUT, cwd=root,
+    )
+    base = f"http://127.0.0.1:{port}"
+    try:
+        deadline = time.monotonic() + 60
+        while True:
+            try:
+                _get(f"{base}/api/status?token={token}")
+                break
+            except OSError:
+                if process.poll() is not None or time.monotonic() > deadline:
+                    raise RuntimeError(f"JupyterLab did not start:\n{(home / 'lab.log').read_text()[-3000:]}")
+                time.sleep(0.3)
+        yield {"base": base, "token": token, "root": root, "home": home}
+    finally:
+        process.terminate()
+        try:
+            process.wait(timeout=15)
+        except subprocess.TimeoutExpired:
+            process.kill()
+            process.wait()
+        log.close()
+
+
+def test_widget_extensions_are_found(lab: dict[str, Any]) -> None:
+    """With temporary config and data folders, the page still loads the .venv's extensions."""
+    page = _get(f"{lab['base']}/lab?token={lab['token']}").decode()
+    match = re.search(r'<script id="jupyter-config-data" type="application/json">(.*?)</script>', page, re.S)
+    assert match, "JupyterLab page carries no jupyter-config-data"
+    config = json.loads(match.group(1))
+    names = {ext["name"] for ext in config.get("federated_extensions", [])}
+    missing = [name for name in NEEDED_EXTENSIONS if name not in names]
+    assert not missing, f"lab extensions not found: {missing}; found {sorted(names)}"
+
+
+# --------------------------------------------------------------------------- the browser
+
+@pytest.fixture(scope="module")
+def notebook_page(
+    lab: dict[str, Any], tmp_path_factory: pytest.TempPathFactory, artifacts: Path
+) -> Iterator[Any]:
+    from playwright.sync_api import sync_playwright
+
+    profile = tmp_path_factory.mktemp("chromium-profile")
+    with sync_playwright() as pw:
+        context = pw.chromium.launch_persistent_context(
+            user_data_dir=str(profile), executable_path=str(CHROMIUM), headless=True,
+            args=CHROMIUM_ARGS, viewport={"width": 1280, "height": 1000},
+        )
+        try:
+            page = context.new_page()
+            page.set_default_timeout(60_000)
+            try:
+                _open_and_run(page, lab)
+            except Exception:
+                page.screenshot(path=str(artifacts / "browser-failed-start.png"), full_page=True)
+                raise
+            yield page
+        finally:
+            context.close()
+
+
+def _open_and_run(page: Any, lab: dict[str, Any]) -> None:
+    page.goto(f"{lab['base']}/lab/tree/panels.ipynb?token={lab['token']}")
+    page.wait_for_selector(".jp-Notebook", state="visible")
+    # The execution indicator may read idle before the kernel connects; the
+    # status bar names the kernel's state only once it is connected.
+    page.locator(".jp-StatusBar-Widget", has_text=re.compile(r"\|\s*Idle")).first.wait_for(timeout=60_000)
+    _wait_idle(page)
+    page.locator(".lm-MenuBar-item", has_text="Run").first.click()
+    page.locator("[data-command='runmenu:run-all']").click()
+    page.wait_for_selector(".bt-smoke", state="visible", timeout=60_000)
+    _wait_idle(page)
+    page.wait_for_timeout(1000)  # first ipympl frames
+
+
+def _wait_idle(page: Any) -> None:
+    page.wait_for_selector(".jp-Notebook-ExecutionIndicator[data-status='idle']", timeout=120_000)
+
+
+def _compact(text: str) -> str:
+    return re.sub(r"\s+", "", text)
+
+
+def _figure_locator(box: Any) -> Any:
+    """The element that shows the panel's figure: an ipympl canvas or a static image."""
+    canvas = box.locator(".jupyter-matplotlib-canvas-div canvas")
+    if canvas.count():
+        return canvas.first
+    return box.locator(".jupyter-matplotlib-figure, .widget-output img, img").first
+
+
+def _readout_texts(box: Any) -> list[str]:
+    return [_compact(t) for t in box.locator(".deltakit-readout").evaluate_all("els => els.map(e => e.textContent)")]
+
+
+def _wait_readouts(page: Any, box: Any, expected: list[str], timeout_s: float = 20.0) -> list[str]:
+    """Wait until every expected readout text appears in the readouts, in order."""
+    deadline = time.monotonic() + timeout_s
+    while True:
+        seen = _readout_texts(box)
+        if len(seen) == len(expected) and all(e in s for e, s in zip(expected, seen)):
+            return seen
+        if time.monotonic() > deadline:
+            return seen
+        page.wait_for_timeout(200)
+
+
+def _wait_redrawn(page: Any, figure: Any, before: bytes, timeout_s: float = 10.0) -> bytes:
+    deadline = time.monotonic() + timeout_s
+    while True:
+        after = figure.screenshot()
+        if after != before or time.monotonic() > deadline:
+            return after
+        page.wait_for_timeout(250)
+
+
+def test_plain_slider_moves_and_redraws(notebook_page: Any, artifacts: Path) -> None:
+    """The set-up itself works: keyboard moves a slider, the kernel answers, ipympl redraws."""
+    page = notebook_page
+    box = page.locator(".bt-smoke").first
+    box.scroll_into_view_if_needed()
+    assert _wait_readouts(page, box, [_compact("twice: 2.0 km/s")]) == [_compact("twice: 2.0 km/s")]
+    figure = _figure_locator(box)
+    assert figure.count(), "the ipympl canvas did not render (jupyter-matplotlib front-end missing?)"
+    before = figure.screenshot()
+    box.screenshot(path=str(artifacts / "browser-smoke-before.png"))
+    box.locator(".widget-slider .noUi-handle").first.focus()
+    page.keyboard.press("ArrowRight")
+    seen = _wait_readouts(page, box, [_compact("twice: 2.2 km/s")])
+    assert seen == [_compact("twice: 2.2 km/s")], f"readout after one step right: {seen}"
+    after = _wait_redrawn(page, figure, before)
+    box.screenshot(path=str(artifacts / "browser-smoke-after.png"))
+    assert after != before, "the figure did not redraw after the slider moved"
+
+
+# --------------------------------------------------------------------------- the panels
+
+def _walk(widget: Any) -> Iterator[Any]:
+    yield widget
+    for child in getattr(widget, "children", ()):
+        yield from _walk(child)
+
+
+def _html_text(value: str) -> str:
+    return _compact(html.unescape(re.sub(r"<[^>]*>", "", str(value))))
+
+
+def _readouts(panel: Any) -> list[str]:
+    return [_html_text(w.value) for w in _walk(panel) if "deltakit-readout" in getattr(w, "_dom_classes", ())]
+
+
+def _first_difference(expected: list[str], seen: list[str]) -> str:
+    if len(expected) != len(seen):
+        return f"{len(seen)} readouts, expected {len(expected)}: {seen}"
+    for e, s in zip(expected, seen):
+        if e not in s:
+            at = next((i for i, (a, b) in enumerate(zip(e, s)) if a != b), min(len(e), len(s)))
+            return f"expected ...{e[max(0, at - 40):at + 60]}... but saw ...{s[max(0, at - 40):at + 60]}..."
+    return "none"
+
+
+def _plan_move(panel: Any) -> tuple[str, int, Any, Any]:
+    """Choose the control the browser will move and the value it will then have.
+
+    Returns (kind, index, widget, new value): kind is "slider" (the index-th
+    slider of the panel in page order, moved one step right with the keyboard)
+    or "dropdown" (the index-th drop-down, set to its next option) or "number"
+    (the index-th number box, typed 10 % larger and entered). The control is the
+    first slider among the panel's ``.controls`` that is not at its right end,
+    else the first drop-down among them, else the first non-zero number box.
+    """
+    import ipywidgets as widgets
+
+    controls = {id(w) for w in panel.controls.values()}
+    sliders = [w for w in _walk(panel) if isinstance(w, (widgets.FloatSlider, widgets.IntSlider))]
+    for index, w in enumerate(sliders):
+        if id(w) in controls and not w.disabled and w.value + w.step <= w.max:
+            return "slider", index, w, w.value + w.step
+    dropdowns = [w for w in _walk(panel) if isinstance(w, widgets.Dropdown)]
+    for index, w in enumerate(dropdowns):
+        if id(w) in controls and len(w.options) > 1 and not w.disabled:
+            labels = list(w._options_labels)
+            following = (labels.index(w.label) + 1) % len(labels)
+            return "dropdown", index, w, (labels[following], w._options_values[following])
+    numbers = [w for w in _walk(panel) if isinstance(w, (widgets.FloatText, widgets.BoundedFloatText))]
+    for index, w in enumerate(numbers):
+        if id(w) in controls and not w.disabled and w.value:
+            return "number", index, w, round(w.value * 1.1, 1)
+    raise AssertionError(f"{type(panel).__name__} has no slider, drop-down or number box among its controls")
+
+
+@pytest.mark.parametrize("name", PANELS)
+def test_panel_answers_keyboard_and_redraws(notebook_page: Any, artifacts: Path, name: str) -> None:
+    """Move the panel's first control in the browser; readouts and figure follow."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from deltakit import widgets as panels
+
+    reference = getattr(panels, name)()  # the same panel, headless, in this process
+    start = _readouts(reference)
+    kind, index, control, new = _plan_move(reference)
+    assert start, f"{name} shows no element with CSS class deltakit-readout"
+
+    page = notebook_page
+    box = page.locator(f".bt-{name}").first
+    try:
+        box.wait_for(state="visible", timeout=30_000)
+    except Exception:
+        errors = page.locator(".jp-OutputArea-output[data-mime-type='application/vnd.jupyter.stderr']")
+        texts = errors.evaluate_all("els => els.map(e => e.textContent)")
+        pytest.fail(f"{name} did not appear in the browser; error outputs in the notebook: {texts}")
+    box.scroll_into_view_if_needed()
+    page.wait_for_timeout(500)  # first ipympl frame of this panel
+    seen = _wait_readouts(page, box, start)
+    box.screenshot(path=str(artifacts / f"browser-{name}-before.png"))
+    assert len(seen) == len(start) and all(e in s for e, s in zip(start, seen)), (
+        f"{name}: browser readouts differ from the headless panel's: {_first_difference(start, seen)}"
+    )
+    has_figure = getattr(reference, "figure", None) is not None
+    figure = _figure_locator(box) if has_figure else None
+    if has_figure:
+        assert figure.count(), f"{name}: its figure did not render in the browser"
+        before = figure.screenshot()
+
+    # The headless twin gets the same widget value the browser will send.
+    if kind == "slider":
+        control.value = new
+        box.locator(".widget-slider .noUi-handle").nth(index).focus()
+        page.keyboard.press("ArrowRight")
+    elif kind == "dropdown":
+        label, value = new
+        control.value = value
+        box.locator(".widget-dropdown select").nth(index).select_option(label=str(label))
+    else:
+        control.value = new
+        field = box.locator(".widget-text input[type='number']").nth(index)
+        field.fill(repr(new))
+        field.press("Enter")
+    control = control.description or type(control).__name__
+    expected = _readouts(reference)
+    assert expected != start, f"{name}: moving {control!r} changes no readout even headless"
+    seen = _wait_readouts(page, box, expected)
+    assert all(e in s for e, s in zip(expected, seen)) and len(seen) == len(expected), (
+        f"{name}: after moving {control!r} to {new!r}: {_first_difference(expected, seen)}"
+    )
+    if has_figure:
+        after = _wait_redrawn(page, figure, before)
+        assert after != before, f"{name}: the figure did not redraw after {control!r} moved"
+    box.screenshot(path=str(artifacts / f"browser-{name}-after.png"))
