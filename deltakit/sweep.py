@@ -116,6 +116,9 @@ def _arrays(result: Any, name: str, shape: tuple[int, ...]) -> dict[str, np.ndar
     arrays = {}
     for key, (value, _) in _fields(result, name).items():
         value = np.asarray(value)
+        if value.shape == shape:
+            arrays[key] = value
+            continue
         try:
             arrays[key] = np.broadcast_to(value, shape)
         except ValueError:
@@ -228,8 +231,9 @@ def _block(function, fixed, names, name, *blocks):
 
 
 def _pick(fields: dict[str, np.ndarray], key: str) -> np.ndarray:
-    # A copy, not the broadcast view: blocks must own their memory for dask and the writers.
-    return np.array(fields[key])
+    # Blocks must be ordinary arrays for dask and the writers: a broadcast view
+    # (a field that did not depend on every axis) is copied, a full array is not.
+    return np.ascontiguousarray(fields[key])
 
 
 def sweep(
