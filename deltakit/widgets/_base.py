@@ -61,12 +61,17 @@ class FigureView:
     """A matplotlib Figure and the widget that shows it.
 
     ``refresh()`` after moving artists: a live canvas redraws when idle, a
-    static view renders the PNG again.
+    static view renders the PNG again. Artists registered with
+    :meth:`animate` are the ones a fast update moves: in a static view they
+    are drawn over a saved background (blitting), so ``refresh(fast=True)``
+    skips the axes, ticks and text that did not change.
     """
 
     def __init__(self, figure: Figure, mode: str | None = None) -> None:
         self.figure = figure
         self.mode = mode or figure_mode()
+        self._animated: list[Any] = []
+        self._background: Any = None
         if self.mode == "live":
             from ipympl.backend_nbagg import Canvas, FigureManager
 
@@ -81,19 +86,38 @@ class FigureView:
             self.widget = widgets.Image(format="png", layout=widgets.Layout(max_width="100%", height="auto"))
         self.widget.add_class("deltakit-figure")
 
-    def refresh(self) -> None:
-        """Show the figure's current artists."""
+    def animate(self, *artists: Any) -> None:
+        """Mark artists that fast updates move (static views blit them)."""
+        self._animated.extend(artists)
+        if self.mode != "live":
+            for artist in artists:
+                artist.set_animated(True)
+
+    def refresh(self, fast: bool = False) -> None:
+        """Show the figure's current artists; ``fast`` when only animated artists moved."""
         if self.mode == "live":
             self.figure.canvas.draw_idle()
             return
         canvas = self.figure.canvas
-        canvas.draw()
+        if fast and self._background is not None:
+            canvas.restore_region(self._background)
+        else:
+            canvas.draw()  # everything but the animated artists
+            self._background = canvas.copy_from_bbox(self.figure.bbox) if self._animated else None
+        for artist in self._animated:
+            if artist.get_visible():
+                artist.axes.draw_artist(artist)
+        self.widget.value = self.png()
+
+    def png(self) -> bytes:
+        """PNG bytes of what the canvas holds now (fast zlib level: it is redrawn often)."""
         from PIL import Image
 
+        canvas = self.figure.canvas
         image = Image.frombuffer("RGBA", canvas.get_width_height(), canvas.buffer_rgba(), "raw", "RGBA", 0, 1)
         buffer = io.BytesIO()
         image.save(buffer, format="png", compress_level=1)
-        self.widget.value = buffer.getvalue()
+        return buffer.getvalue()
 
 
 def json_ready(value: Any) -> Any:
@@ -172,6 +196,8 @@ class Panel(widgets.VBox):
         self._holding = False
         self._pending: set[str] = set()
         self._error = ""
+        #: set by ``_update`` when only animated artists moved (a fast redraw is enough)
+        self._fast = False
         self.figure: Figure | None = None
         self.view: FigureView | None = None
         self.message = widgets.HTML(value="")
@@ -304,7 +330,8 @@ class Panel(widgets.VBox):
         self._pending.clear()
         self._show_message("")
         if self.view is not None:
-            self.view.refresh()
+            self.view.refresh(fast=self._fast)
+        self._fast = False
 
     def _show_message(self, text: str) -> None:
         self._error = text

@@ -125,6 +125,8 @@ class BurnPointExplorer(Panel):
         self.energy_axes.legend(loc="best", fontsize="small", framealpha=0.85)
         fig.subplots_adjust(left=0.09, right=0.985, bottom=0.13, top=0.92, wspace=0.28)
         self._artists = {"before": before, "burn": burn, "curve": curve, "current": current, "apoapsis": apo}
+        # what a new burn point moves: redrawn alone over the rest of the figure
+        self.view.animate(burn.after.orbit, burn.arrow, burn.marker, current)
 
     # ------------------------------------------------------------------ model
     def _orbit(self, v: dict[str, Any]) -> tuple[Conic, Any]:
@@ -163,7 +165,9 @@ class BurnPointExplorer(Panel):
         if changed & _ORBIT_INPUTS or self._conic is None:
             update_conic(art["before"], conic, body_radius=body.radius)
         update_burn(art["burn"], conic, nu, dv, angle=angle, reference=reference, after=after)
-        self._fit_orbit_axes(conic, art["burn"])
+        only_burn_point = not changed - {"nu"} and self._conic is not None
+        if not only_burn_point:  # the frame stays put while the burn point slides
+            self._fit_orbit_axes(conic, art["burn"])
         if curve is not None:
             art["curve"].set_data(*curve)
             finite_y = curve[1][np.isfinite(curve[1])]
@@ -174,6 +178,7 @@ class BurnPointExplorer(Panel):
         art["current"].set_data([math.degrees(math.remainder(nu, 2 * math.pi))],
                                 [float(outcome.energy_change) / MJ_PER_KG])
         self._conic = conic
+        self._fast = only_burn_point
         # readouts
         energy = float(outcome.energy_change)
         energy_apo = float(at_apoapsis.energy_change)
