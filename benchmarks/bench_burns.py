@@ -158,14 +158,15 @@ def run(title: str, inputs) -> bool:
     expected = np.stack([np.broadcast_to(r, np.shape(ours[0])).ravel()[:1000] for r in reference], axis=-1)
     np.testing.assert_allclose(loop_rows, expected, rtol=1e-12, atol=1e-9, equal_nan=True)
 
-    # Interleave the two array versions so a noisy neighbour hits both alike.
-    t_ours, t_fused = [], []
+    # Interleave all three so a noisy neighbour on the shared machine hits them alike.
+    t_ours, t_fused, t_loop = [], [], []
     for _ in range(REPEATS):
         t_ours.append(median_time(with_deltakit, conic, nu, dv, repeats=1))
         t_fused.append(median_time(fused, rp, e, mu, argp, nu, dv, repeats=1))
+        t_loop.append(median_time(plain_loop, flat[0], flat[1], mu, *flat[2:], repeats=1) * (N / len(flat[0])))
     t_ours_med = statistics.median(t_ours)
     t_fused_med = statistics.median(t_fused)
-    t_loop = median_time(plain_loop, flat[0], flat[1], mu, *flat[2:], repeats=3) * (N / len(flat[0]))
+    t_loop = statistics.median(t_loop)
 
     vs_fused = t_ours_med / t_fused_med
     vs_loop = t_loop / t_ours_med
