@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import sympy as sp
 
+from ._algebra import solve_for, tidy
 from ._builder import Builder
 from ._registry import derive, entry
 from .derivation import Derivation
@@ -23,13 +24,13 @@ _IMPULSIVE = "Impulsive burn along the velocity at periapsis."
 def _hyperbola_periapsis_speed(b: Builder, vp: sp.Symbol, vinf: sp.Symbol, rp: sp.Symbol, mu: sp.Symbol) -> sp.Expr:
     energy = sp.Eq(vp**2 / 2 - mu / rp, vinf**2 / 2)
     b.relation("Energy conservation between periapsis and far away, where the potential vanishes.", energy)
-    return b.step("Solve for the periapsis speed on the hyperbola.", vp, sp.solve(energy, vp)[0])
+    return b.step("Solve for the periapsis speed on the hyperbola.", vp, solve_for(energy, vp)[0])
 
 
 def _parking_speed(rp: sp.Symbol, mu: sp.Symbol) -> sp.Expr:
     d = derive("vis_viva")
     r_s, a_s, mu_s = d.parameters
-    return sp.simplify(d.result.subs({r_s: rp, a_s: rp, mu_s: mu}, simultaneous=True))
+    return tidy(d.result.subs({r_s: rp, a_s: rp, mu_s: mu}, simultaneous=True))
 
 
 def _periapsis_entry(name: str, title: str, leaving: bool) -> Derivation:
@@ -94,7 +95,7 @@ def _powered_flyby() -> Derivation:
     after = vp + dv
     out_energy = sp.Eq(after**2 / 2 - mu / rp, vinf_out**2 / 2)
     b.relation("After the burn at the same radius, energy conservation out to far away.", out_energy)
-    out_value = sp.solve(out_energy, vinf_out)[0]
+    out_value = solve_for(out_energy, vinf_out)[0]
     b.step("Solve for the excess speed on leaving.", vinf_out, out_value)
     vinf_out_value = out_value.subs(vp, before)
     b.step("Substitute the periapsis speed.", vinf_out, vinf_out_value)
@@ -108,13 +109,13 @@ def _powered_flyby() -> Derivation:
     conic = sp.Eq(rp, h**2 / (mu * (1 + e)))
     b.relation("Conic equation at periapsis for a leg with excess speed $v_\\infty$.", conic)
     vp_leg = sp.sqrt(vinf**2 + 2 * mu / rp)
-    e_value = sp.expand(sp.solve(conic.subs(h, rp * vp_leg), e)[0])
+    e_value = sp.expand(solve_for(conic.subs(h, rp * vp_leg), e)[0])
     b.step("With $h = r_p v_p$ and $v_p^2 = v_\\infty^2 + 2\\mu/r_p$, solve for the eccentricity.", e, e_value)
-    nu_value = sp.solve(sp.Eq(1 + e * sp.cos(nu_inf), 0), nu_inf)
+    nu_value = solve_for(sp.Eq(1 + e * sp.cos(nu_inf), 0), nu_inf)
     # two roots, +-nu_inf; the outgoing asymptote is the one in (pi/2, pi)
     nu_value = min(nu_value, key=lambda root: float(root.subs(e, 2)))
     b.step("The radius becomes infinite where $1 + e\\cos\\nu = 0$: the asymptote.", nu_inf, nu_value)
-    turn_value = sp.simplify(nu_value.rewrite(sp.asin) - sp.pi / 2)
+    turn_value = nu_value.rewrite(sp.asin) - sp.pi / 2
     b.step("Each leg turns the excess velocity by the asymptote angle less a right angle.", turn, turn_value)
     deflection_value = turn_value.subs(e, e_value.subs(vinf, vinf_in)) + turn_value.subs(e, e_value.subs(vinf, vinf_out))
     b.step("Add the turn of the arriving and the leaving leg.", deflection, deflection_value)

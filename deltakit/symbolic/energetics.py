@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import sympy as sp
 
+from ._algebra import solve_for, tidy
 from ._builder import Builder
 from ._registry import derive, entry
 from .derivation import Derivation
@@ -41,11 +42,11 @@ def _rocket_equation() -> Derivation:
     balance = sp.expand(after - before)
     balance = balance.subs(dm * dv_small, 0)  # second-order small
     b.relation("No external force: momentum is conserved; drop the second-order term $\\mathrm{d}m\\,\\mathrm{d}v$.", sp.Eq(balance, 0))
-    slope = sp.solve(sp.Eq(balance, 0), dv_small)[0]
+    slope = solve_for(sp.Eq(balance, 0), dv_small)[0]
     b.step("Solve for the speed change.", dv_small, slope)
     integral = sp.Integral(slope / dm, (m, m0, mf))
     # ve is a constant factor: keep it outside the logarithm when combining.
-    value = ve * sp.logcombine(sp.simplify(integral.doit() / ve), force=True)
+    value = ve * sp.logcombine(sp.expand(integral.doit() / ve), force=True)
     b.step("Integrate from the initial to the final mass.", dv, integral)
     b.step("Evaluate the integral.", dv, value)
     return b.build(
@@ -78,7 +79,7 @@ def _ejection_energy() -> Derivation:
         p,
         m_rest * w - m_ejected * u,
     )
-    w_value = sp.solve(sp.Eq(m_rest * w - m_ejected * u, 0), w)[0]
+    w_value = solve_for(sp.Eq(m_rest * w - m_ejected * u, 0), w)[0]
     b.step("Solve for the speed gained by the remaining mass.", w, w_value)
     vehicle = sp.Rational(1, 2) * m_rest * ((v0 + w) ** 2 - v0**2)
     b.step("In a frame where the pair moved at $V$: the remaining mass goes from $V$ to $V + w$.", e_vehicle, vehicle)
@@ -177,7 +178,7 @@ def _propulsive_efficiency() -> Derivation:
     )
     ratio = useful / (useful + wake)
     b.step("Efficiency: useful power over useful plus wake power.", eta, ratio)
-    value = sp.factor(sp.simplify(ratio.subs(thrust, f_value)))
+    value = sp.factor(sp.cancel(ratio.subs(thrust, f_value)))
     b.step("Substitute the thrust: the mass flow cancels.", eta, value)
     return b.build(
         result=value,

@@ -11,6 +11,7 @@ from typing import Any
 
 import sympy as sp
 
+from ._algebra import solve_for, tidy
 from ._builder import Builder
 from ._registry import derive, entry
 from .derivation import Derivation
@@ -41,14 +42,14 @@ def _vis_viva() -> Derivation:
     )
     momentum = sp.Eq(rp * vp, ra * va)
     b.relation("Angular momentum conservation: at the apsides the velocity is perpendicular to the radius.", momentum)
-    va_of_vp = sp.solve(momentum, va)[0]
-    vp_value = sp.solve(conserve_energy.subs(va, va_of_vp), vp)[0]
+    va_of_vp = solve_for(momentum, va)[0]
+    vp_value = solve_for(conserve_energy.subs(va, va_of_vp), vp)[0]
     b.step("Eliminate the apoapsis speed and solve for the periapsis speed.", vp, vp_value)
-    energy_apsides = sp.simplify((vp**2 / 2 - mu / rp).subs(vp, vp_value))
+    energy_apsides = tidy((vp**2 / 2 - mu / rp).subs(vp, vp_value))
     b.step("Energy evaluated at periapsis.", energy, energy_apsides)
-    energy_a = sp.simplify(energy_apsides.subs(ra, 2 * a - rp))
+    energy_a = tidy(energy_apsides.subs(ra, 2 * a - rp))
     b.step("The apsides are $2a$ apart along the major axis: $r_p + r_a = 2a$.", energy, energy_a)
-    speed = sp.solve(sp.Eq(v**2 / 2 - mu / r, energy_a), v)[0]
+    speed = solve_for(sp.Eq(v**2 / 2 - mu / r, energy_a), v)[0]
     speed = sp.sqrt(sp.expand(speed**2))  # v > 0, so v = sqrt(v^2) in expanded form
     b.step("Solve the energy relation at radius $r$ for the speed.", v, speed)
     return b.build(
@@ -83,8 +84,8 @@ def _orbital_period() -> Derivation:
     b.step("Area of the ellipse, with $b = a\\sqrt{1 - e^2}$.", area, sp.pi * a * minor)
     ellipse_area = sp.pi * a * a * sp.sqrt(1 - e**2)
     conic = b.relation("Periapsis from the conic equation ($\\nu = 0$) and from the geometry ($a(1 - e)$).", sp.Eq(h**2 / (mu * (1 + e)), a * (1 - e)))
-    h_value = b.step("Solve for the angular momentum.", h, sp.solve(conic, h)[0])
-    value = sp.simplify(sp.powsimp(ellipse_area / rate.subs(h, h_value), force=True))
+    h_value = b.step("Solve for the angular momentum.", h, solve_for(conic, h)[0])
+    value = sp.powsimp(tidy(ellipse_area / rate.subs(h, h_value)), force=True)
     b.step("The period is the whole area divided by the constant area rate: e cancels.", period, value)
     return b.build(
         result=value,
@@ -164,15 +165,14 @@ def _inplane_burn() -> Derivation:
         change_components,
     )
     radius = b.step("The conic equation, with h the specific angular momentum.", r, h**2 / (mu * (1 + e * sp.cos(nu))))
-    h_value = sp.solve(sp.Eq(radius.subs(nu, 0), rp), h)[0]
+    h_value = solve_for(sp.Eq(radius.subs(nu, 0), rp), h)[0]
     b.step("At periapsis ($\\nu = 0$) the radius is $r_p$.", h, h_value)
-    b.step("Angular momentum is r times the transverse velocity.", v_t, sp.simplify(h / radius))
+    b.step("Angular momentum is r times the transverse velocity.", v_t, tidy(h / radius))
     nu_t = sp.Function("nu")(t)
     radial_rate = sp.diff(radius.subs(nu, nu_t), t).subs(sp.Derivative(nu_t, t), h / radius**2).subs(nu_t, nu)
-    b.step("Radial velocity: differentiate the conic equation in time, with $\\dot\\nu = h/r^2$.", v_r, sp.simplify(radial_rate))
-    velocities = {v_r: sp.simplify(radial_rate), v_t: sp.simplify(h / radius)}
-    change = sp.simplify(change_components.subs(velocities).subs(h, h_value))
-    change = sp.expand(change)
+    b.step("Radial velocity: differentiate the conic equation in time, with $\\dot\\nu = h/r^2$.", v_r, tidy(radial_rate))
+    velocities = {v_r: tidy(radial_rate), v_t: tidy(h / radius)}
+    change = sp.expand(change_components.subs(velocities).subs(h, h_value))
     b.step("Substitute the velocity components before the burn.", gain, change)
     return b.build(
         result=change,
@@ -211,16 +211,16 @@ def _apsis_change() -> Derivation:
     vis_viva = derive("vis_viva")
     r_s, a_s, mu_s = vis_viva.parameters
     vp_value = vis_viva.result.subs({r_s: rp, a_s: (rp + ra) / 2, mu_s: mu}, simultaneous=True)
-    vp_value = sp.simplify(vp_value)
+    vp_value = tidy(vp_value)
     b.step("Periapsis speed from vis-viva with $a = (r_p + r_a)/2$.", vp, vp_value)
     b.step("A tangential burn at periapsis keeps periapsis where it is and adds $\\Delta v$.", w, vp + dv)
     momentum = b.relation("Angular momentum at the new apsides.", sp.Eq(rp * w, r_new * v_new))
     energy = b.relation(
         "Energy conservation between the new apsides.", sp.Eq(w**2 / 2 - mu / rp, v_new**2 / 2 - mu / r_new)
     )
-    v_new_value = sp.solve(momentum, v_new)[0]
-    roots = sp.solve(energy.subs(v_new, v_new_value), r_new)
-    other = [root for root in roots if sp.simplify(root - rp) != 0]
+    v_new_value = solve_for(momentum, v_new)[0]
+    roots = solve_for(energy.subs(v_new, v_new_value), r_new)
+    other = [root for root in roots if tidy(root - rp) != 0]
     (apoapsis_w,) = other
     apoapsis_w = sp.factor(apoapsis_w)
     b.step("Solve for the radius: one root is $r_p$ itself, the other is the new apoapsis.", r_new, apoapsis_w)

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import sympy as sp
 
+from ._algebra import solve_for, tidy
 from ._builder import Builder
 from ._registry import derive, entry
 from .derivation import Derivation
@@ -24,7 +25,7 @@ def _vis_viva(r: sp.Expr, a: sp.Expr, mu: sp.Expr) -> sp.Expr:
     """Speed at ``r`` on a conic of semi-major axis ``a``, from the vis-viva entry."""
     d = derive("vis_viva")
     r_s, a_s, mu_s = d.parameters
-    return sp.simplify(d.result.subs({r_s: r, a_s: a, mu_s: mu}, simultaneous=True))
+    return tidy(d.result.subs({r_s: r, a_s: a, mu_s: mu}, simultaneous=True))
 
 
 def _half_period(a: sp.Expr, mu: sp.Expr) -> sp.Expr:
@@ -38,7 +39,7 @@ def _circular_speed(b: Builder, r: sp.Symbol, mu: sp.Symbol) -> sp.Expr:
     """Record gravity = centripetal acceleration, solve it, return the speed."""
     v = b.symbol("v_circle", "speed on a circular orbit of radius r", "m/s", r"v_{c}")
     balance = b.relation("On a circular orbit gravity supplies the centripetal acceleration.", sp.Eq(mu / r**2, v**2 / r))
-    return b.step("Solve for the circular speed.", v, sp.solve(balance, v)[0])
+    return b.step("Solve for the circular speed.", v, solve_for(balance, v)[0])
 
 
 @entry("hohmann")
@@ -157,10 +158,10 @@ def _plane_change() -> Derivation:
     after = sp.Matrix([v * sp.cos(angle), v * sp.sin(angle)])
     difference = after - before
     b.step("Velocity change, in the plane of the two velocities (old one along the first axis).", dv2, difference.dot(difference))
-    squared = sp.simplify(sp.trigsimp(difference.dot(difference)))
+    squared = sp.factor(sp.trigsimp(sp.expand(difference.dot(difference))))
     b.step("Expand with $\\sin^2 + \\cos^2 = 1$.", dv2, squared)
     phi = sp.Symbol("phi", positive=True)  # half the turn angle
-    half = sp.trigsimp(sp.expand_trig(squared.subs(angle, 2 * phi))).subs(phi, angle / 2)
+    half = sp.factor(sp.fu(squared.subs(angle, 2 * phi))).subs(phi, angle / 2)
     b.step("Half-angle identity: $1 - \\cos\\theta = 2 \\sin^2(\\theta/2)$.", dv2, half)
     magnitude = sp.sqrt(half)
     b.step("Take the square root.", dv, magnitude)
