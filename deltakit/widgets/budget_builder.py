@@ -102,7 +102,7 @@ class BudgetBuilder(Panel):
     >>> panel = BudgetBuilder(m0=1000.0, isp=300.0, dry_mass=0.0,
     ...                       lines=[{"label": "burn", "formula": "number", "params": {"dv": 500.0}}])
     >>> round(panel.results["final_mass"], 1)
-    843.6
+    843.7
     """
 
     readout_spec = {

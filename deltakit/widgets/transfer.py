@@ -65,7 +65,7 @@ class TransferTrade(Panel):
     >>> from deltakit.widgets import TransferTrade
     >>> panel = TransferTrade(r1=6678e3, r2=42164e3, rb=100000e3, plane_change=0.0)
     >>> round(panel.results["hohmann_total"])
-    3935
+    3893
     """
 
     readout_spec = {
