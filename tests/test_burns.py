@@ -11,7 +11,7 @@ from hypothesis import strategies as st
 from scipy.integrate import solve_ivp
 
 from deltakit import BurnOutcome, Conic, DomainError, burn, burn_prograde, energy_gain, hohmann
-from deltakit.burns import _BLOCK
+from deltakit.burns import _BLOCK, _cos_sin
 from deltakit.constants import EARTH, MARS
 
 MU = EARTH.mu
@@ -99,6 +99,18 @@ def test_oberth_same_dv_more_energy_at_periapsis():
     assert nu[np.argmax(gained)] == pytest.approx(0.0, abs=1e-12)
     assert abs(nu[np.argmin(gained)]) == pytest.approx(math.pi)
     np.testing.assert_allclose(gained, energy_gain(gto.speed(nu), 50.0), rtol=1e-13)
+
+
+def test_half_angle_cos_sin_match_numpy():
+    # The burn kernels take cos and sin from tan(nu/2); they must agree with
+    # NumPy's cos and sin to a few ulp, also at +-pi and beyond one turn.
+    nu = np.concatenate([np.linspace(-math.pi, math.pi, 100001), [0.0, -0.0, 7.5, -40.0, 1e3]])
+    cos_nu, sin_nu = _cos_sin(nu)
+    # Beyond one turn, the halving and NumPy's own range reduction differ by
+    # about the rounding of nu itself (ulp(1e3) ~ 1e-13).
+    tolerance = 1e-15 * np.maximum(1.0, 100.0 * np.abs(nu) * (np.abs(nu) > math.pi))
+    assert (np.abs(cos_nu - np.cos(nu)) <= tolerance).all()
+    assert (np.abs(sin_nu - np.sin(nu)) <= tolerance).all()
 
 
 # ---------------------------------------------------------------- independent route: integration
