@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import sympy as sp
 
-from ._algebra import solve_for, tidy
+from ._algebra import solve_for
 from ._builder import Builder
 from ._registry import derive, entry
 from .derivation import Derivation
