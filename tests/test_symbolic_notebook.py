@@ -92,7 +92,7 @@ def test_jupyterlab_typesets_the_derivation(executed: Path, tmp_path: Path, arti
         deadline = time.monotonic() + 60
         while True:
             try:
-                with urllib.request.urlopen(f"{base}/api/status?token={token}", timeout=2):  # noqa: S310
+                with urllib.request.urlopen(f"{base}/api/status?token={token}", timeout=2):
                     break
             except OSError:
                 assert server.poll() is None and time.monotonic() < deadline, (tmp_path / "lab.log").read_text()[-2000:]
