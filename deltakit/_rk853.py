@@ -175,13 +175,15 @@ def integrate(
         remaining = end - t
         last = h >= remaining
         h = np.where(last, remaining, h)
+        flat = K.reshape(12, -1)  # a view (K is contiguous): each weighted sum of stages is one dot
+        shape = y.shape
         for i in range(1, 12):
-            stage = y + h * np.tensordot(A[i, :i], K[:i], axes=1)
+            stage = y + h * np.dot(A[i, :i], flat[:i]).reshape(shape)
             K[i] = rhs(t + C[i] * h, stage, *p)
-        y_new = y + h * np.tensordot(B, K, axes=1)
+        y_new = y + h * np.dot(B, flat).reshape(shape)
         scale = atol + rtol * np.maximum(np.abs(y), np.abs(y_new))
-        err5 = np.tensordot(E5, K, axes=1) / scale
-        err3 = np.tensordot(E3, K, axes=1) / scale
+        err5 = np.dot(E5, flat).reshape(shape) / scale
+        err3 = np.dot(E3, flat).reshape(shape) / scale
         err5_2 = np.sum(err5 * err5, axis=0)
         err3_2 = np.sum(err3 * err3, axis=0)
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -206,7 +208,7 @@ def integrate(
             keep = ~leaving
             idx, y, t, end, h, count = idx[keep], y[:, keep], t[keep], end[keep], h[keep], count[keep]
             p = [q[keep] for q in p]
-            K = K[:, :, keep]
+            K = np.ascontiguousarray(K[:, :, keep])  # so that K.reshape below is a view
             accept = accept[keep]
             if idx.size == 0:
                 break

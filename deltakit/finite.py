@@ -153,7 +153,10 @@ def _burn(rp, e, mu, argp, nu_center, thrust, ve, mass, propellant, prograde):
         t_end = duration / unit_time
     rates = _rates_prograde if prograde else _rates_inertial
     final, _ = integrate(rates, y0, t_end, (accel, mass, flow, ux, uy), rtol=_RTOL, atol=_ATOL)
-    return (x, y, vx, vy), final * np.stack([length, length, speed, speed])
+    final = final * np.stack([length, length, speed, speed])
+    # no firing time, no change: keep the start state to the last bit
+    final = np.where(duration == 0.0, np.stack([x, y, vx, vy]), final)
+    return (x, y, vx, vy), final
 
 
 def _energy(x, y, vx, vy, mu):
