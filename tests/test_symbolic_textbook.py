@@ -173,6 +173,18 @@ def test_escape_and_capture(name):
     _assert_same(d.result, vc * (sp.sqrt(2 + (vinf / vc) ** 2) - 1))
 
 
+@pytest.mark.parametrize("name", ["escape_burn_elliptic", "capture_burn_elliptic"])
+def test_escape_and_capture_elliptic(name):
+    # Curtis, 3rd ed., Sec. 8.6 (planetary arrival into an elliptical capture orbit):
+    # dv = sqrt(v_inf^2 + 2 mu/r_p) - sqrt(2 mu r_a / (r_p (r_p + r_a))) (form from memory).
+    d, s = _symbols(name)
+    rp, vinf, mu, ra = s["rp"], s["vinf"], s["mu"], s["ra"]
+    _assert_same(d.result, sp.sqrt(vinf**2 + 2 * mu / rp) - sp.sqrt(2 * mu * ra / (rp * (rp + ra))))
+    # A parking orbit with r_a = r_p is the circular case.
+    circular, c = _symbols(name.replace("_elliptic", ""))
+    _assert_same(d.result.subs(ra, rp), circular.result.subs({c["rp"]: rp, c["vinf"]: vinf, c["mu"]: mu}))
+
+
 def test_escape_worked_example():
     # Curtis, 3rd ed., Example 8.3 (from memory): Mars departure from a 300 km circular
     # Earth parking orbit with v_inf = 2.943 km/s needs dv = 3.590 km/s
@@ -249,6 +261,7 @@ def test_every_entry_is_checked_here(name):
     checks = {
         "vis_viva", "orbital_period", "oberth", "inplane_burn", "apsis_change", "hohmann", "bielliptic",
         "plane_change", "combined_plane_change", "escape_burn", "capture_burn",
+        "escape_burn_elliptic", "capture_burn_elliptic",
         "powered_flyby", "rocket_equation", "ejection_energy", "burn_energy",
         "propulsive_efficiency",
     }  # fmt: skip

@@ -3,7 +3,8 @@
 Conventions: SI units; burns are impulsive and tangential at periapsis;
 escape and capture burns are magnitudes, the flyby ``dv`` is signed
 (negative: braking). ``vinf`` is the hyperbolic excess speed (C3 = vinf^2).
-The parking orbit is circular of radius ``rp``.
+The parking orbit is circular of radius ``rp``, or (the ``_elliptic`` entries)
+an ellipse from ``rp`` to ``ra`` whose periapsis is the burn point.
 """
 
 from __future__ import annotations
@@ -27,23 +28,33 @@ def _hyperbola_periapsis_speed(b: Builder, vp: sp.Symbol, vinf: sp.Symbol, rp: s
     return b.step("Solve for the periapsis speed on the hyperbola.", vp, solve_for(energy, vp)[0])
 
 
-def _parking_speed(rp: sp.Symbol, mu: sp.Symbol) -> sp.Expr:
+def _parking_speed(rp: sp.Symbol, mu: sp.Symbol, ra: sp.Symbol | None) -> sp.Expr:
+    """Periapsis speed of the parking orbit from the vis-viva entry (circular when ``ra`` is None)."""
     d = derive("vis_viva")
     r_s, a_s, mu_s = d.parameters
-    return tidy(d.result.subs({r_s: rp, a_s: rp, mu_s: mu}, simultaneous=True))
+    a = rp if ra is None else (rp + ra) / 2
+    return tidy(d.result.subs({r_s: rp, a_s: a, mu_s: mu}, simultaneous=True))
 
 
-def _periapsis_entry(name: str, title: str, leaving: bool) -> Derivation:
+def _periapsis_entry(name: str, title: str, leaving: bool, elliptic: bool) -> Derivation:
     b = Builder(name, title)
-    rp = b.symbol("rp", "radius of the circular parking orbit", "m", "r_{p}")
+    if elliptic:
+        rp = b.symbol("rp", "periapsis radius of the parking orbit (where the burn happens)", "m", "r_{p}")
+    else:
+        rp = b.symbol("rp", "radius of the circular parking orbit", "m", "r_{p}")
     vinf = b.symbol("vinf", "hyperbolic excess speed", "m/s", r"v_{\infty}")
     mu = b.symbol("mu", "gravitational parameter of the body", "m^3/s^2", r"\mu")
+    ra = b.symbol("ra", "apoapsis radius of the parking orbit", "m", "r_{a}") if elliptic else None
     vp = b.symbol("vp", "hyperbola speed at periapsis", "m/s", "v_{p}")
-    vc = b.symbol("v_park", "parking-orbit speed", "m/s", r"v_{c}")
+    vc = b.symbol("v_park", "parking-orbit speed at periapsis", "m/s", r"v_{c}")
     dv = b.symbol("dv", "burn magnitude", "m/s", r"\Delta v")
 
     hyperbola = _hyperbola_periapsis_speed(b, vp, vinf, rp, mu)
-    park = b.step("Circular parking orbit: vis-viva with $a = r_p$.", vc, _parking_speed(rp, mu))
+    if elliptic:
+        sentence = "Elliptic parking orbit: vis-viva at periapsis with $a = (r_p + r_a)/2$."
+    else:
+        sentence = "Circular parking orbit: vis-viva with $a = r_p$."
+    park = b.step(sentence, vc, _parking_speed(rp, mu, ra))
     if leaving:
         sentence = "A prograde burn raises the parking speed to the hyperbola speed."
     else:
@@ -52,12 +63,17 @@ def _periapsis_entry(name: str, title: str, leaving: bool) -> Derivation:
     value = hyperbola - park
     b.step("Substitute both speeds.", dv, value)
     twin = "deltakit.escape_burn" if leaving else "deltakit.capture_burn"
+    orbit = (
+        "Elliptic parking orbit with periapsis $r_p$ and apoapsis $r_a$, its periapsis at the hyperbola's."
+        if elliptic
+        else "Circular parking orbit, coplanar with the hyperbola."
+    )
     return b.build(
         result=value,
         target=dv,
-        parameters=(rp, vinf, mu),
+        parameters=(rp, vinf, mu, ra) if elliptic else (rp, vinf, mu),
         twin=twin,
-        assumptions=[_TWO_BODY, _IMPULSIVE, "Circular parking orbit, coplanar with the hyperbola."],
+        assumptions=[_TWO_BODY, _IMPULSIVE, orbit],
         references=[
             "Curtis, Orbital Mechanics for Engineering Students, planetary departure and arrival (Ch. 8)",
         ],
@@ -66,12 +82,26 @@ def _periapsis_entry(name: str, title: str, leaving: bool) -> Derivation:
 
 @entry("escape_burn")
 def _escape_burn() -> Derivation:
-    return _periapsis_entry("escape_burn", "Escape burn from a circular parking orbit", leaving=True)
+    return _periapsis_entry("escape_burn", "Escape burn from a circular parking orbit", leaving=True, elliptic=False)
 
 
 @entry("capture_burn")
 def _capture_burn() -> Derivation:
-    return _periapsis_entry("capture_burn", "Capture burn into a circular orbit", leaving=False)
+    return _periapsis_entry("capture_burn", "Capture burn into a circular orbit", leaving=False, elliptic=False)
+
+
+@entry("escape_burn_elliptic")
+def _escape_burn_elliptic() -> Derivation:
+    return _periapsis_entry(
+        "escape_burn_elliptic", "Escape burn from the periapsis of an elliptic parking orbit", leaving=True, elliptic=True
+    )
+
+
+@entry("capture_burn_elliptic")
+def _capture_burn_elliptic() -> Derivation:
+    return _periapsis_entry(
+        "capture_burn_elliptic", "Capture burn into an elliptic orbit at its periapsis", leaving=False, elliptic=True
+    )
 
 
 @entry("powered_flyby")
