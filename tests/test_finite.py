@@ -106,6 +106,10 @@ CASES = [
      5000.0, 3200.0, 3000.0, 900.0, 0.3, "prograde"),
     ("Mars hyperbola, inertial", Conic.from_vinf(MARS.radius + 400e3, 2500.0, MARS.mu),
      5000.0, 3200.0, 3000.0, 900.0, -0.2, "inertial"),
+    ("parabola, burn centred on periapsis", Conic.from_vinf(EARTH.radius + 500e3, 0.0, EARTH.mu),
+     10e3, 3200.0, 5000.0, 500.0, 0.0, "prograde"),
+    ("near-parabolic ellipse (e = 0.99), inertial", Conic(EARTH.radius + 500e3, 0.99, EARTH.mu, argp=2.0),
+     3000.0, 3200.0, 5000.0, 700.0, -0.1, "inertial"),
     ("electric propulsion, spiral of about eight turns", Conic.circular(EARTH.radius + 1000e3, EARTH.mu),
      2.0, 30000.0, 1000.0, 100.0, 0.0, "prograde"),
 ]
@@ -308,3 +312,20 @@ def test_integrator_cases_leaving_at_different_times():
     r_end, v_end = c.state(kepler_propagate(c, 0.0, t_end))
     np.testing.assert_allclose(y[:2].T, r_end, atol=1e-8)
     np.testing.assert_allclose(y[2:].T, v_end, atol=1e-8)
+
+
+def test_impulsive_limit_matches_the_impulsive_burn():
+    # At thrust-to-weight 1000 the arc is a fraction of a second: the orbit after it
+    # and the ideal energy change must be those of deltakit's impulsive prograde
+    # burn (deltakit.burns, written and tested separately).
+    from deltakit import burn_prograde, energy_gain
+
+    gto = Conic.from_apsides(EARTH.radius + 250e3, 42164e3, EARTH.mu, argp=0.3)
+    nu, dv = np.array([-0.6, 0.0, 0.4, 2.0]), np.array([300.0, 800.0, 800.0, 150.0])
+    arc = thrust_arc(gto, 1000 * 3000.0 * G0, 3100.0, 3000.0, dv, nu)
+    impulse = burn_prograde(gto, nu, dv)
+    np.testing.assert_allclose(arc.ideal_energy_change, energy_gain(gto.speed(nu), dv), rtol=1e-14)
+    np.testing.assert_allclose(arc.energy_change, impulse.energy_change, rtol=1e-6)
+    np.testing.assert_allclose(arc.after.rp, impulse.after.rp, rtol=1e-6)
+    np.testing.assert_allclose(arc.after.e, impulse.after.e, rtol=1e-6)
+    np.testing.assert_allclose(arc.after.argp, impulse.after.argp, atol=1e-5)
