@@ -17,7 +17,9 @@ Conventions
   ``thrust / ve`` kg/s.
 * ``loss`` is a delta-v (m/s): ``dv`` minus the prograde impulse at
   ``nu_center`` that would give the arc's energy change. It is positive when
-  the arc does worse than the impulse.
+  the arc does worse than the impulse, which is the rule near periapsis; an
+  arc centred near apoapsis spends part of its propellant where the vehicle
+  is faster than at the centre, so its loss can be slightly negative.
 * Inputs broadcast together (conic elements, thrust, ve, m0, dv, nu_center,
   splits); every case is integrated at once, the Python loop runs over
   integration steps and burns only.
@@ -254,6 +256,7 @@ def thrust_arc(
     speed_center = np.hypot(vx0, vy0)
 
     state = np.full((4, rp.size), np.nan)
+    energy_start = np.full(rp.size, np.nan)
     coast = (rp, e, argp)
     alive = np.ones(rp.size, dtype=bool)
     for k in range(int(splits.max(initial=1))):

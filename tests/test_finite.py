@@ -329,3 +329,17 @@ def test_impulsive_limit_matches_the_impulsive_burn():
     np.testing.assert_allclose(arc.after.rp, impulse.after.rp, rtol=1e-6)
     np.testing.assert_allclose(arc.after.e, impulse.after.e, rtol=1e-6)
     np.testing.assert_allclose(arc.after.argp, impulse.after.argp, atol=1e-5)
+
+
+def test_arc_centred_on_apoapsis_can_beat_the_impulse_there():
+    # Speed is lowest at apoapsis, so an arc around it burns at higher speeds than
+    # the impulse at apoapsis: the loss is negative (a fact of the Oberth relation,
+    # dE = integral of v . a dt; common practice, no table).
+    c = Conic.from_apsides(7000e3, 30000e3, EARTH.mu)
+    out = thrust_arc(c, np.array([200.0, 20000.0]), 3000.0, 1000.0, 300.0, np.pi)
+    assert out.loss[0] < 0.0 and out.loss[0] < out.loss[1] < 0.0
+
+
+def test_empty_input_gives_empty_output():
+    out = thrust_arc(Conic.circular(7000e3, EARTH.mu), np.array([]), 3000.0, 1000.0, 300.0)
+    assert out.loss.shape == (0,) and out.after.shape == (0,)
