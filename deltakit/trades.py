@@ -127,8 +127,10 @@ def best_burn_point(
     'rad'
     """
     nu = _FULL_TURN if nu is None else nu
+    # nu last: the automatic block layout keeps trailing axes whole, so each
+    # block holds whole nu rows and the reductions over nu stay inside blocks.
     grid = sweep(
-        prograde_energy_change, nu=nu, dv=dv, rp=rp, ra=ra, mu=mu, chunks=chunks, name="energy_change",
+        prograde_energy_change, dv=dv, rp=rp, ra=ra, nu=nu, mu=mu, chunks=chunks, name="energy_change",
         units={"energy_change": "J/kg"},
     )
     energy = grid["energy_change"]
