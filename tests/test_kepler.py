@@ -274,3 +274,17 @@ def test_broadcasting_and_scalars():
 def test_bad_input_names_the_parameter(call, match):
     with pytest.raises(DomainError, match=match):
         call()
+
+
+@pytest.mark.parametrize("E", [1e-6, 1e-3, 0.05, 0.5, 0.99, 1.01, 2.0])
+def test_mean_anomaly_keeps_its_digits_near_parabolic(E):
+    # M = E - e sin E for e near 1 and small E is a difference of nearly equal
+    # numbers; deltakit evaluates it without cancellation. mpmath at 50 digits is exact.
+    for e in (0.999999, 1 - 1e-12):
+        with mpmath.workdps(50):
+            exact = float(mpmath.mpf(E) - mpmath.mpf(e) * mpmath.sin(E))
+        assert eccentric_to_mean(E, e) == pytest.approx(exact, rel=1e-14)
+    for e in (1.000001, 1 + 1e-12):
+        with mpmath.workdps(50):
+            exact = float(mpmath.mpf(e) * mpmath.sinh(E) - mpmath.mpf(E))
+        assert hyperbolic_to_mean(E, e) == pytest.approx(exact, rel=1e-14)
