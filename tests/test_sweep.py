@@ -339,3 +339,21 @@ def test_corrupt_or_newer_store_is_refused_untouched(tmp_path):
 
     with pytest.raises(FileNotFoundError):
         open_sweep(tmp_path / "missing.zarr")
+
+
+def test_units_for_coordinates_and_unknown_names():
+    def cost(throttle, dv):
+        return dv / throttle
+
+    ds = dk.sweep(cost, throttle=[0.5, 1.0], dv=[10.0, 20.0], units={"throttle": "1", "cost": "m/s"})
+    assert ds["throttle"].attrs == {"units": "1"}
+    assert ds["dv"].attrs == {"units": "m/s"}  # from the table of known parameter names
+    assert ds["cost"].attrs == {"units": "m/s"}
+    bare = dk.sweep(cost, throttle=[0.5, 1.0], dv=[10.0])
+    assert "units" not in bare["throttle"].attrs and "units" not in bare["cost"].attrs
+
+
+def test_missing_scale_extra_gives_a_clear_message(monkeypatch):
+    monkeypatch.setitem(__import__("sys").modules, "xarray", None)
+    with pytest.raises(ImportError, match=r"deltakit\[scale\]"):
+        dk.sweep(dk.circular_speed, r=[7e6], mu=MU)
