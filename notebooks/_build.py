@@ -245,6 +245,8 @@ only pays above a radius ratio of about 11.94 (and only for a far enough interme
 below that, Hohmann wins. An intermediate radius inside the target orbit is not a bi-elliptic
 transfer and gives NaN."""),
     code("""
+import matplotlib.ticker as mticker
+
 ratio = np.geomspace(1.5, 80.0, 400)
 v1 = dk.circular_speed(r1, EARTH.mu)
 hohmann_total = dk.hohmann(r1, ratio * r1, EARTH.mu).total / v1
@@ -255,6 +257,10 @@ ax.semilogx(ratio, hohmann_total, label="Hohmann")
 for k, total in bi_total.items():
     ax.semilogx(ratio, total, "--", label=f"bi-elliptic, rb = {k:g} r2")
 ax.axvline(r2 / r1, color="grey", lw=0.8)
+ax.axvline(11.94, color="grey", lw=0.8, ls=":")
+ax.text(11.94, 0.22, " 11.94", color="grey", fontsize=8)
+ax.set_xticks([2, 5, 10, 20, 50], labels=["2", "5", "10", "20", "50"])
+ax.xaxis.set_minor_formatter(mticker.NullFormatter())
 ax.set_xlabel("radius ratio r2/r1 (-)")
 ax.set_ylabel("total delta-v / initial circular speed (-)")
 ax.legend(fontsize=8)
@@ -332,6 +338,8 @@ radii = jupiter.radius * np.geomspace(1.05, 50.0, 300)
 fig, ax = plt.subplots(figsize=(7.5, 4), layout="constrained")
 for burn in (150.0, 300.0, 600.0):
     ax.semilogx(radii / jupiter.radius, dk.powered_flyby(vinf, radii, burn, jupiter.mu).gain, label=f"{burn:.0f} m/s at periapsis")
+ax.set_xticks([1, 2, 5, 10, 20, 50], labels=["1", "2", "5", "10", "20", "50"])
+ax.xaxis.set_minor_formatter(plt.NullFormatter())
 ax.set_xlabel("flyby periapsis radius (Jupiter radii)")
 ax.set_ylabel("gain beyond vinf + dv (m/s)")
 ax.set_title("Cinderwren: powered flyby of Jupiter at 5.6 km/s")
@@ -400,8 +408,10 @@ table = dk.loss_table(orbit, ve, tug.wet_mass, dv, thrust_to_weight=(0.02, 0.05,
 table"""),
     code("""
 fig, ax = plt.subplots(figsize=(7, 4), layout="constrained")
-for column in table.columns:
+for column in [c for c in table.columns if str(c).startswith("loss")]:
     ax.loglog(table.index, table[column], "o-", label=str(column))
+ax.set_xticks(table.index, labels=[f"{x:g}" for x in table.index])
+ax.xaxis.set_minor_formatter(plt.NullFormatter())
 ax.set_xlabel("thrust-to-weight at ignition (-)")
 ax.set_ylabel("finite-burn loss (m/s)")
 ax.set_title("Halyard injection: loss against engine size")
