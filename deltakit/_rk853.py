@@ -15,7 +15,7 @@ at most 1, then scale the step by ``0.9 err^(-1/8)`` within [0.2, 10].
 
 from __future__ import annotations
 
-from typing import Callable, Sequence
+from collections.abc import Callable, Sequence
 
 import numpy as np
 

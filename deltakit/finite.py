@@ -30,8 +30,9 @@ mission's verified tools.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any, Sequence
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -219,6 +220,14 @@ def thrust_arc(
     ArcOutcome
         Fields broadcast to the common shape; NumPy scalars for scalar input.
 
+    Notes
+    -----
+    The integrator takes about 45 steps per revolution of thrusting, all
+    cases together, so a spiral of many revolutions costs time in proportion.
+    A case still unfinished after 100,000 steps (some 2,000 revolutions) is
+    NaN. The central body is a point mass: an arc that dips below the
+    surface is not flagged.
+
     Examples
     --------
     A 30 kN stage of 12 t leaving a 300 km Earth orbit with 3.2 km/s (ve 4.4 km/s):
@@ -252,7 +261,7 @@ def thrust_arc(
 
     propellant = -np.expm1(-dv / ve) * m0
     each = propellant / splits
-    x0, y0, vx0, vy0 = _state(rp, e, mu, argp, nu_center)
+    _, _, vx0, vy0 = _state(rp, e, mu, argp, nu_center)
     speed_center = np.hypot(vx0, vy0)
 
     state = np.full((4, rp.size), np.nan)

@@ -76,6 +76,7 @@ def _scipy_arc(conic, thrust, ve, m0, dv, nu_center=0.0, steering="prograde", sp
     r_vec, v_vec = conic.state(nu_center)
     centre = np.concatenate([r_vec, v_vec])
     start_energy = None
+    state = centre
     for k in range(splits):
         if k > 0:
             centre = _next_periapsis(mu, state)

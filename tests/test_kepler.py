@@ -68,11 +68,11 @@ def test_elliptic_matches_brentq_and_mpmath():
     for e in (0.0, 0.3, 0.97, 0.9999):
         for M in (1e-6, 0.2, 2.5, np.pi - 1e-9):
             E = mean_to_eccentric(M, e)
-            reference = brentq(lambda x: x - e * np.sin(x) - M, 0.0, np.pi, xtol=1e-15, rtol=1e-15)
+            reference = brentq(lambda x, e=e, M=M: x - e * np.sin(x) - M, 0.0, np.pi, xtol=1e-15, rtol=1e-15)
             slope = 1.0 - e * np.cos(reference)
             assert E == pytest.approx(reference, rel=1e-14 / slope, abs=1e-15)
             with mpmath.workdps(40):
-                exact = mpmath.findroot(lambda x: x - e * mpmath.sin(x) - M, reference)
+                exact = mpmath.findroot(lambda x, e=e, M=M: x - e * mpmath.sin(x) - M, reference)
             assert E == pytest.approx(float(exact), rel=2e-15)
 
 
@@ -114,11 +114,11 @@ def test_hyperbolic_matches_brentq_and_mpmath():
     for e in (1.0001, 1.5, 4.0, 10.0):
         for M in (1e-5, 0.7, 40.0, 3e4):
             H = mean_to_hyperbolic(M, e)
-            reference = brentq(lambda x: e * np.sinh(x) - x - M, 0.0, 30.0, xtol=1e-15, rtol=1e-15)
+            reference = brentq(lambda x, e=e, M=M: e * np.sinh(x) - x - M, 0.0, 30.0, xtol=1e-15, rtol=1e-15)
             slope = e * np.cosh(reference) - 1.0
             assert H == pytest.approx(reference, rel=1e-14 * max(1.0, M) / slope / reference + 1e-14)
             with mpmath.workdps(40):
-                exact = mpmath.findroot(lambda x: e * mpmath.sinh(x) - x - M, reference)
+                exact = mpmath.findroot(lambda x, e=e, M=M: e * mpmath.sinh(x) - x - M, reference)
             assert H == pytest.approx(float(exact), rel=2e-15)
 
 
