@@ -192,6 +192,19 @@ def test_arrays_equal_loop_of_scalar_calls(rows):
         assert many_split[i] == pytest.approx(best_plane_change_split(r1[i], r2[i], 3.986e14, 0.3), abs=1e-9)
 
 
+@given(st.lists(st.tuples(radii, radii, turns, st.floats(0.0, 1.0), st.floats(0.0, 2e4)), min_size=1, max_size=6))
+def test_plane_changes_on_arrays_equal_loop(rows):
+    r1, r2, angle, fraction, v = (np.array(c) for c in zip(*rows))
+    many = hohmann_plane_change(r1, r2, 3.986e14, angle, fraction)
+    pure = plane_change(v, angle)
+    combined = combined_plane_change(v, v[::-1], angle)
+    for i in range(len(rows)):
+        one = hohmann_plane_change(r1[i], r2[i], 3.986e14, angle[i], fraction[i])
+        assert [b[i] for b in many.burns] == list(one.burns) and many.total[i] == one.total
+        assert pure[i] == plane_change(v[i], angle[i])
+        assert combined[i] == combined_plane_change(v[i], v[::-1][i], angle[i])
+
+
 def test_broadcasting_and_result_types():
     r2 = np.linspace(8000e3, 42164e3, 5)
     t = hohmann(7000e3, r2[:, None], np.array([3.986e14, 4.28e13]))
