@@ -72,6 +72,7 @@ _NAMES: dict[str, str] = {
     "mean_to_hyperbolic": "kepler",
     "hyperbolic_to_mean": "kepler",
     "mean_anomaly": "kepler",
+    "mean_motion": "kepler",
     "true_anomaly_from_mean": "kepler",
     "time_of_flight": "kepler",
     "propagate": "kepler",

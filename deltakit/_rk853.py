@@ -11,6 +11,11 @@ the short ones pay. The Python loop runs over steps, never over cases.
 
 The step-size rule is the usual one: accept when the scaled error norm is
 at most 1, then scale the step by ``0.9 err^(-1/8)`` within [0.2, 10].
+
+Notice for the tableau: the numbers were taken from SciPy
+(scipy/integrate/_ivp/dop853_coefficients.py), Copyright (c) 2001-2002
+Enthought, Inc. and 2003 onwards SciPy Developers, distributed under the
+BSD 3-Clause licence, which permits this use provided the notice is kept.
 """
 
 from __future__ import annotations

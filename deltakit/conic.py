@@ -188,7 +188,7 @@ class Conic(Result):
 
     @property
     def p(self) -> Any:
-        """Semi-latus rotum ``rp (1 + e)``, m."""
+        """Semi-latus rectum ``rp (1 + e)``, m."""
         return self.rp * (1.0 + self.e)
 
     @property
