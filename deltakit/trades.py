@@ -19,7 +19,7 @@ Results are for preliminary analysis, not for flight operations.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -30,6 +30,9 @@ from .conic import Conic
 from .propulsion import propellant_mass
 from .sweep import sweep
 from .transfers import bielliptic, hohmann
+
+if TYPE_CHECKING:  # the `scale` extra; the sweep imports it at run time
+    import xarray
 
 __all__ = ["best_burn_point", "bielliptic_break_even", "propellant_grid", "prograde_energy_change"]
 
@@ -89,7 +92,7 @@ def best_burn_point(
     *,
     nu: ArrayLike | None = None,
     chunks: Any = None,
-) -> Any:
+) -> xarray.Dataset:
     """Best burn point per orbit shape: argmax over ``nu`` of the energy change.
 
     Parameters
@@ -182,7 +185,7 @@ def _break_even_rb(advantage: np.ndarray, rb: np.ndarray) -> np.ndarray:
     return np.where(tail_wins, crossing, np.nan)
 
 
-def bielliptic_break_even(r2_ratio: ArrayLike, rb_ratio: ArrayLike, *, chunks: Any = None) -> Any:
+def bielliptic_break_even(r2_ratio: ArrayLike, rb_ratio: ArrayLike, *, chunks: Any = None) -> xarray.Dataset:
     """Where a bi-elliptic transfer beats the Hohmann transfer, over r2/r1 and rb/r1.
 
     Between coplanar circular orbits of radii ``r1`` and ``r2 > r1``; the
@@ -270,7 +273,7 @@ def _propellant_books(dv: ArrayLike, m0: ArrayLike, ve: ArrayLike) -> dict[str, 
     return {"propellant": propellant, "final_mass": m0 - propellant, "propellant_fraction": propellant / m0}
 
 
-def propellant_grid(dv: ArrayLike, m0: ArrayLike, ve: ArrayLike, *, chunks: Any = None) -> Any:
+def propellant_grid(dv: ArrayLike, m0: ArrayLike, ve: ArrayLike, *, chunks: Any = None) -> xarray.Dataset:
     """Propellant a delta-v costs over a grid of vehicles (initial mass x exhaust velocity).
 
     Parameters
