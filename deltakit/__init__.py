@@ -48,6 +48,8 @@ _NAMES: dict[str, str] = {
     "Transfer": "transfers",
     "plane_change": "transfers",
     "combined_plane_change": "transfers",
+    "hohmann_plane_change": "transfers",
+    "best_plane_change_split": "transfers",
     # departure, arrival, flyby
     "escape_burn": "departure",
     "capture_burn": "departure",

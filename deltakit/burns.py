@@ -220,31 +220,13 @@ def _blockwise(kernel, *arrays: np.ndarray) -> tuple[np.ndarray, ...]:
     return outputs
 
 
-def _fresh_conic(rp: np.ndarray, e: np.ndarray, mu: Any, argp: np.ndarray) -> Conic:
-    """A Conic holding arrays this module has just made, without copying them.
-
-    Same result as ``Conic._trusted`` (read-only broadcast elements, NaN
-    allowed), but ``rp``, ``e`` and ``argp`` are fresh arrays of the full shape
-    that nobody else holds, so they are frozen in place; ``mu`` becomes a
-    read-only broadcast view. On a million burns this saves four copies.
-    """
-    if rp.ndim == 0:
-        return Conic._trusted(rp, e, mu, argp)
-    conic = object.__new__(Conic)
-    for name, value in (("rp", rp), ("e", e), ("mu", np.broadcast_to(mu, rp.shape)), ("argp", argp)):
-        if value.flags.writeable:
-            value.flags.writeable = False
-        object.__setattr__(conic, name, value)
-    return conic
-
-
 def _outcome(
     conic: Conic, nu: np.ndarray, dv: np.ndarray, results: tuple[np.ndarray, ...], shape: tuple[int, ...]
 ) -> BurnOutcome:
     rp_new, e_new, argp_new, nu_after, energy_change = results
     return BurnOutcome(
         before=conic,
-        after=_fresh_conic(rp_new, e_new, conic.mu, argp_new),
+        after=Conic._trusted(rp_new, e_new, conic.mu, argp_new, copy=False),
         nu=scalar_or_array(np.broadcast_to(nu, shape)),
         dv=scalar_or_array(np.broadcast_to(dv, shape)),
         energy_change=scalar_or_array(energy_change),

@@ -74,22 +74,30 @@ class Conic(Result):
         argp = finite(self.argp, "argp", "rad")
         self._store(rp, e, mu, argp)
 
-    def _store(self, rp: np.ndarray, e: np.ndarray, mu: np.ndarray, argp: np.ndarray) -> None:
-        arrays = np.broadcast_arrays(rp, e, mu, argp)
-        for name, value in zip(("rp", "e", "mu", "argp"), arrays):
-            if value.ndim:
-                value = np.array(value)  # own, contiguous copy of the broadcast view
-                value.flags.writeable = False
+    def _store(self, rp: np.ndarray, e: np.ndarray, mu: np.ndarray, argp: np.ndarray, copy: bool = True) -> None:
+        shape = np.broadcast_shapes(rp.shape, e.shape, mu.shape, argp.shape)
+        for name, value in zip(("rp", "e", "mu", "argp"), (rp, e, mu, argp)):
+            if shape:
+                if copy:  # own, contiguous, read-only copy: nobody can change it behind our back
+                    value = np.array(np.broadcast_to(value, shape))
+                    value.flags.writeable = False
+                else:  # read-only view of an array the caller has just made and holds no more
+                    value = np.broadcast_to(value, shape)
             object.__setattr__(self, name, scalar_or_array(value))
 
     @classmethod
-    def _trusted(cls, rp: Any, e: Any, mu: Any, argp: Any = 0.0) -> "Conic":
+    def _trusted(cls, rp: Any, e: Any, mu: Any, argp: Any = 0.0, *, copy: bool = True) -> "Conic":
         """Build without checks from arrays the numeric layer computed itself.
 
         Elements may be NaN (an infeasible outcome); nothing is validated.
+        With ``copy=False`` the fields are read-only views of the given arrays,
+        for callers that have just made those arrays and keep no reference
+        (saves four copies on a million burns).
         """
         conic = object.__new__(cls)
-        conic._store(np.asarray(rp, float), np.asarray(e, float), np.asarray(mu, float), np.asarray(argp, float))
+        conic._store(
+            np.asarray(rp, float), np.asarray(e, float), np.asarray(mu, float), np.asarray(argp, float), copy
+        )
         return conic
 
     # ------------------------------------------------------------------ constructors
@@ -199,9 +207,9 @@ class Conic(Result):
 
     @property
     def ra(self) -> Any:
-        """Apoapsis radius, m (``inf`` for ``e >= 1``)."""
+        """Apoapsis radius, m (``inf`` for ``e >= 1``, NaN where ``e`` is NaN)."""
         with np.errstate(divide="ignore", invalid="ignore"):
-            return scalar_or_array(np.where(self.e < 1.0, self.p / (1.0 - self.e), np.inf))
+            return scalar_or_array(np.where(self.e >= 1.0, np.inf, self.p / (1.0 - self.e)))
 
     @property
     def energy(self) -> Any:
@@ -215,10 +223,10 @@ class Conic(Result):
 
     @property
     def period(self) -> Any:
-        """Orbital period, s (``inf`` for ``e >= 1``)."""
+        """Orbital period, s (``inf`` for ``e >= 1``, NaN where ``e`` is NaN)."""
         with np.errstate(divide="ignore", invalid="ignore"):
             a = np.divide(self.rp, 1.0 - self.e)
-            return scalar_or_array(np.where(self.e < 1.0, _TWO_PI * np.sqrt(np.abs(a) ** 3 / self.mu), np.inf))
+            return scalar_or_array(np.where(self.e >= 1.0, np.inf, _TWO_PI * np.sqrt(np.abs(a) ** 3 / self.mu)))
 
     @property
     def vinf(self) -> Any:
