@@ -487,11 +487,24 @@ print(f"panel: propellant {base['propellant']:.0f} kg -> {heavier['propellant']:
       f"left in the tank {base['propellant_left']:.0f} kg -> {heavier['propellant_left']:.0f} kg")
 builder"""),
     md("""
+## The formulas behind the lines
+
+`FormulaSheet` shows each derivation with its assumptions and steps, and offers its LaTeX and Markdown.
+Here it shows the capture burn used for the lunar orbit insertion."""),
+    code("""
+from deltakit.widgets import FormulaSheet
+
+sheet = FormulaSheet()
+sheet.set(derivation="capture_burn")
+print(sheet.results["title"])
+sheet"""),
+    md("""
 ## The report
 
 The report holds the caution, the budget table and the derivation of each formula the budget used,
 in Markdown (shown here) and as a LaTeX document. Both are written atomically to a folder of their own."""),
     code("""
+import json
 import os
 import tempfile
 from pathlib import Path
@@ -503,10 +516,18 @@ title = "Halyard delta-v budget"
 derivations_md = report(used, "markdown", title="Derivations used")
 report_md = "\\n\\n".join([f"# {title}", f"*{demo.CAUTION}*", budget.to_markdown(), derivations_md])
 
+def save_text(path: Path, text: str) -> None:
+    # Atomic: a temporary file in the same folder, then a rename over the target.
+    temporary = path.with_name(f".{path.name}.tmp")
+    temporary.write_text(text, encoding="utf-8")
+    os.replace(temporary, path)
+
+
 out = Path(os.environ.get("DELTAKIT_REPORT_DIR") or tempfile.mkdtemp(prefix="halyard-report-"))
 out.mkdir(parents=True, exist_ok=True)
-(out / "halyard_budget.md").write_text(report_md)
+save_text(out / "halyard_budget.md", report_md)
 budget.save(out / "halyard_budget.json")
+save_text(out / "budget_panel.json", json.dumps(builder.export(), indent=1))
 print(f"written to {out}")
 display(Markdown(report_md))"""),
     code("""
@@ -521,7 +542,7 @@ table = (
 )
 latex = latex.replace("\\\\begin{document}\\n", "\\\\begin{document}\\n" + table, 1)
 tex = out / "halyard_budget.tex"
-tex.write_text(latex)
+save_text(tex, latex)
 print(latex[:1500])
 if shutil.which("pdflatex"):
     run = subprocess.run(["pdflatex", "-interaction=nonstopmode", "-halt-on-error", tex.name],

@@ -208,7 +208,7 @@ def notebook_page(
     with sync_playwright() as pw:
         context = pw.chromium.launch_persistent_context(
             user_data_dir=str(profile), executable_path=str(CHROMIUM), headless=True,
-            args=CHROMIUM_ARGS, viewport={"width": 1280, "height": 1000},
+            args=CHROMIUM_ARGS, viewport={"width": 1280, "height": 1500},
         )
         try:
             page = context.new_page()
@@ -412,3 +412,4 @@ def test_panel_answers_keyboard_and_redraws(notebook_page: Any, artifacts: Path,
         after = _wait_redrawn(page, figure, before)
         assert after != before, f"{name}: the figure did not redraw after {control!r} moved"
     box.screenshot(path=str(artifacts / f"browser-{name}-after.png"))
+    page.screenshot(path=str(artifacts / f"browser-{name}-page.png"))  # the panel in its notebook
