@@ -47,7 +47,7 @@ from .errors import DomainError
 if TYPE_CHECKING:  # the `scale` extra; imported at run time only inside the functions
     import xarray
 
-__all__ = ["sweep", "save_sweep", "open_sweep", "KNOWN_UNITS", "EAGER_LIMIT"]
+__all__ = ["EAGER_LIMIT", "KNOWN_UNITS", "open_sweep", "save_sweep", "sweep"]
 
 #: Grids with at most this many cases are evaluated eagerly when ``chunks`` is None.
 EAGER_LIMIT: int = 1 << 22
@@ -401,7 +401,7 @@ def _read_tag(path: Path, xr: Any) -> Any:
     try:
         with xr.open_zarr(path, consolidated=False, chunks=None) as ds:
             return ds.attrs.get(_TAG)
-    except Exception:  # anything unreadable is not ours
+    except Exception:  # noqa: BLE001 - anything unreadable is not ours
         return None
 
 
@@ -455,9 +455,8 @@ def save_sweep(dataset: xarray.Dataset, path: str | os.PathLike[str]) -> Path:
     if not isinstance(dataset, xr.Dataset) or _TAG not in dataset.attrs:
         raise DomainError("save_sweep: `dataset` must be a deltakit sweep (an xarray.Dataset made by deltakit.sweep)")
     path = Path(path)
-    if path.exists() or path.is_symlink():
-        if _read_tag(path, xr) is None:
-            raise DomainError(f"save_sweep: refusing to overwrite {path}: it is not a deltakit sweep")
+    if (path.exists() or path.is_symlink()) and _read_tag(path, xr) is None:
+        raise DomainError(f"save_sweep: refusing to overwrite {path}: it is not a deltakit sweep")
     path.parent.mkdir(parents=True, exist_ok=True)
     temporary = Path(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent))
     try:

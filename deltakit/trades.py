@@ -34,7 +34,7 @@ from .transfers import bielliptic, hohmann
 if TYPE_CHECKING:  # the `scale` extra; the sweep imports it at run time
     import xarray
 
-__all__ = ["best_burn_point", "bielliptic_break_even", "propellant_grid", "prograde_energy_change"]
+__all__ = ["best_burn_point", "bielliptic_break_even", "prograde_energy_change", "propellant_grid"]
 
 _FULL_TURN = np.linspace(0.0, 2.0 * np.pi, 360, endpoint=False)
 

@@ -20,11 +20,11 @@ from hypothesis import strategies as st
 xr = pytest.importorskip("xarray")
 da = pytest.importorskip("dask.array")
 
-import deltakit as dk  # noqa: E402
-import deltakit.sweep as sweep_module  # noqa: E402
-from deltakit import DomainError  # noqa: E402
-from deltakit.constants import EARTH, MARS  # noqa: E402
-from deltakit.sweep import KNOWN_UNITS, open_sweep, save_sweep  # noqa: E402
+import deltakit as dk
+import deltakit.sweep as sweep_module
+from deltakit import DomainError
+from deltakit.constants import EARTH, MARS
+from deltakit.sweep import KNOWN_UNITS, open_sweep, save_sweep
 
 MU = EARTH.mu
 R1 = np.linspace(6700e3, 9000e3, 7)
@@ -128,7 +128,7 @@ def test_any_grid_equals_the_open_grid_broadcast(sizes, dv_span, seed):
 # ---------------------------------------------------------------------- lazy, chunked
 @pytest.mark.parametrize("chunks", ["auto", 7, 100, {"nu": 5, "ra": 2}, {"rp": -1, "nu": 24}])
 def test_chunked_equals_eager(chunks):
-    axes = dict(nu=NU, dv=DV, rp=R1, ra=np.geomspace(9500e3, 60000e3, 6))
+    axes = {"nu": NU, "dv": DV, "rp": R1, "ra": np.geomspace(9500e3, 60000e3, 6)}
     eager = dk.sweep(orbit_energy, mu=MU, **axes)
     lazy = dk.sweep(orbit_energy, mu=MU, chunks=chunks, **axes)
     assert isinstance(lazy["orbit_energy"].data, da.Array)
@@ -167,12 +167,12 @@ def test_large_grid_goes_lazy_by_itself(monkeypatch):
 def test_a_ten_billion_case_sweep_is_built_without_computing_it():
     """Building the sweep costs nothing; one element computes one small block."""
     n = 320  # 320**4 = 1.05e10 cases, 84 GB if it were materialised
-    axes = dict(
-        nu=np.linspace(0, 2 * np.pi, n, endpoint=False),
-        dv=np.linspace(1.0, 1000.0, n),
-        rp=np.linspace(6600e3, 8000e3, n),
-        ra=np.linspace(8000e3, 60000e3, n),
-    )
+    axes = {
+        "nu": np.linspace(0, 2 * np.pi, n, endpoint=False),
+        "dv": np.linspace(1.0, 1000.0, n),
+        "rp": np.linspace(6600e3, 8000e3, n),
+        "ra": np.linspace(8000e3, 60000e3, n),
+    }
     ds = dk.sweep(orbit_energy, mu=MU, **axes)
     assert ds["orbit_energy"].size > 10**10
     assert np.prod(ds["orbit_energy"].data.chunksize) <= sweep_module._BLOCK_CASES  # bounded blocks
@@ -185,7 +185,7 @@ def test_a_ten_billion_case_sweep_is_built_without_computing_it():
 @pytest.mark.slow
 def test_local_cluster_run_equals_local_run():
     distributed = pytest.importorskip("dask.distributed")
-    axes = dict(nu=NU, dv=DV, rp=R1, ra=np.geomspace(9500e3, 60000e3, 6))
+    axes = {"nu": NU, "dv": DV, "rp": R1, "ra": np.geomspace(9500e3, 60000e3, 6)}
     local = dk.sweep(orbit_energy, mu=MU, chunks={"rp": 2}, **axes)
     expected = local["orbit_energy"].max("nu").compute(scheduler="sync")
     with distributed.LocalCluster(

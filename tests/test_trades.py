@@ -26,9 +26,9 @@ from scipy.optimize import brentq
 xr = pytest.importorskip("xarray")
 da = pytest.importorskip("dask.array")
 
-import deltakit as dk  # noqa: E402
-from deltakit.constants import EARTH, MARS  # noqa: E402
-from deltakit.trades import (  # noqa: E402
+import deltakit as dk
+from deltakit.constants import EARTH, MARS
+from deltakit.trades import (
     best_burn_point,
     bielliptic_break_even,
     prograde_energy_change,
@@ -93,7 +93,9 @@ def test_break_even_curve_against_a_root_finder(break_even):
     """rb/r1 above which bi-elliptic wins, between the two thresholds."""
     curve = break_even["rb_break_even"]
     for ratio in (12.5, 13.0, 14.0, 15.0):
-        root = brentq(lambda rb: hohmann_total(ratio) - bielliptic_total(ratio, rb), ratio * (1 + 1e-6), 1e9)
+        root = brentq(
+            lambda rb, r=ratio: hohmann_total(r) - bielliptic_total(r, rb), ratio * (1 + 1e-6), 1e9
+        )
         assert float(curve.sel(r2_ratio=ratio)) == pytest.approx(root, rel=2e-3)
     # below the first threshold no rb wins; beyond the second, every rb above r2 does
     assert curve.sel(r2_ratio=slice(None, 11.93)).isnull().all()
@@ -163,7 +165,7 @@ def test_benefit_is_the_apsis_speed_difference_times_dv(dv):
 
 
 def test_best_burn_point_lazy_equals_eager():
-    axes = dict(rp=np.linspace(6700e3, 9000e3, 9), ra=np.linspace(8000e3, 60000e3, 11), dv=[-50.0, 30.0, 300.0])
+    axes = {"rp": np.linspace(6700e3, 9000e3, 9), "ra": np.linspace(8000e3, 60000e3, 11), "dv": [-50.0, 30.0, 300.0]}
     eager = best_burn_point(mu=EARTH.mu, **axes)
     lazy = best_burn_point(mu=EARTH.mu, chunks={"nu": 90, "rp": 4}, **axes)
     assert isinstance(lazy["energy_change_best"].data, da.Array)
