@@ -530,17 +530,18 @@ budget.save(out / "halyard_budget.json")
 save_text(out / "budget_panel.json", json.dumps(builder.export(), indent=1))
 print(f"written to {out}")
 display(Markdown(report_md))"""),
-    code("""
+    code(r"""
 import shutil
 import subprocess
 
 latex = report(used, "latex", title=title)
-# Put the budget table in front of the derivations.
+# Put the budget table (shrunk to the text width) in front of the derivations.
 table = (
-    "\\\\section*{Budget}\\n\\\\begin{center}\\\\small\\n" + budget.to_latex() + "\\n\\\\end{center}\\n"
-    "\\\\noindent\\\\emph{" + demo.CAUTION + "}\\n\\n"
+    "\\section*{Budget}\n\\noindent\\resizebox{\\textwidth}{!}{%\n" + budget.to_latex() + "}\n\n"
+    "\\noindent\\emph{" + demo.CAUTION + "}\n\n"
 )
-latex = latex.replace("\\\\begin{document}\\n", "\\\\begin{document}\\n" + table, 1)
+latex = latex.replace("\\maketitle\n", "\\maketitle\n" + table, 1)
+latex = latex.replace("\\usepackage{amsmath", "\\usepackage{graphicx}\n\\usepackage{amsmath", 1)
 tex = out / "halyard_budget.tex"
 save_text(tex, latex)
 print(latex[:1500])
