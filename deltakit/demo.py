@@ -38,15 +38,15 @@ import numpy as np
 from .constants import EARTH, G0, JUPITER, MARS, CentralBody
 
 __all__ = [
-    "Vehicle",
-    "Mission",
-    "HALYARD",
-    "RUSTLINE",
+    "CAUTION",
     "CINDERWREN",
+    "HALYARD",
+    "LUNAR_ORBIT_ALTITUDE",
     "MISSIONS",
     "MOON_DISTANCE",
-    "LUNAR_ORBIT_ALTITUDE",
-    "CAUTION",
+    "RUSTLINE",
+    "Mission",
+    "Vehicle",
 ]
 
 #: Mean Earth-Moon distance (semi-major axis of the lunar orbit), m.

@@ -242,7 +242,9 @@ print(f"radius ratio {r2 / r1:.2f}; bi-elliptic saves {direct.total - detour.tot
 
 Every function broadcasts: one call per transfer type gives the whole curve. The bi-elliptic transfer
 only pays above a radius ratio of about 11.94 (and only for a far enough intermediate radius);
-below that, Hohmann wins. An intermediate radius inside the target orbit is not a bi-elliptic
+below that, Hohmann wins; above about 15.58 it wins for any intermediate radius beyond the target.
+(Both ratios are the classic break-even values, e.g. Vallado, *Fundamentals of Astrodynamics and
+Applications*, 4th ed., section 6.3.2. `tests/test_transfers.py` checks them.) An intermediate radius inside the target orbit is not a bi-elliptic
 transfer and gives NaN."""),
     code("""
 import matplotlib.ticker as mticker

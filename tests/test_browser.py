@@ -22,14 +22,14 @@ import json
 import os
 import re
 import secrets
-import shutil
 import socket
 import subprocess
 import sys
 import time
 import urllib.request
+from collections.abc import Iterator
 from pathlib import Path
-from typing import Any, Iterator
+from typing import Any
 
 import pytest
 
@@ -128,7 +128,7 @@ def _free_port() -> int:
 
 
 def _get(url: str, timeout: float = 2.0) -> bytes:
-    with urllib.request.urlopen(url, timeout=timeout) as response:  # noqa: S310 (loopback only)
+    with urllib.request.urlopen(url, timeout=timeout) as response:
         return response.read()
 
 
@@ -188,7 +188,7 @@ def lab(tmp_path_factory: pytest.TempPathFactory) -> Iterator[dict[str, Any]]:
 def test_widget_extensions_are_found(lab: dict[str, Any]) -> None:
     """With temporary config and data folders, the page still loads the .venv's extensions."""
     page = _get(f"{lab['base']}/lab?token={lab['token']}").decode()
-    match = re.search(r'<script id="jupyter-config-data" type="application/json">(.*?)</script>', page, re.S)
+    match = re.search(r'<script id="jupyter-config-data" type="application/json">(.*?)</script>', page, re.DOTALL)
     assert match, "JupyterLab page carries no jupyter-config-data"
     config = json.loads(match.group(1))
     names = {ext["name"] for ext in config.get("federated_extensions", [])}
@@ -215,7 +215,7 @@ def notebook_page(
             page.set_default_timeout(60_000)
             try:
                 _open_and_run(page, lab)
-            except Exception:
+            except Exception:  # any failure: keep a picture, then re-raise
                 page.screenshot(path=str(artifacts / "browser-failed-start.png"), full_page=True)
                 raise
             yield page
@@ -368,9 +368,11 @@ def test_panel_answers_keyboard_and_redraws(notebook_page: Any, artifacts: Path,
 
     page = notebook_page
     box = page.locator(f".bt-{name}").first
+    from playwright.sync_api import TimeoutError as PlaywrightTimeout
+
     try:
         box.wait_for(state="visible", timeout=30_000)
-    except Exception:
+    except PlaywrightTimeout:
         errors = page.locator(".jp-OutputArea-output[data-mime-type='application/vnd.jupyter.stderr']")
         texts = errors.evaluate_all("els => els.map(e => e.textContent)")
         pytest.fail(f"{name} did not appear in the browser; error outputs in the notebook: {texts}")
