@@ -29,13 +29,14 @@ from __future__ import annotations
 import dataclasses
 import functools
 import inspect
+import itertools
 import math
 import os
 import shutil
 import sys
 import tempfile
 import types
-import warnings
+import uuid
 from collections.abc import Callable, Mapping
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -240,6 +241,56 @@ def _pick(fields: dict[str, np.ndarray], key: str) -> np.ndarray:
     return np.ascontiguousarray(fields[key])
 
 
+def _evaluate_and_pick(evaluate: Callable[..., dict[str, np.ndarray]], key: str, *blocks: np.ndarray) -> np.ndarray:
+    return _pick(evaluate(*blocks), key)
+
+
+def _lazy_fields(
+    da: Any,
+    evaluate: Callable[..., dict[str, np.ndarray]],
+    swept: dict[str, np.ndarray],
+    layout: dict[str, int],
+    fields: dict[str, tuple[np.dtype, str]],
+) -> dict[str, Any]:
+    """One dask array per result field, over a graph of one NumPy call per block.
+
+    Each block task holds its own slices of the axes (a few numbers), so the
+    blocks are independent roots: no shared input tasks, nothing for the
+    scheduler to fuse or order inside a task. With several fields, one task per
+    block calls the function and one small task per field picks its array.
+    """
+    from dask.base import tokenize
+    from dask.highlevelgraph import HighLevelGraph
+
+    names = list(swept)
+    bounds = []
+    for key in names:
+        size, step = swept[key].size, layout[key]
+        bounds.append([(start, min(start + step, size)) for start in range(0, size, step)])
+    chunks = tuple(tuple(stop - start for start, stop in axis) for axis in bounds)
+    try:
+        token = tokenize(evaluate, *swept.values(), layout)
+    except Exception:  # noqa: BLE001 - an object dask cannot hash: a fresh name is as good
+        token = uuid.uuid4().hex
+    raw_name = f"deltakit-sweep-{token}"
+    tasks = {}
+    for index in itertools.product(*(range(len(axis)) for axis in bounds)):
+        slices = [swept[key][slice(*bounds[d][i])] for d, (key, i) in enumerate(zip(names, index))]
+        tasks[(raw_name, *index)] = (evaluate, *slices)
+    if len(fields) == 1:  # one field: the block task returns its array, nothing to pick
+        ((key, (dtype, _)),) = fields.items()
+        single = {k: (functools.partial(_evaluate_and_pick, evaluate, key), *task[1:]) for k, task in tasks.items()}
+        graph = HighLevelGraph({raw_name: single}, {raw_name: set()})
+        return {key: da.Array(graph, raw_name, chunks, meta=np.empty((0,) * len(names), dtype=dtype))}
+    data = {}
+    for key, (dtype, _) in fields.items():
+        name = f"{raw_name}-{key}"
+        picks = {(name, *k[1:]): (functools.partial(_pick, key=key), k) for k in tasks}
+        graph = HighLevelGraph({raw_name: tasks, name: picks}, {raw_name: set(), name: {raw_name}})
+        data[key] = da.Array(graph, name, chunks, meta=np.empty((0,) * len(names), dtype=dtype))
+    return data
+
+
 def sweep(
     function: Callable[..., Any],
     *,
@@ -300,7 +351,9 @@ def sweep(
     of ``function`` and every field of a block comes from that one call. With a
     ``dask.distributed.Client`` active, ``.compute()`` runs on its workers; the
     function and the fixed values then travel by cloudpickle, which handles
-    lambdas and closures.
+    lambdas and closures. The task graph holds one task per block (about
+    2^18 cases each by default), so past some 10^11 cases pass
+    a larger ``chunks=`` to keep the graph itself small.
 
     Examples
     --------
@@ -350,22 +403,8 @@ def sweep(
         data = {key: np.array(value) for key, value in arrays.items()}
     else:
         layout = _block_layout(swept, None if chunks is False else chunks)
-        axis_arrays = [da.from_array(axis, chunks=layout[key]) for key, axis in swept.items()]
-        pattern = []
-        for position, axis in enumerate(axis_arrays):
-            pattern += [axis, (position,)]
-        with warnings.catch_warnings():
-            # an outer product has many more blocks than its 1-D axes: that is the point
-            warnings.filterwarnings("ignore", "Increasing number of chunks", category=Warning)
-            raw = da.blockwise(
-                functools.partial(_block, function, fixed, dims, result_name),
-                tuple(range(len(dims))), *pattern,
-                dtype=object, meta=np.empty((0,) * len(dims), dtype=object), concatenate=True,
-            )
-        data = {
-            key: raw.map_blocks(_pick, key, dtype=dtype, meta=np.empty((0,) * len(dims), dtype=dtype))
-            for key, (dtype, _) in fields.items()
-        }
+        evaluate = functools.partial(_block, function, fixed, dims, result_name)
+        data = _lazy_fields(da, evaluate, swept, layout, fields)
 
     coords: dict[str, Any] = {}
     for key, axis in swept.items():
