@@ -3,8 +3,9 @@
 First headless: a kernel (nbclient) runs ``derive("hohmann")`` and the cell's
 output carries ``text/latex`` (from ``Derivation._repr_latex_``). Then in a real
 browser: JupyterLab opens that executed notebook, its MathJax typesets the
-stored output, and the test checks that formulas were typeset with no MathJax
-error, saving a screenshot to the artefact folder (see /work/shared/BROWSER-TESTS.md).
+stored outputs of every catalog entry, and the test checks that each was
+typeset with no MathJax error and no unknown macro, saving a screenshot of the
+Hohmann derivation to the artefact folder (see /work/shared/BROWSER-TESTS.md).
 Without /usr/bin/chromium or Playwright the browser part skips, unless
 ``DELTAKIT_REQUIRE_BROWSER=1``.
 """
@@ -33,7 +34,11 @@ CELL = 'from deltakit.symbolic import derive\nderive("hohmann")'
 @pytest.fixture(scope="module")
 def executed(tmp_path_factory: pytest.TempPathFactory) -> Path:
     folder = tmp_path_factory.mktemp("symbolic-notebook")
-    nb = nbformat.v4.new_notebook(cells=[nbformat.v4.new_code_cell(CELL)])
+    from deltakit.symbolic import catalog
+
+    # the Hohmann cell first (screenshot), then every other entry (MathJax must typeset each)
+    others = [nbformat.v4.new_code_cell(f"derive({name!r})") for name in catalog() if name != "hohmann"]
+    nb = nbformat.v4.new_notebook(cells=[nbformat.v4.new_code_cell(CELL), *others])
     nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3 (ipykernel)", "language": "python"}
     env_cwd = Path(__file__).resolve().parent.parent
     nbclient.NotebookClient(nb, timeout=120, kernel_name="python3", resources={"metadata": {"path": str(env_cwd)}}).execute()
@@ -50,6 +55,9 @@ def test_cell_output_is_typeset_latex(executed: Path) -> None:
     assert "Hohmann transfer between circular orbits" in latex
     assert r"\boxed{" in latex and "Assumptions" in latex
     assert "deltakit.hohmann:total" in output.data["text/plain"]
+    for cell in nb.cells[1:]:
+        (output,) = cell.outputs
+        assert r"\boxed{" in output.data["text/latex"], cell.source
 
 
 def _free_port() -> int:
@@ -71,6 +79,7 @@ def test_jupyterlab_typesets_the_derivation(executed: Path, tmp_path: Path, arti
             pytest.fail(f"DELTAKIT_REQUIRE_BROWSER=1 but {missing}")
         pytest.skip(missing)
 
+    cells = len(nbformat.read(executed, as_version=4).cells)
     env = dict(os.environ)
     for var in ("JUPYTER_CONFIG_DIR", "JUPYTER_DATA_DIR", "IPYTHONDIR", "MPLCONFIGDIR", "JUPYTER_RUNTIME_DIR"):
         (tmp_path / var).mkdir()
@@ -108,14 +117,25 @@ def test_jupyterlab_typesets_the_derivation(executed: Path, tmp_path: Path, arti
                 page = context.new_page()
                 page.set_default_timeout(60_000)
                 page.goto(f"{base}/lab/tree/{executed.name}?token={token}")
-                rendered = page.locator(".jp-OutputArea-output.jp-RenderedLatex").first
+                outputs = page.locator(".jp-OutputArea-output.jp-RenderedLatex")
+                rendered = outputs.first
                 rendered.wait_for(state="visible")
                 rendered.locator("mjx-container").first.wait_for(state="attached")
                 page.wait_for_timeout(1500)  # MathJax finishes the remaining blocks
                 formulas = rendered.locator("mjx-container").count()
-                errors = rendered.locator("mjx-merror").count()
                 text = rendered.inner_text()
                 rendered.screenshot(path=str(artifacts / "symbolic-notebook-hohmann.png"))
+                typeset = []
+                for index in range(cells):  # scroll each output into view so it is typeset
+                    output = outputs.nth(index)
+                    output.scroll_into_view_if_needed()
+                    output.locator("mjx-container").first.wait_for(state="attached")
+                    typeset.append(output.locator("mjx-container").count())
+                page.wait_for_timeout(1000)
+                # a TeX syntax error gives <mjx-merror>; an unknown macro is shown as its name in red
+                errors = page.locator(".jp-RenderedLatex mjx-merror").count()
+                errors += page.locator('.jp-RenderedLatex mtext[mathcolor="red"]').count()
+                raw = [outputs.nth(i).inner_text() for i in range(cells) if "\\boxed" in outputs.nth(i).inner_text()]
             finally:
                 context.close()
     finally:
@@ -127,5 +147,7 @@ def test_jupyterlab_typesets_the_derivation(executed: Path, tmp_path: Path, arti
             server.wait()
         log.close()
     assert formulas >= 2, "MathJax typeset nothing"
-    assert errors == 0, "MathJax reported an error in the derivation's LaTeX"
+    assert errors == 0, "MathJax reported an error in a derivation's LaTeX"
+    assert min(typeset) >= 2, f"some derivations were not typeset: {typeset}"
+    assert not raw, "raw TeX is visible in some outputs"
     assert r"\boxed" not in text and r"\begin{aligned}" not in text, "raw TeX is visible: not typeset"
