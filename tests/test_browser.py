@@ -313,6 +313,31 @@ def _readouts(panel: Any) -> list[str]:
     return [_html_text(w.value) for w in _walk(panel) if "deltakit-readout" in getattr(w, "_dom_classes", ())]
 
 
+def _check_slider_values(box: Any, panel: Any, name: str) -> None:
+    """Each slider shows the value the panel holds: the front-end did not move it on display.
+
+    noUiSlider snaps a value off the grid ``min + k * step`` to the grid and
+    sends the snapped value back to the kernel, so a panel whose value is off
+    the grid changes its own input as soon as it is shown.
+    """
+    import ipywidgets as widgets
+
+    sliders = [w for w in _walk(panel) if isinstance(w, (widgets.FloatSlider, widgets.IntSlider))]
+    shown = box.locator(".widget-slider .widget-readout").evaluate_all(
+        "els => els.map(e => e.textContent || e.value || '')"
+    )
+    for slider, text in zip(sliders, shown):
+        try:  # d3 and Python agree on the plain formats panels use (".1f", "d", ",.0f")
+            expected = format(slider.value, getattr(slider, "readout_format", "d") or "d")
+        except ValueError:
+            continue
+        assert text.strip() == expected, (
+            f"{name}: slider {slider.description!r} holds {slider.value!r} (shown as {expected}) but the browser "
+            f"shows {text.strip()}: the value is off the slider's step grid "
+            f"(min={slider.min}, step={slider.step}), so the front-end snaps it and changes the panel's input"
+        )
+
+
 def _first_difference(expected: list[str], seen: list[str]) -> str:
     if len(expected) != len(seen):
         return f"{len(seen)} readouts, expected {len(expected)}: {seen}"
@@ -380,6 +405,7 @@ def test_panel_answers_keyboard_and_redraws(notebook_page: Any, artifacts: Path,
     page.wait_for_timeout(500)  # first ipympl frame of this panel
     seen = _wait_readouts(page, box, start)
     box.screenshot(path=str(artifacts / f"browser-{name}-before.png"))
+    _check_slider_values(box, reference, name)
     assert len(seen) == len(start) and all(e in s for e, s in zip(start, seen)), (
         f"{name}: browser readouts differ from the headless panel's: {_first_difference(start, seen)}"
     )
