@@ -357,3 +357,24 @@ def test_missing_scale_extra_gives_a_clear_message(monkeypatch):
     monkeypatch.setitem(__import__("sys").modules, "xarray", None)
     with pytest.raises(ImportError, match=r"deltakit\[scale\]"):
         dk.sweep(dk.circular_speed, r=[7e6], mu=MU)
+
+
+@pytest.mark.slow
+def test_reducing_a_lazy_sweep_keeps_memory_bounded():
+    """2.5e8 cases (2 GB if materialised) reduced over nu in a fresh process: peak RSS well below."""
+    import subprocess
+    import sys
+
+    script = """
+import resource, numpy as np, deltakit as dk
+from deltakit.trades import prograde_energy_change
+axes = dict(dv=np.linspace(5, 500, 20), rp=np.linspace(6.7e6, 8e6, 100),
+            ra=np.linspace(8e6, 4e7, 500), nu=np.linspace(0, 6.28, 250))
+ds = dk.sweep(prograde_energy_change, mu=3.986004418e14, name="energy_change", **axes)
+best = ds["energy_change"].max("nu").compute()
+assert best.shape == (20, 100, 500) and np.isfinite(best.values).all()
+print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024)
+"""
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=600, check=True)
+    peak = int(done.stdout.split()[-1])
+    assert peak < 1024**3, f"peak RSS {peak / 1024**2:.0f} MiB for a 2 GB grid"
