@@ -25,14 +25,24 @@ class Builder:
         self.title = title
         self.symbols: dict[sp.Symbol, Meaning] = {}
         self.steps: list[tuple[str, sp.Basic]] = []
+        self.zero_ok: set[sp.Symbol] = set()
 
-    def symbol(self, name: str, meaning: str, unit: str, latex: str | None = None, **assumptions: Any) -> sp.Symbol:
-        """A SymPy symbol named ``name`` (a Python identifier), with its meaning."""
+    def symbol(
+        self, name: str, meaning: str, unit: str, latex: str | None = None, *, zero_ok: bool = False, **assumptions: Any
+    ) -> sp.Symbol:
+        """A SymPy symbol named ``name`` (a Python identifier), with its meaning.
+
+        Symbols are positive unless other assumptions are given. ``zero_ok``
+        marks a positive symbol whose value may be 0 in :meth:`Derivation.function`
+        (a speed at rest, no excess speed), as its numeric twin accepts.
+        """
         if not assumptions:
             assumptions = {"positive": True}
         symbol = sp.Symbol(name, **assumptions)
         if latex is not None and latex.startswith("\\Delta"):
             latex = "{" + latex + "}"  # so a power reads (Delta v)^2, not Delta (v^2)
+        if zero_ok:
+            self.zero_ok.add(symbol)
         self.symbols[symbol] = Meaning(meaning, unit, latex if latex is not None else sp.latex(symbol))
         return symbol
 
@@ -58,6 +68,7 @@ class Builder:
         references: Iterable[str] = (),
         twin_adapter: Callable[..., Any] | None = None,
     ) -> Derivation:
+        parameters = tuple(parameters)
         return Derivation(
             name=self.name,
             title=self.title,
@@ -66,9 +77,20 @@ class Builder:
             steps=tuple(self.steps),
             result=result,
             target=target,
-            parameters=tuple(parameters),
+            parameters=parameters,
+            domain={str(p): self._rule(p) for p in parameters},
             twin=twin,
             outputs=dict(outputs or {}),
             references=tuple(references),
             twin_adapter=twin_adapter,
         )
+
+    def _rule(self, symbol: sp.Symbol) -> str:
+        """What :meth:`Derivation.function` accepts for a parameter, from its assumptions."""
+        if symbol.is_positive:
+            return ">= 0" if symbol in self.zero_ok else "> 0"
+        if symbol.is_nonnegative:
+            return ">= 0"
+        if symbol.is_nonzero:
+            return "non-zero"
+        return "finite"

@@ -42,7 +42,7 @@ def _periapsis_entry(name: str, title: str, leaving: bool, elliptic: bool) -> De
         rp = b.symbol("rp", "periapsis radius of the parking orbit (where the burn happens)", "m", "r_{p}")
     else:
         rp = b.symbol("rp", "radius of the circular parking orbit", "m", "r_{p}")
-    vinf = b.symbol("vinf", "hyperbolic excess speed", "m/s", r"v_{\infty}")
+    vinf = b.symbol("vinf", "hyperbolic excess speed", "m/s", r"v_{\infty}", zero_ok=True)
     mu = b.symbol("mu", "gravitational parameter of the body", "m^3/s^2", r"\mu")
     ra = b.symbol("ra", "apoapsis radius of the parking orbit", "m", "r_{a}") if elliptic else None
     vp = b.symbol("vp", "hyperbola speed at periapsis", "m/s", "v_{p}")
@@ -107,7 +107,7 @@ def _capture_burn_elliptic() -> Derivation:
 @entry("powered_flyby")
 def _powered_flyby() -> Derivation:
     b = Builder("powered_flyby", "Powered flyby: what a periapsis burn buys")
-    vinf_in = b.symbol("vinf_in", "hyperbolic excess speed on arrival", "m/s", r"v_{\infty,\mathrm{in}}")
+    vinf_in = b.symbol("vinf_in", "hyperbolic excess speed on arrival", "m/s", r"v_{\infty,\mathrm{in}}", zero_ok=True)
     rp = b.symbol("rp", "periapsis radius of the flyby", "m", "r_{p}")
     dv = b.symbol("dv", "delta-v along the velocity at periapsis (negative: braking)", "m/s", r"\Delta v", real=True)
     mu = b.symbol("mu", "gravitational parameter of the flyby body", "m^3/s^2", r"\mu")

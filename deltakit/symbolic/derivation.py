@@ -17,7 +17,7 @@ from typing import Any, NamedTuple
 import numpy as np
 import sympy as sp
 
-from .._checks import as_float, scalar_or_array
+from .._checks import as_float, finite, nonnegative, positive, require, scalar_or_array
 
 __all__ = ["Derivation", "Meaning"]
 
@@ -99,6 +99,12 @@ class Derivation:
         The quantity the result gives (left-hand side of the boxed line).
     parameters : tuple of sympy.Symbol
         Arguments of :meth:`function`, in the numeric twin's order.
+    domain : mapping of str to str
+        What :meth:`function` accepts for each parameter: ``"> 0"``,
+        ``">= 0"``, ``"non-zero"`` (``inf`` allowed) or ``"finite"``.
+        Anything else raises :class:`deltakit.DomainError` naming the
+        parameter. Rules between parameters (``mf <= m0``, ``rb >= max(r1,
+        r2)``, an angle up to pi) are stated in :attr:`assumptions`, not checked.
     twin : str
         The numeric function that evaluates the same quantity, written
         ``"deltakit.hohmann:total"`` (function, then the result field).
@@ -127,6 +133,7 @@ class Derivation:
     target: sp.Symbol
     parameters: tuple[sp.Symbol, ...]
     twin: str
+    domain: Mapping[str, str] = dataclasses.field(default_factory=dict)
     outputs: Mapping[str, sp.Expr] = dataclasses.field(default_factory=dict)
     references: tuple[str, ...] = ()
     twin_adapter: Callable[..., Any] | None = dataclasses.field(default=None, repr=False)
@@ -280,7 +287,9 @@ class Derivation:
                 expr = self.outputs[output]
             else:
                 raise KeyError(f"derivation {self.name!r} has no output {output!r}; choose from {sorted(self.outputs)}")
-            self._functions[key] = _numpy_callable(self.parameters, expr, f"{self.name}" + (f"_{output}" if output else ""))
+            label = self.name + (f"_{output}" if output else "")
+            rules = [(self.domain.get(str(p), "finite"), self.symbols[p].unit) for p in self.parameters]
+            self._functions[key] = _numpy_callable(self.parameters, expr, label, rules)
         return self._functions[key]
 
     def twin_function(self) -> Callable[..., Any]:
@@ -302,9 +311,23 @@ class Derivation:
         return twin
 
 
-def _numpy_callable(parameters: Sequence[sp.Symbol], expr: sp.Expr, name: str) -> Callable[..., Any]:
+def _nonzero(value: Any, name: str, unit: str = "") -> np.ndarray:
+    array = as_float(value, name)
+    bad = np.isnan(array) | (array == 0.0)
+    if bad.any():
+        require(array, bad, name, "non-zero and not NaN", unit)
+    return array
+
+
+_CHECKS = {"> 0": positive, ">= 0": nonnegative, "finite": finite, "non-zero": _nonzero}
+
+
+def _numpy_callable(
+    parameters: Sequence[sp.Symbol], expr: sp.Expr, name: str, rules: Sequence[tuple[str, str]]
+) -> Callable[..., Any]:
     raw = sp.lambdify(list(parameters), expr, modules="numpy")
     names = [str(p) for p in parameters]
+    checks = [(_CHECKS[rule], unit) for rule, unit in rules]
 
     def evaluate(*args: Any, **kwargs: Any) -> Any:
         if len(args) > len(names):
@@ -319,7 +342,7 @@ def _numpy_callable(parameters: Sequence[sp.Symbol], expr: sp.Expr, name: str) -
         missing = [n for n in names if n not in values]
         if missing:
             raise TypeError(f"{name}() is missing {', '.join(missing)}")
-        arrays = [as_float(values[n], n) for n in names]
+        arrays = [check(values[n], n, unit) for n, (check, unit) in zip(names, checks)]
         shape = np.broadcast_shapes(*(a.shape for a in arrays))
         with np.errstate(invalid="ignore", divide="ignore"):
             out = np.asarray(raw(*arrays), dtype=float)

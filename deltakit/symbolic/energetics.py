@@ -63,8 +63,8 @@ def _rocket_equation() -> Derivation:
 def _ejection_energy() -> Derivation:
     b = Builder("ejection_energy", "Energy accounting of one discrete ejection")
     m_vehicle = b.symbol("m_vehicle", "mass of the whole vehicle before the ejection", "kg", r"m_{v}")
-    m_ejected = b.symbol("m_ejected", "mass thrown out", "kg", r"m_{e}")
-    u = b.symbol("u", "speed of the ejecta in the frame that moved with the whole vehicle", "m/s")
+    m_ejected = b.symbol("m_ejected", "mass thrown out", "kg", r"m_{e}", zero_ok=True)
+    u = b.symbol("u", "speed of the ejecta in the frame that moved with the whole vehicle", "m/s", zero_ok=True)
     v0 = b.symbol("v0", "speed of that frame (the vehicle before the ejection)", "m/s", "V", real=True)
     w = b.symbol("w", "speed the remaining mass gains", "m/s")
     m_rest = b.symbol("m_rest", "mass that remains", "kg", r"m_{r}")

@@ -104,13 +104,15 @@ def _orbital_period() -> Derivation:
 def _period_twin(a: Any, mu: Any) -> Any:
     import deltakit as dk
 
-    return dk.Conic.circular(a, mu).period
+    from .._checks import positive
+
+    return dk.Conic.circular(positive(a, "a", "m"), mu).period
 
 
 @entry("oberth", "energy_gain")
 def _oberth() -> Derivation:
     b = Builder("oberth", "Energy gain of a prograde burn (Oberth relation)")
-    v = b.symbol("v", "speed just before the burn", "m/s")
+    v = b.symbol("v", "speed just before the burn", "m/s", zero_ok=True)
     dv = b.symbol("dv", "delta-v along the velocity (negative: retrograde)", "m/s", r"\Delta v", real=True)
     r = b.symbol("r", "radius where the burn happens", "m")
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
@@ -202,7 +204,7 @@ def _apsis_change() -> Derivation:
     rp = b.symbol("rp", "periapsis radius (where the burn happens)", "m", "r_{p}")
     ra = b.symbol("ra", "apoapsis radius before the burn", "m", "r_{a}")
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
-    dv = b.symbol("dv", "prograde delta-v at periapsis", "m/s", r"\Delta v")
+    dv = b.symbol("dv", "delta-v along the velocity at periapsis (negative: retrograde)", "m/s", r"\Delta v", real=True)
     vp = b.symbol("vp", "periapsis speed before the burn", "m/s", "v_{p}")
     w = b.symbol("w", "periapsis speed after the burn", "m/s", "w_{p}")
     r_new = b.symbol("ra_new", "apoapsis radius after the burn", "m", r"r_{a}'")
@@ -213,7 +215,7 @@ def _apsis_change() -> Derivation:
     vp_value = vis_viva.result.subs({r_s: rp, a_s: (rp + ra) / 2, mu_s: mu}, simultaneous=True)
     vp_value = tidy(vp_value)
     b.step("Periapsis speed from vis-viva with $a = (r_p + r_a)/2$.", vp, vp_value)
-    b.step("A tangential burn at periapsis keeps periapsis where it is and adds $\\Delta v$.", w, vp + dv)
+    b.step("A tangential burn at periapsis keeps the burn point an apsis and adds $\\Delta v$.", w, vp + dv)
     momentum = b.relation("Angular momentum at the new apsides.", sp.Eq(rp * w, r_new * v_new))
     energy = b.relation(
         "Energy conservation between the new apsides.", sp.Eq(w**2 / 2 - mu / rp, v_new**2 / 2 - mu / r_new)
@@ -234,7 +236,10 @@ def _apsis_change() -> Derivation:
         assumptions=[
             _TWO_BODY,
             _IMPULSIVE,
-            "The burn is prograde at periapsis and the orbit stays bound (new apoapsis finite).",
+            (
+                "The burn is along the velocity at periapsis; the burn point stays the periapsis "
+                "(speed after the burn above the circular speed) and the orbit stays bound."
+            ),
         ],
         references=[
             "Curtis, Orbital Mechanics for Engineering Students, orbit equation at apoapsis (Ch. 2)",

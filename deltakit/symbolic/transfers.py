@@ -149,8 +149,8 @@ def _bielliptic() -> Derivation:
 @entry("plane_change")
 def _plane_change() -> Derivation:
     b = Builder("plane_change", "Pure plane change")
-    v = b.symbol("v", "speed, the same before and after", "m/s")
-    angle = b.symbol("angle", "angle between the old and the new velocity, in [0, pi]", "rad", r"\theta")
+    v = b.symbol("v", "speed, the same before and after", "m/s", zero_ok=True)
+    angle = b.symbol("angle", "angle between the old and the new velocity, in [0, pi]", "rad", r"\theta", zero_ok=True)
     dv = b.symbol("dv", "delta-v of the turn", "m/s", r"\Delta v")
     dv2 = b.symbol("dv_squared", "square of the delta-v", "m^2/s^2", r"\Delta v^{2}")
 
@@ -183,9 +183,9 @@ def _plane_change() -> Derivation:
 @entry("combined_plane_change")
 def _combined_plane_change() -> Derivation:
     b = Builder("combined_plane_change", "Combined plane and speed change")
-    v1 = b.symbol("v1", "speed before the burn", "m/s", "v_{1}")
-    v2 = b.symbol("v2", "speed after the burn", "m/s", "v_{2}")
-    angle = b.symbol("angle", "angle between the two velocities, in [0, pi]", "rad", r"\theta")
+    v1 = b.symbol("v1", "speed before the burn", "m/s", "v_{1}", zero_ok=True)
+    v2 = b.symbol("v2", "speed after the burn", "m/s", "v_{2}", zero_ok=True)
+    angle = b.symbol("angle", "angle between the two velocities, in [0, pi]", "rad", r"\theta", zero_ok=True)
     dv = b.symbol("dv", "delta-v of the burn", "m/s", r"\Delta v")
     dv2 = b.symbol("dv_squared", "square of the delta-v", "m^2/s^2", r"\Delta v^{2}")
 
