@@ -218,7 +218,7 @@ class Panel(widgets.VBox):
         self._scales[name] = scale
         return widget
 
-    def _figure(self, width: float = 9.0, height: float = 3.8, **kwargs: Any) -> Figure:
+    def _figure(self, width: float = 8.0, height: float = 3.8, **kwargs: Any) -> Figure:
         self.figure = Figure(figsize=(width, height), dpi=100, **kwargs)
         self.view = FigureView(self.figure)
         return self.figure
@@ -365,7 +365,7 @@ def slider(description: str, value: float, low: float, high: float, step: float,
     """A float slider with the project's look."""
     return widgets.FloatSlider(value=value, min=low, max=high, step=step, description=description,
                                readout_format=readout_format, continuous_update=continuous,
-                               layout=widgets.Layout(width="420px"))
+                               layout=widgets.Layout(width="520px"))
 
 
 def number(description: str, value: float, *, step: float | None = None, width: str = "250px") -> widgets.FloatText:

@@ -96,7 +96,7 @@ class TransferTrade(Panel):
         )
 
     def _build_figure(self) -> None:
-        fig = self._figure(9.0, 6.2)
+        fig = self._figure(8.0, 6.2)
         grid = fig.add_gridspec(2, 2, width_ratios=[1.0, 1.15])
         self.orbit_axes = fig.add_subplot(grid[:, 0])
         self.ratio_axes = fig.add_subplot(grid[0, 1])
@@ -104,7 +104,8 @@ class TransferTrade(Panel):
         self._transfer = draw_transfer(self.orbit_axes, 7000e3, 20000e3, rb=30000e3, body_radius=EARTH.radius)
         self.orbit_axes.set_aspect("equal", adjustable="box")
         self.orbit_axes.set_title("transfers to scale", fontsize="medium")
-        self.orbit_axes.legend(loc="lower left", fontsize="small", framealpha=0.85)
+        self.orbit_axes.legend(loc="upper center", bbox_to_anchor=(0.5, -0.17), ncol=2, fontsize="small",
+                               frameon=False)
 
         ax = self.ratio_axes
         (self._hohmann_curve,) = ax.plot(_RATIOS, np.zeros_like(_RATIOS), color=COLOURS["hohmann"], linewidth=1.8,
@@ -137,7 +138,7 @@ class TransferTrade(Panel):
         style_axes(ax, xlabel="share of the plane change made at burn 1 (%)", ylabel="total delta-v (km/s)",
                    title="splitting the plane change")
         ax.legend(loc="upper left", fontsize="x-small", framealpha=0.85)
-        fig.subplots_adjust(left=0.11, right=0.985, bottom=0.08, top=0.95, wspace=0.32, hspace=0.45)
+        fig.subplots_adjust(left=0.14, right=0.97, bottom=0.08, top=0.95, wspace=0.34, hspace=0.45)
 
     def _update(self, changed: set[str]) -> None:
         v = self.values
