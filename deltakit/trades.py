@@ -24,7 +24,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import positive, scalar_or_array
+from ._checks import positive, require, scalar_or_array
 from .burns import energy_gain
 from .conic import Conic
 from .propulsion import propellant_mass
@@ -195,7 +195,7 @@ def bielliptic_break_even(r2_ratio: ArrayLike, rb_ratio: ArrayLike, *, chunks: A
     Parameters
     ----------
     r2_ratio : array_like, shape (n,)
-        Target radius over starting radius, r2/r1 (> 0).
+        Target radius over starting radius, r2/r1 (> 0, increasing).
     rb_ratio : array_like, shape (m,)
         Intermediate apoapsis radius over starting radius, rb/r1 (> 0);
         values below r2/r1 give NaN.
@@ -208,9 +208,14 @@ def bielliptic_break_even(r2_ratio: ArrayLike, rb_ratio: ArrayLike, *, chunks: A
         cheaper); ``bielliptic_wins`` (bool); ``rb_break_even`` (r2_ratio):
         the rb/r1 above which every bi-elliptic on the grid wins, NaN where
         none of the largest does; and two scalars read off the grid:
-        ``ratio_some_win``, the smallest r2/r1 at which some rb on the grid
-        wins, and ``ratio_all_win``, the smallest r2/r1 from which on every
-        rb > r2 wins.
+        ``ratio_some_win``, the smallest r2/r1 from which on some rb on the
+        grid wins, and ``ratio_all_win``, the smallest r2/r1 from which on
+        every rb > r2 wins. Their resolution is the grid step.
+
+    Raises
+    ------
+    deltakit.DomainError
+        If a ratio is not finite and > 0, or ``r2_ratio`` is not increasing.
 
     Examples
     --------
@@ -222,6 +227,8 @@ def bielliptic_break_even(r2_ratio: ArrayLike, rb_ratio: ArrayLike, *, chunks: A
     """
     r2_ratio = positive(r2_ratio, "r2_ratio")
     rb_ratio = positive(rb_ratio, "rb_ratio")
+    if r2_ratio.ndim == 1 and r2_ratio.size > 1:
+        require(r2_ratio[1:], np.diff(r2_ratio) <= 0.0, "r2_ratio", "increasing")
     grid = sweep(
         _advantage, r2_ratio=r2_ratio, rb_ratio=rb_ratio, chunks=chunks, name="advantage",
         units={"advantage": "1", "r2_ratio": "1", "rb_ratio": "1"},
@@ -250,7 +257,7 @@ def bielliptic_break_even(r2_ratio: ArrayLike, rb_ratio: ArrayLike, *, chunks: A
             "bielliptic_wins": wins,
             "rb_break_even": rb_break_even,
             "ratio_some_win": ratio_some.assign_attrs(
-                units="1", long_name="smallest r2/r1 on the grid with some winning rb"
+                units="1", long_name="smallest r2/r1 on the grid from which on some rb wins"
             ),
             "ratio_all_win": ratio_all.assign_attrs(
                 units="1", long_name="smallest r2/r1 on the grid from which every rb > r2 wins"

@@ -227,3 +227,5 @@ def test_propellant_grid_lazy_and_bad_input():
         propellant_grid(100.0, [1000.0], [3000.0, -1.0])
     with pytest.raises(dk.DomainError, match="`r2_ratio` must be > 0"):
         bielliptic_break_even([0.0, 12.0], [20.0])
+    with pytest.raises(dk.DomainError, match="`r2_ratio` must be increasing"):
+        bielliptic_break_even([14.0, 12.0], [20.0])
