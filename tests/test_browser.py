@@ -442,3 +442,45 @@ def test_panel_answers_keyboard_and_redraws(notebook_page: Any, artifacts: Path,
         assert after != before, f"{name}: the figure did not redraw after {control!r} moved"
     box.screenshot(path=str(artifacts / f"browser-{name}-after.png"))
     page.screenshot(path=str(artifacts / f"browser-{name}-page.png"))  # the panel in its notebook
+
+
+_EXTENT_JS = """
+e => {
+  const area = (e.closest('.jp-OutputArea-output') || e.parentElement).getBoundingClientRect();
+  let left = Infinity, right = -Infinity, widest = '';
+  for (const el of [e, ...e.querySelectorAll('*')]) {
+    const r = el.getBoundingClientRect();
+    if (!r.width || !r.height) continue;
+    left = Math.min(left, r.left);
+    if (r.right > right) { right = r.right; widest = el.className && el.className.baseVal === undefined ? String(el.className) : el.tagName; }
+  }
+  const cut = [];
+  for (const el of e.querySelectorAll('.widget-label, input, .widget-readout')) {
+    if (el.offsetParent !== null && el.scrollWidth > el.clientWidth + 1) {
+      cut.push((el.value !== undefined && el.tagName === 'INPUT') ? el.value : el.textContent);
+    }
+  }
+  return {areaLeft: area.left, areaRight: area.right, left, right, widest, cut};
+}
+"""
+
+
+@pytest.mark.parametrize("name", PANELS)
+def test_panel_fits_notebook_width(notebook_page: Any, name: str) -> None:
+    """Nothing of the panel sticks out of its output area in a 1280 px window with the file browser open."""
+    box = notebook_page.locator(f".bt-{name}").first
+    box.wait_for(state="visible", timeout=30_000)
+    deadline = time.monotonic() + 5.0  # a live canvas may settle its size after the first frame
+    while True:
+        extent = box.evaluate(_EXTENT_JS)
+        fits = extent["left"] >= extent["areaLeft"] - 4 and extent["right"] <= extent["areaRight"] + 4
+        if (fits and not extent["cut"]) or time.monotonic() > deadline:
+            break
+        notebook_page.wait_for_timeout(250)
+    width = extent["areaRight"] - extent["areaLeft"]
+    assert fits, (
+        f"{name} spans {extent['left']:.0f}..{extent['right']:.0f} px but its output area is "
+        f"{extent['areaLeft']:.0f}..{extent['areaRight']:.0f} px ({width:.0f} px wide); the widest element is "
+        f"{extent['widest']!r}: it is clipped at notebook width"
+    )
+    assert not extent["cut"], f"{name}: text cut off in its box (label, input or slider readout): {extent['cut']}"
