@@ -134,7 +134,8 @@ is the same everywhere). The propellant cost is identical, so the choice is free
     code("""
 ratio = float(dk.energy_gain(orbit.speed(0.0), dv) / dk.energy_gain(orbit.speed(np.pi), dv))
 speed_ratio = float(orbit.speed(0.0) / orbit.speed(np.pi))
-print(f"energy ratio periapsis/apoapsis {ratio:.2f}; speed ratio {speed_ratio:.2f}")"""),
+print(f"energy ratio periapsis/apoapsis {ratio:.2f}; speed ratio {speed_ratio:.2f}")
+assert np.isclose(best, 0.0)  # the decision above: burn at periapsis"""),
 ]
 
 # --------------------------------------------------------------------------- 02
@@ -205,6 +206,7 @@ moving = trade.results
 print(f"delta-v {moving['dv']:.0f} m/s either way; vehicle's share of the released energy: "
       f"{standing['vehicle_share']:.1%} from rest, {moving['vehicle_share']:.1%} at 7.65 km/s")
 assert np.isclose(standing["energy_total"], moving["energy_total"])
+assert 2.5 < moving["vehicle_share"] < 3.0  # "nearly three times", as the decision below says
 trade"""),
     md("""
 ## Decision
@@ -236,7 +238,8 @@ detour = dk.bielliptic(r1, r2, rb, EARTH.mu)
 print("Hohmann:    ", direct)
 print("bi-elliptic:", detour)
 print(f"radius ratio {r2 / r1:.2f}; bi-elliptic saves {direct.total - detour.total:.1f} m/s "
-      f"but takes {detour.duration / direct.duration:.1f} times as long")"""),
+      f"but takes {detour.duration / direct.duration:.1f} times as long")
+assert 40 < direct.total - detour.total < 60 and 7 < detour.duration / direct.duration < 8  # the decision below"""),
     md("""
 ## Over a range of radius ratios
 
@@ -298,8 +301,8 @@ transfer"""),
     md("""
 ## Decision
 
-At a radius ratio near 17.7 the bi-elliptic transfer saves about 50 m/s but takes roughly seven
-times as long; for a cargo pallet the project may accept that, for a crewed or time-critical load it
+At a radius ratio near 17.7 the bi-elliptic transfer saves about 50 m/s but takes about seven and
+a half times as long; for a cargo pallet the project may accept that, for a crewed or time-critical load it
 would not. Make nearly all of the plane change at the far burn, where the vehicle is slow."""),
 ]
 
@@ -362,6 +365,7 @@ print(f"panel: burn at periapsis {panel.results['dv_periapsis'] / 1e3:.2f} km/s,
 assert np.isclose(panel.results["dv_periapsis"], at_periapsis)
 panel.set(flyby_altitude=0.1 * jupiter.radius)
 print(f"flyby 0.1 RJ above the cloud tops: gain {panel.results['gain']:.0f} m/s")
+assert panel.results["gain"] > 3 * 300.0  # "several times its own value", as the decision below says
 panel"""),
     md("""
 ## Decision
@@ -400,7 +404,8 @@ Each burn is shorter and stays nearer the fast point."""),
 splits = np.array([1, 2, 3, 4])
 arcs = dk.thrust_arc(orbit, tug.thrust, ve, tug.wet_mass, dv, splits=splits)
 for n, loss, duration in zip(splits, arcs.loss, arcs.duration):
-    print(f"{n} burn(s): loss {loss:6.1f} m/s, total burn time {duration / 60:5.1f} min")"""),
+    print(f"{n} burn(s): loss {loss:6.1f} m/s, total burn time {duration / 60:5.1f} min")
+assert np.all(np.diff(arcs.loss) < 0) and 0.05 < one.loss / dv < 0.15  # the decision below"""),
     md("""
 ## Loss table against thrust-to-weight
 
@@ -461,6 +466,7 @@ budget.add("lunar orbit insertion", capture, margin=0.05)
 budget.add("plane trim at the Moon (3 deg)", trim)
 print(f"total delta-v {budget.total_dv:.0f} m/s, propellant {budget.propellant:.0f} kg of {tug.propellant_mass:.0f} kg, "
       f"final mass {budget.final_mass:.0f} kg")
+assert 0 < tug.propellant_mass - budget.propellant < 100  # "closes, but only just", as the decision says
 budget"""),
     md("""
 ## Mass line by line"""),
