@@ -87,26 +87,43 @@ class FigureView:
         self.widget.add_class("deltakit-figure")
 
     def animate(self, *artists: Any) -> None:
-        """Mark artists that fast updates move (static views blit them)."""
-        self._animated.extend(artists)
-        if self.mode != "live":
-            for artist in artists:
-                artist.set_animated(True)
+        """Mark artists that fast updates move; they are blitted over a saved background.
 
-    def refresh(self, fast: bool = False) -> None:
-        """Show the figure's current artists; ``fast`` when only animated artists moved."""
-        if self.mode == "live":
-            self.figure.canvas.draw_idle()
-            return
+        After every full draw (ours, a resize, a request from the browser) the
+        background is saved again and the animated artists drawn on top, so
+        they are never missing from the picture.
+        """
+        if not self._animated:
+            self.figure.canvas.mpl_connect("draw_event", self._after_full_draw)
+        self._animated.extend(artists)
+        for artist in artists:
+            artist.set_animated(True)
+
+    def _after_full_draw(self, event: Any) -> None:
         canvas = self.figure.canvas
-        if fast and self._background is not None:
-            canvas.restore_region(self._background)
-        else:
-            canvas.draw()  # everything but the animated artists
-            self._background = canvas.copy_from_bbox(self.figure.bbox) if self._animated else None
+        if canvas.is_saving():  # savefig draws animated artists itself; its picture is no background
+            self._background = None
+            return
+        self._background = canvas.copy_from_bbox(self.figure.bbox)
+        self._draw_animated()
+
+    def _draw_animated(self) -> None:
         for artist in self._animated:
             if artist.get_visible():
                 artist.axes.draw_artist(artist)
+
+    def refresh(self, fast: bool = False) -> None:
+        """Show the figure's current artists; ``fast`` when only animated artists moved."""
+        canvas = self.figure.canvas
+        blit = fast and self._background is not None
+        if blit:
+            canvas.restore_region(self._background)
+            self._draw_animated()
+        if self.mode == "live":
+            canvas.blit(self.figure.bbox) if blit else canvas.draw_idle()
+            return
+        if not blit:
+            canvas.draw()  # the draw_event hook saves the background and adds the animated artists
         self.widget.value = self.png()
 
     def png(self) -> bytes:
@@ -218,7 +235,7 @@ class Panel(widgets.VBox):
         self._scales[name] = scale
         return widget
 
-    def _figure(self, width: float = 8.0, height: float = 3.8, **kwargs: Any) -> Figure:
+    def _figure(self, width: float = 7.6, height: float = 3.8, **kwargs: Any) -> Figure:
         self.figure = Figure(figsize=(width, height), dpi=100, **kwargs)
         self.view = FigureView(self.figure)
         return self.figure

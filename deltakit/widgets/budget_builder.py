@@ -341,7 +341,7 @@ class BudgetBuilder(Panel):
 
     # ------------------------------------------------------------------ figure and update
     def _build_figure(self) -> None:
-        fig = self._figure(8.0, 3.6)
+        fig = self._figure(7.6, 3.6)
         self.axes = fig.add_subplot()
         self.axes.set_title("vehicle mass, line by line", fontsize="medium")
         fig.subplots_adjust(left=0.09, right=0.985, bottom=0.3, top=0.9)

@@ -107,7 +107,7 @@ class BurnPointExplorer(Panel):
 
     # ------------------------------------------------------------------ figure
     def _build_figure(self) -> None:
-        fig = self._figure(8.0, 4.0)
+        fig = self._figure(7.6, 4.0)
         self.orbit_axes, self.energy_axes = fig.subplots(1, 2, gridspec_kw={"width_ratios": [1.0, 1.15]})
         placeholder = Conic.circular(RUSTLINE.body.radius * 2, RUSTLINE.body.mu)
         before = draw_conic(self.orbit_axes, placeholder, body_radius=RUSTLINE.body.radius, label="before the burn")
@@ -123,7 +123,7 @@ class BurnPointExplorer(Panel):
         self.energy_axes.set_title("energy added by this burn", fontsize="medium")
         self.orbit_axes.legend(loc="upper left", fontsize="small", framealpha=0.85)
         self.energy_axes.legend(loc="best", fontsize="small", framealpha=0.85)
-        fig.subplots_adjust(left=0.11, right=0.975, bottom=0.13, top=0.92, wspace=0.3)
+        fig.subplots_adjust(left=0.125, right=0.975, bottom=0.13, top=0.92, wspace=0.32)
         self._artists = {"before": before, "burn": burn, "curve": curve, "current": current, "apoapsis": apo}
         # what a new burn point moves: redrawn alone over the rest of the figure
         self.view.animate(burn.after.orbit, burn.arrow, burn.marker, current)

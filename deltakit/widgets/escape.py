@@ -86,7 +86,7 @@ class EscapeFlyby(Panel):
         )
 
     def _build_figure(self) -> None:
-        fig = self._figure(8.0, 3.8)
+        fig = self._figure(7.6, 3.8)
         self.departure_axes, self.flyby_axes = fig.subplots(1, 2)
         ax = self.departure_axes
         (self._at_periapsis,) = ax.plot([], [], color=COLOURS["hohmann"], linewidth=1.8, label="burn at periapsis")

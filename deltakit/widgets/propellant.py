@@ -107,7 +107,7 @@ class PropellantTrade(Panel):
         )
 
     def _build_figure(self) -> None:
-        fig = self._figure(8.0, 3.6)
+        fig = self._figure(7.6, 3.6)
         self.energy_axes, self.efficiency_axes = fig.subplots(1, 2, gridspec_kw={"width_ratios": [1.0, 1.2]})
         names = ["vehicle", "exhaust", "total"]
         self._bars = self.energy_axes.barh(names, [0.0, 0.0, 0.0], color=[COLOURS[n] for n in names], height=0.6)

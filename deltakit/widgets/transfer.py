@@ -96,7 +96,7 @@ class TransferTrade(Panel):
         )
 
     def _build_figure(self) -> None:
-        fig = self._figure(8.0, 6.2)
+        fig = self._figure(7.6, 6.2)
         grid = fig.add_gridspec(2, 2, width_ratios=[1.0, 1.15])
         self.orbit_axes = fig.add_subplot(grid[:, 0])
         self.ratio_axes = fig.add_subplot(grid[0, 1])
