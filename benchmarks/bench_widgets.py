@@ -10,7 +10,8 @@ side by side, in one run, with
   the same figure (what a naive in-place matplotlib update costs);
 * the panel's static path as shipped, which also encodes the PNG the static
   fallback view shows (in a live notebook ipympl draws instead);
-* a full redraw of the panel (a delta-v change), for reference.
+* a delta-v slider step (the energy curve moves too) and a full redraw of
+  the panel (the orbit changed), for reference.
 
 Target (issue 5): median update under 50 ms, goal 16 ms (one frame at 60 Hz).
 The exit code is non-zero when the 50 ms target is missed. The machine is
@@ -68,15 +69,17 @@ def main(argv: list[str]) -> int:
     panel.view.png = lambda: b""  # the same update without encoding the static view's PNG
     draw_ms = median_ms(update, count)
     panel.view.png = png
-    full_redraw_ms = median_ms(lambda i: panel._refresh({"dv"}), max(5, count // 4))
+    dv_step_ms = median_ms(lambda i: panel.set(dv=100.0 + (i % 5)), count)
+    full_redraw_ms = median_ms(lambda i: panel._refresh({"periapsis_altitude"}), max(5, count // 4))
     assert panel.error == "", panel.error
 
     print(f"BurnPointExplorer, one burn-point update, median of {count} (Agg, {figure.dpi:.0f} dpi, "
-          f"{figure.get_figwidth():.0f}x{figure.get_figheight():.0f} in)")
+          f"{figure.get_figwidth():.1f}x{figure.get_figheight():.1f} in)")
     print(f"  {'bare set_data + draw (floor)':44s} {floor_ms:8.2f} ms   1.00x")
     print(f"  {'panel update: recompute, move, redraw':44s} {draw_ms:8.2f} ms   {draw_ms / floor_ms:.2f}x")
     print(f"  {'... plus PNG of the static view (as shipped)':44s} {update_ms:8.2f} ms   {update_ms / floor_ms:.2f}x")
-    print(f"  {'full redraw (delta-v changed, for reference)':44s} {full_redraw_ms:8.2f} ms   "
+    print(f"  {'delta-v slider step (energy curve too)':44s} {dv_step_ms:8.2f} ms   {dv_step_ms / floor_ms:.2f}x")
+    print(f"  {'full redraw (orbit changed, for reference)':44s} {full_redraw_ms:8.2f} ms   "
           f"{full_redraw_ms / floor_ms:.2f}x")
     verdict = "meets the goal" if draw_ms < GOAL_MS else ("meets the target" if draw_ms < TARGET_MS else "MISSES")
     print(f"  panel update against target < {TARGET_MS:g} ms (goal {GOAL_MS:g} ms): {verdict}")

@@ -377,6 +377,28 @@ class Panel(widgets.VBox):
         raise NotImplementedError
 
 
+def sticky_limits(ax: Any, low: float, high: float, *, include_zero: bool = True, force: bool = False) -> bool:
+    """Set the y-limits for data in [low, high] only when needed; True if they changed.
+
+    Limits stay put while the data stay inside them and fill at least 60 %
+    of the span, so a slider step usually leaves the axes (ticks, labels)
+    alone and the panel can redraw just the moving artists.
+    """
+    if not (math.isfinite(low) and math.isfinite(high)):
+        low, high = 0.0, 1.0
+    pad = 0.08 * (high - low) or 0.05 * max(abs(high), 1e-3)
+    want_low, want_high = low - pad, high + pad
+    if include_zero and low >= 0.0:
+        want_low = 0.0
+    current_low, current_high = ax.get_ylim()
+    inside = current_low <= low and high <= current_high
+    filled = (want_high - want_low) >= 0.6 * (current_high - current_low)
+    if inside and filled and not force:
+        return False
+    ax.set_ylim(want_low, want_high)
+    return True
+
+
 def slider(description: str, value: float, low: float, high: float, step: float, *, readout_format: str = ".1f",
            continuous: bool = True) -> widgets.FloatSlider:
     """A float slider with the project's look."""

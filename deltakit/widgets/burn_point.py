@@ -26,7 +26,7 @@ from ..errors import DomainError
 from ..plotting._style import COLOURS, KM, MJ_PER_KG
 from ..plotting.energy import energy_gain_curve, plot_energy_gain
 from ..plotting.orbits import burn_at_angle, conic_points, draw_burn, draw_conic, update_burn, update_conic
-from ._base import Panel, choice, number, slider
+from ._base import Panel, choice, number, slider, sticky_limits
 
 __all__ = ["BurnPointExplorer", "DIRECTIONS"]
 
@@ -113,20 +113,21 @@ class BurnPointExplorer(Panel):
         before = draw_conic(self.orbit_axes, placeholder, body_radius=RUSTLINE.body.radius, label="before the burn")
         burn = draw_burn(self.orbit_axes, placeholder, 0.0, 1.0)
         burn.after.orbit.set_label("after the burn")
-        curve = plot_energy_gain(self.energy_axes, placeholder, 1.0, label="this burn at each point")
+        curve = plot_energy_gain(self.energy_axes, placeholder, 1.0, label="this burn, at each point")
         (current,) = self.energy_axes.plot([0.0], [0.0], "o", color=COLOURS["burn"], markersize=7,
-                                           label="current burn point", zorder=5, clip_on=False)
+                                           label="this burn point", zorder=5, clip_on=False)
         (apo,) = self.energy_axes.plot([180.0], [0.0], "s", color=COLOURS["before"], markersize=6,
-                                       label="same burn at apoapsis", zorder=5, clip_on=False)
+                                       label="at apoapsis", zorder=5, clip_on=False)
         self.orbit_axes.set_aspect("equal", adjustable="box")
         self.orbit_axes.set_title("orbit in its plane", fontsize="medium")
-        self.energy_axes.set_title("energy added by this burn", fontsize="medium")
         self.orbit_axes.legend(loc="upper left", fontsize="small", framealpha=0.85)
-        self.energy_axes.legend(loc="best", fontsize="small", framealpha=0.85)
-        fig.subplots_adjust(left=0.125, right=0.975, bottom=0.13, top=0.92, wspace=0.32)
+        # above the axes, where no curve can run under it
+        self.energy_axes.legend(loc="lower center", bbox_to_anchor=(0.5, 1.0), ncol=2, fontsize="small",
+                                frameon=False, columnspacing=1.0, handlelength=1.6)
+        fig.subplots_adjust(left=0.125, right=0.975, bottom=0.13, top=0.86, wspace=0.32)
         self._artists = {"before": before, "burn": burn, "curve": curve, "current": current, "apoapsis": apo}
         # what a new burn point moves: redrawn alone over the rest of the figure
-        self.view.animate(burn.after.orbit, burn.arrow, burn.marker, current)
+        self.view.animate(burn.after.orbit, burn.arrow, burn.marker, curve, apo, current)
 
     # ------------------------------------------------------------------ model
     def _orbit(self, v: dict[str, Any]) -> tuple[Conic, Any]:
@@ -165,20 +166,21 @@ class BurnPointExplorer(Panel):
         if changed & _ORBIT_INPUTS or self._conic is None:
             update_conic(art["before"], conic, body_radius=body.radius)
         update_burn(art["burn"], conic, nu, dv, angle=angle, reference=reference, after=after)
-        only_burn_point = not changed - {"nu"} and self._conic is not None
-        if not only_burn_point:  # the frame stays put while the burn point slides
-            self._fit_orbit_axes(conic, art["burn"])
+        first = self._conic is None
+        orbit_changed = bool(changed & _ORBIT_INPUTS) or first
+        if orbit_changed:  # the frame follows the orbit only, so it stays put while the burn changes
+            self._fit_orbit_axes(conic)
+        limits_changed = False
         if curve is not None:
             art["curve"].set_data(*curve)
             finite_y = curve[1][np.isfinite(curve[1])]
             low, high = (float(finite_y.min()), float(finite_y.max())) if finite_y.size else (0.0, 1.0)
-            pad = 0.08 * (high - low) or 0.05 * max(abs(high), 1e-3)
-            self.energy_axes.set_ylim(min(low - pad, 0.0 if low >= 0 else low - pad), high + pad)
+            limits_changed = sticky_limits(self.energy_axes, low, high, force=first)
             art["apoapsis"].set_data([180.0], [float(at_apoapsis.energy_change) / MJ_PER_KG])
         art["current"].set_data([math.degrees(math.remainder(nu, 2 * math.pi))],
                                 [float(outcome.energy_change) / MJ_PER_KG])
         self._conic = conic
-        self._fast = only_burn_point
+        self._fast = not (orbit_changed or limits_changed)
         # readouts
         energy = float(outcome.energy_change)
         energy_apo = float(at_apoapsis.energy_change)
@@ -203,19 +205,11 @@ class BurnPointExplorer(Panel):
             notes.append(f"After the burn the periapsis lies below the surface of {body.name}: the orbit intersects the body.")
         self._show_readouts(self._results, notes)
 
-    def _fit_orbit_axes(self, conic: Conic, burn: Any) -> None:
-        """Frame the orbit before the burn, the arrow, and the part of the orbit after it near them."""
+    def _fit_orbit_axes(self, conic: Conic) -> None:
+        """Frame the orbit before the burn, with room around it for the arrow and the orbit after."""
         x, y = conic_points(conic, n=181)
-        (bx, by), = burn.arrow.get_offsets()
-        x = np.append(x, bx + float(burn.arrow.U[0]))
-        y = np.append(y, by + float(burn.arrow.V[0]))
-        xs, ys = burn.after.orbit.get_data()
-        size = max(float(np.nanmax(np.abs(x))), float(np.nanmax(np.abs(y))))
-        keep = np.isfinite(xs) & (np.hypot(xs, ys) < 2.0 * size)
-        all_x = np.concatenate([x, np.asarray(xs)[keep]])
-        all_y = np.concatenate([y, np.asarray(ys)[keep]])
-        cx, cy = 0.5 * (all_x.min() + all_x.max()), 0.5 * (all_y.min() + all_y.max())
-        half = 0.55 * max(all_x.max() - all_x.min(), all_y.max() - all_y.min())
+        cx, cy = 0.5 * (x.min() + x.max()), 0.5 * (y.min() + y.max())
+        half = 0.62 * max(x.max() - x.min(), y.max() - y.min())
         ax = self.orbit_axes
         ax.set_xlim(cx - half, cx + half)
         ax.set_ylim(cy - half, cy + half)
