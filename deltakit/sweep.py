@@ -18,8 +18,11 @@ Conventions
   calls of the same function, so a reduction such as ``.max("nu")`` runs block
   by block in bounded memory. With a ``dask.distributed`` ``Client`` active,
   ``.compute()`` runs on its cluster; nothing else changes.
-* xarray and dask are the ``scale`` extra (``pip install deltakit[scale]``);
-  they are imported only when a sweep is made or opened.
+* :func:`save_sweep` writes a sweep to a Zarr store (a folder) atomically and
+  refuses to overwrite anything that is not a sweep; :func:`open_sweep` reads
+  it back and refuses corrupt, foreign or newer stores.
+* xarray, dask and zarr are the ``scale`` extra (``pip install deltakit[scale]``);
+  they are imported only when a sweep is made, saved or opened.
 
 Results are for preliminary analysis, not for flight operations.
 """
@@ -85,7 +88,7 @@ def _import_scale() -> tuple[Any, Any]:
         import xarray as xr
     except ImportError as err:  # pragma: no cover - depends on the environment
         raise ImportError(
-            "deltakit.sweep needs xarray and dask, the `scale` extra: "
+            "deltakit.sweep needs xarray, dask and zarr, the `scale` extra: "
             "pip install 'deltakit[scale]' (missing: " + str(err.name) + ")"
         ) from err
     return xr, da
@@ -556,7 +559,11 @@ def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Da
         raise DomainError(
             f"open_sweep: {path} has sweep format version {version!r}; this deltakit reads 1 to {_FORMAT_VERSION}"
         )
-    missing = _missing_chunks(path)
+    try:
+        missing = _missing_chunks(path)
+    except Exception as err:
+        dataset.close()
+        raise DomainError(f"open_sweep: {path} is corrupt ({type(err).__name__}: {err})") from err
     if missing:
         dataset.close()
         raise DomainError(f"open_sweep: {path} is corrupt: chunks missing in {', '.join(missing)}")
