@@ -316,8 +316,9 @@ def sweep(
         tuple (``<name>_1``, ``<name>_2``...) or a dict (one variable per key).
     chunks : None, "auto", int, dict or False, optional
         ``None``: eager NumPy for grids up to :data:`EAGER_LIMIT` cases, lazy
-        dask beyond. ``"auto"`` or an int (cases per block) or a dict
-        (axis -> chunk length, ``-1`` for the whole axis): always lazy.
+        dask beyond. ``"auto"`` or an int (cases per block; trailing axes
+        are kept whole first) or a dict (axis -> chunk length, ``-1`` for the
+        whole axis; axes not named stay whole): always lazy.
         ``False``: always eager.
     fixed : dict, optional
         Parameters held fixed, passed unchanged to every call. Numeric scalars
