@@ -497,3 +497,44 @@ def test_sheet_shows_derivation(sheet):
 def test_sheet_contract(sheet):
     sheet.set(derivation="rocket_equation", steps=True)
     check_common(sheet)
+
+
+# ---------------------------------------------------------------------- fast redraws
+@pytest.mark.parametrize(
+    "panel_name, steps",
+    [
+        ("BurnPointExplorer", [{"nu": 1.0}, {"nu": 1.1}, {"dv": 105.0}]),
+        ("PropellantTrade", [{"speed": 7700.0}, {"speed": 7750.0}]),
+        ("EscapeFlyby", [{"vinf": 5650.0}, {"vinf": 5700.0}]),
+        ("TransferTrade", [{"plane_change": 28.0 * DEG}, {"plane_change": 27.5 * DEG}]),
+    ],
+)
+def test_fast_update_picture_equals_full_redraw(panel_name, steps):
+    """Slider steps redraw only the moving artists; the picture must be what a full redraw gives."""
+    from PIL import Image
+    import io
+
+    panel = getattr(dk.widgets, panel_name)()
+    for step in steps[:-1]:
+        panel.set(**step)
+    canvas = panel.figure.canvas
+    full_draws = []
+    real_draw = canvas.draw
+    canvas.draw = lambda *a: (full_draws.append(a), real_draw(*a))
+    panel.set(**steps[-1])
+    canvas.draw = real_draw
+    assert full_draws == []  # the last, small step took the fast path
+    blitted = np.asarray(Image.open(io.BytesIO(panel.view.widget.value)))
+    panel.view.refresh(fast=False)
+    full = np.asarray(Image.open(io.BytesIO(panel.view.widget.value)))
+    np.testing.assert_array_equal(blitted, full)
+
+
+def test_fast_update_really_skips_the_full_draw(explorer, monkeypatch):
+    explorer.set(nu=0.5)
+    calls = []
+    monkeypatch.setattr(explorer.figure.canvas, "draw", lambda *a: calls.append(a))
+    explorer.set(nu=0.6)  # a burn-point step: blit only
+    assert calls == []
+    explorer.set(periapsis_altitude=600e3)  # a new orbit: full redraw
+    assert len(calls) == 1

@@ -377,8 +377,9 @@ class Panel(widgets.VBox):
         raise NotImplementedError
 
 
-def sticky_limits(ax: Any, low: float, high: float, *, include_zero: bool = True, force: bool = False) -> bool:
-    """Set the y-limits for data in [low, high] only when needed; True if they changed.
+def sticky_limits(ax: Any, low: float, high: float, *, axis: str = "y", include_zero: bool = True,
+                  force: bool = False) -> bool:
+    """Set the limits of ``axis`` for data in [low, high] only when needed; True if they changed.
 
     Limits stay put while the data stay inside them and fill at least 60 %
     of the span, so a slider step usually leaves the axes (ticks, labels)
@@ -390,12 +391,14 @@ def sticky_limits(ax: Any, low: float, high: float, *, include_zero: bool = True
     want_low, want_high = low - pad, high + pad
     if include_zero and low >= 0.0:
         want_low = 0.0
-    current_low, current_high = ax.get_ylim()
+    if include_zero and high <= 0.0:
+        want_high = 0.0 + pad
+    current_low, current_high = ax.get_ylim() if axis == "y" else ax.get_xlim()
     inside = current_low <= low and high <= current_high
     filled = (want_high - want_low) >= 0.6 * (current_high - current_low)
     if inside and filled and not force:
         return False
-    ax.set_ylim(want_low, want_high)
+    (ax.set_ylim if axis == "y" else ax.set_xlim)(want_low, want_high)
     return True
 
 

@@ -23,7 +23,7 @@ from ..demo import CINDERWREN
 from ..departure import escape_burn, powered_flyby
 from ..errors import DomainError
 from ..plotting._style import COLOURS, KM, style_axes
-from ._base import Panel, choice, number, slider
+from ._base import Panel, choice, number, slider, sticky_limits
 
 __all__ = ["EscapeFlyby"]
 
@@ -79,6 +79,8 @@ class EscapeFlyby(Panel):
         self._control("flyby_dv", slider("flyby burn (m/s)", flyby_dv, 0.0, 3000.0, 10.0, readout_format=".0f"),
                       1.0)
         self._gains_key: tuple | None = None
+        self._departure_key: tuple | None = None
+        self._speed_top = 1000.0
         self._build_figure()
         self._finish(
             "Escape and flyby: what burning deep in the well buys",
@@ -108,6 +110,8 @@ class EscapeFlyby(Panel):
         style_axes(ax, xlabel="flyby periapsis radius (body radii)", ylabel="gain beyond v∞ + dv (m/s)",
                    title="powered flyby")
         fig.subplots_adjust(left=0.08, right=0.985, bottom=0.14, top=0.91, wspace=0.28)
+        self.view.animate(self._at_periapsis, self._far, self._now, *(line for _, line in self._gain_curves),
+                          self._flyby_now)
 
     def _update(self, changed: set[str]) -> None:
         v = self.values
@@ -128,30 +132,42 @@ class EscapeFlyby(Panel):
         just_escape = float(escape_burn(rp, 0.0, body.mu, ra))
         dv_far = just_escape + vinf
         flyby = powered_flyby(vinf, rf, dv, body.mu)
-        top = max(2.0 * vinf, 1000.0)
+        first = not self._results
+        top = self._speed_top
+        if first or not 0.25 * top <= vinf <= 0.8 * top:  # the speed axis moves only when needed
+            top = max(2.0 * vinf, 1000.0)
         speeds = _SPEED_FRACTIONS * top
-        departure_curve = np.asarray(escape_burn(rp, speeds, body.mu, ra))
+        departure_key = (body.name, rp, ra, top)
+        departure_curve = None
+        if departure_key != self._departure_key:
+            departure_curve = np.asarray(escape_burn(rp, speeds, body.mu, ra))
         gains = None
         gains_key = (body.name, vinf, dv)
         if gains_key != self._gains_key:
             gains = [np.asarray(powered_flyby(vinf, _RADII * body.radius, f * dv, body.mu).gain)
                      for f, _ in self._gain_curves]
         # computed: move the artists
-        self._at_periapsis.set_data(speeds / 1e3, departure_curve / 1e3)
-        self._far.set_data(speeds / 1e3, (just_escape + speeds) / 1e3)
+        full = first or bool(changed & {"body", "flyby_dv"})
+        if departure_curve is not None:
+            self._at_periapsis.set_data(speeds / 1e3, departure_curve / 1e3)
+            self._far.set_data(speeds / 1e3, (just_escape + speeds) / 1e3)
+            self.departure_axes.set_xlim(0.0, top / 1e3)
+            self.departure_axes.set_ylim(0.0, 1.05 * (just_escape + top) / 1e3)
+            self._speed_top, self._departure_key = top, departure_key
+            full = True
         self._now.set_data([vinf / 1e3, vinf / 1e3], [dv_periapsis / 1e3, dv_far / 1e3])
-        self.departure_axes.set_xlim(0.0, top / 1e3)
-        self.departure_axes.set_ylim(0.0, 1.05 * (just_escape + top) / 1e3)
         if gains is not None:
             for (factor, line), gain in zip(self._gain_curves, gains):
                 line.set_ydata(gain)
                 line.set_label(f"burn {factor * dv:.0f} m/s")
-            self.flyby_axes.legend(loc="upper right", fontsize="small", framealpha=0.85)
+            if first or "flyby_dv" in changed:
+                self.flyby_axes.legend(loc="upper right", fontsize="small", framealpha=0.85)
             finite = np.concatenate([g[np.isfinite(g)] for g in gains]) if gains else np.array([])
             high = float(finite.max()) if finite.size else 1.0
-            self.flyby_axes.set_ylim(0.0, 1.08 * max(high, 1.0))
+            full |= sticky_limits(self.flyby_axes, 0.0, max(high, 1.0), force=first)
             self._gains_key = gains_key
         self._flyby_now.set_data([rf / body.radius], [float(flyby.gain)])
+        self._fast = not full
         self._results = {
             "dv_periapsis": dv_periapsis,
             "dv_far": dv_far,

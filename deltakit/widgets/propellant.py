@@ -26,7 +26,7 @@ from ..errors import DomainError
 from ..plotting._style import COLOURS, style_axes
 from ..propulsion import burn_energy, exhaust_velocity, propulsive_efficiency, rocket_dv
 from ..twobody import circular_speed
-from ._base import Panel, number, slider
+from ._base import Panel, number, slider, sticky_limits
 
 __all__ = ["PropellantTrade"]
 
@@ -134,6 +134,7 @@ class PropellantTrade(Panel):
         handles = [self._efficiency, self._share, self._span, self._now]
         ax.legend(handles, [h.get_label() for h in handles], loc="lower right", fontsize="small", framealpha=0.85)
         fig.subplots_adjust(left=0.09, right=0.91, bottom=0.15, top=0.9, wspace=0.3)
+        self.view.animate(*self._bars.patches, self._span, self._now, self._share_now)
 
     def _update(self, changed: set[str]) -> None:
         v = self.values
@@ -171,21 +172,26 @@ class PropellantTrade(Panel):
         total = float(split.total)
         share = float(split.vehicle) / total if total > 0 else math.nan
         # computed: move the artists and mirror the derived inputs
+        first = not self._results
         for bar, value in zip(self._bars, (split.vehicle, split.ejecta, split.total)):
             bar.set_width(float(value) / GJ)
         widths = [float(split.vehicle) / GJ, float(split.ejecta) / GJ, total / GJ]
-        low, high = min(0.0, *widths), max(0.0, *widths)
-        pad = 0.08 * (high - low) or 1.0
-        self.energy_axes.set_xlim(low - (pad if low < 0 else 0.0), high + pad)
+        limits_changed = sticky_limits(self.energy_axes, min(widths), max(widths), axis="x", force=first)
         if share_curve is not None:
             self._share.set_ydata(share_curve)
             top = float(np.nanmax(share_curve[_RATIOS <= 3.0])) if np.isfinite(share_curve).any() else 1.0
             self.share_axes.set_ylim(0.0, 1.05 * max(top, 1.0))
+            limits_changed = True
         during = np.linspace(ratio_now, ratio_end, 50)
         self._span.set_data(during, propulsive_efficiency(during, 1.0))
         self._now.set_data([ratio_now], [float(propulsive_efficiency(speed, ve))])
         self._share_now.set_data([ratio_now], [share])
-        self.efficiency_axes.set_xlim(0.0, float(np.clip(1.1 * ratio_end, 3.0, _RATIOS[-1])))
+        right = self.efficiency_axes.get_xlim()[1]
+        wanted = float(np.clip(1.1 * ratio_end, 3.0, _RATIOS[-1]))
+        if first or not (ratio_end <= right and wanted >= 0.7 * right):  # move the edge only when needed
+            self.efficiency_axes.set_xlim(0.0, wanted)
+            limits_changed = True
+        self._fast = not limits_changed and not changed - {"speed"}
         self._mirror(m0 / dry, m0 - dry, ve)
         self._results = {
             "wet_mass": m0,

@@ -34,7 +34,7 @@ from ..transfers import (
     hohmann_plane_change,
 )
 from ..twobody import circular_speed
-from ._base import Panel, choice, number, slider
+from ._base import Panel, choice, number, slider, sticky_limits
 
 __all__ = ["TransferTrade"]
 
@@ -138,6 +138,7 @@ class TransferTrade(Panel):
         style_axes(ax, xlabel="share of the plane change made at burn 1 (%)", ylabel="total delta-v (km/s)",
                    title="splitting the plane change")
         ax.legend(loc="upper left", fontsize="x-small", framealpha=0.85)
+        self.view.animate(self._split_curve, self._split_best)
         fig.subplots_adjust(left=0.14, right=0.97, bottom=0.08, top=0.95, wspace=0.34, hspace=0.45)
 
     def _update(self, changed: set[str]) -> None:
@@ -185,8 +186,9 @@ class TransferTrade(Panel):
         self._split_curve.set_ydata(np.asarray(split_totals) / 1e3)
         self._split_best.set_data([best * 100], [best_total / 1e3])
         low, high = float(np.min(split_totals)) / 1e3, float(np.max(split_totals)) / 1e3
-        pad = 0.08 * (high - low) or 0.05 * max(high, 0.1)
-        self.split_axes.set_ylim(low - pad, high + pad)
+        first = not self._results
+        limits_changed = sticky_limits(self.split_axes, low, high, include_zero=False, force=first)
+        self._fast = not limits_changed and not changed - {"plane_change"}
         bielliptic_total = float(b.total)
         self._results = {
             "radius_ratio": ratio,
