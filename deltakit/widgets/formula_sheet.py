@@ -50,13 +50,22 @@ def sheet_html(derivation: Any, *, steps: bool = True) -> str:
     for info in d.symbols.values():
         parts.append(f"<tr><td style='padding:0 10px 0 0'>${html.escape(info.latex, quote=False)}$</td>"
                      f"<td style='padding:0 10px 0 0'>{html.escape(info.meaning, quote=False)}</td>"
-                     f"<td>{html.escape(info.unit or '-', quote=False)}</td></tr>")
+                     f"<td>{_unit(info.unit)}</td></tr>")
     parts.append("</table>")
     if d.references:
         parts.append("<p style='font-size:0.9em'><b>Literature:</b> "
                      + html.escape("; ".join(d.references), quote=False) + ".</p>")
     parts.append(f"<p style='font-size:0.9em'>Numeric twin: <code>{html.escape(d.twin)}</code></p>")
     return "".join(parts)
+
+
+def _unit(unit: str) -> str:
+    """A symbol's SI unit typeset like the steps (``m^3/s^2`` as upright TeX)."""
+    if not unit:
+        return "-"
+    from ..symbolic.derivation import unit_tex
+
+    return f"${html.escape(unit_tex(unit), quote=False)}$"
 
 
 def _download(text: str, filename: str, mime: str, label: str) -> str:
@@ -121,4 +130,5 @@ class FormulaSheet(Panel):
                                 + " &nbsp; " + _download(markdown, f"{name}.md", "text/markdown", "Download Markdown"))
         self._results = {"name": name, "title": d.title, "result_latex": d.result_tex(), "latex": latex,
                          "markdown": markdown}
-        self.readouts.value = (f"<div>Result: <b>${html.escape(d.result_tex(), quote=False)}$</b></div>")
+        self.readouts.value = (f"<div>Showing <b>{html.escape(d.title)}</b> (<code>{html.escape(name)}</code>), "
+                               f"{len(d.steps)} steps; numeric twin <code>{html.escape(d.twin)}</code>.</div>")
