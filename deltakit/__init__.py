@@ -79,7 +79,12 @@ _NAMES: dict[str, str] = {
     "time_of_flight": "kepler",
     "propagate": "kepler",
     # trade-study sweeps (needs the `scale` extra)
-    "sweep": "sweep",
+    "sweep": "sweeps",
+    "save_sweep": "sweeps",
+    "open_sweep": "sweeps",
+    "best_burn_point": "trades",
+    "bielliptic_break_even": "trades",
+    "propellant_grid": "trades",
 }
 
 _SUBMODULES = ("symbolic", "widgets", "plotting")

@@ -28,7 +28,7 @@ from ._checks import positive, require, scalar_or_array
 from .burns import energy_gain
 from .conic import Conic
 from .propulsion import propellant_mass
-from .sweep import sweep
+from .sweeps import sweep
 from .transfers import bielliptic, hohmann
 
 if TYPE_CHECKING:  # the `scale` extra; the sweep imports it at run time

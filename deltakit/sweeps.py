@@ -36,9 +36,7 @@ import itertools
 import math
 import os
 import shutil
-import sys
 import tempfile
-import types
 import uuid
 from collections.abc import Callable, Mapping
 from pathlib import Path
@@ -487,7 +485,7 @@ def save_sweep(dataset: xarray.Dataset, path: str | os.PathLike[str]) -> Path:
     --------
     >>> import tempfile, pathlib
     >>> import deltakit as dk
-    >>> from deltakit.sweep import save_sweep, open_sweep
+    >>> from deltakit.sweeps import save_sweep, open_sweep
     >>> ds = dk.sweep(dk.circular_speed, r=[7000e3, 8000e3], mu=3.986e14)
     >>> path = pathlib.Path(tempfile.mkdtemp()) / "speeds.zarr"
     >>> back = open_sweep(save_sweep(ds, path))
@@ -576,18 +574,3 @@ def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Da
         finally:
             dataset.close()
     return dataset
-
-
-# ---------------------------------------------------------------------- module call
-class _CallableModule(types.ModuleType):
-    """``deltakit.sweep`` names both this module and its function; keep both callable.
-
-    Importing a submodule sets the package attribute to the module, which would
-    shadow the function re-exported under the same name.
-    """
-
-    def __call__(self, *args: Any, **kwargs: Any) -> Any:
-        return sweep(*args, **kwargs)
-
-
-sys.modules[__name__].__class__ = _CallableModule
