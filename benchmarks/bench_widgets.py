@@ -29,7 +29,7 @@ import time
 os.environ.setdefault("DELTAKIT_FIGURES", "static")
 os.environ.setdefault("MPLBACKEND", "Agg")
 
-from deltakit.widgets import BurnPointExplorer  # noqa: E402
+from deltakit.widgets import BurnPointExplorer
 
 TARGET_MS = 50.0
 GOAL_MS = 16.0

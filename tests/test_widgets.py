@@ -299,7 +299,7 @@ def test_escape_matches_numeric_layer(escape):
     flyby = dk.powered_flyby(v["vinf"], body.radius + v["flyby_altitude"], v["flyby_dv"], body.mu)
     assert r["gain"] == pytest.approx(float(flyby.gain), rel=1e-12)
     assert r["deflection"] == pytest.approx(float(flyby.deflection), rel=1e-12)
-    x, y = escape._flyby_now.get_data()
+    _, y = escape._flyby_now.get_data()
     assert y[0] == pytest.approx(float(flyby.gain))
     check_common(escape)
 
@@ -511,8 +511,9 @@ def test_sheet_contract(sheet):
 )
 def test_fast_update_picture_equals_full_redraw(panel_name, steps):
     """Slider steps redraw only the moving artists; the picture must be what a full redraw gives."""
-    from PIL import Image
     import io
+
+    from PIL import Image
 
     panel = getattr(dk.widgets, panel_name)()
     for step in steps[:-1]:

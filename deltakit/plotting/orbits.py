@@ -25,16 +25,16 @@ from ..errors import DomainError
 from ._style import COLOURS, KM, style_axes
 
 __all__ = [
-    "ConicArtists",
     "BurnArtists",
+    "ConicArtists",
     "TransferArtists",
-    "conic_points",
     "burn_at_angle",
-    "draw_conic",
-    "update_conic",
+    "conic_points",
     "draw_burn",
-    "update_burn",
+    "draw_conic",
     "draw_transfer",
+    "update_burn",
+    "update_conic",
     "update_transfer",
 ]
 

@@ -27,7 +27,16 @@ _PANELS = {
     "FormulaSheet": "formula_sheet",
 }
 
-__all__ = ["CAUTION", "Panel", *_PANELS]
+__all__ = [
+    "CAUTION",
+    "BudgetBuilder",
+    "BurnPointExplorer",
+    "EscapeFlyby",
+    "FormulaSheet",
+    "Panel",
+    "PropellantTrade",
+    "TransferTrade",
+]
 
 
 def __getattr__(name: str) -> Any:

@@ -14,7 +14,8 @@ import html
 import io
 import math
 import os
-from typing import Any, Callable, ClassVar, Iterable
+from collections.abc import Callable, Iterable
+from typing import Any, ClassVar
 
 import ipywidgets as widgets
 import numpy as np
@@ -23,7 +24,7 @@ from matplotlib.figure import Figure
 
 from ..errors import DomainError
 
-__all__ = ["CAUTION", "Panel", "FigureView", "figure_mode", "json_ready"]
+__all__ = ["CAUTION", "FigureView", "Panel", "figure_mode", "json_ready"]
 
 #: The small print every panel shows.
 CAUTION = (
@@ -52,7 +53,7 @@ def figure_mode() -> str:
         if shell is None or not hasattr(shell, "kernel"):
             return "static"
         import ipympl.backend_nbagg  # noqa: F401
-    except Exception:  # no IPython, no kernel or no ipympl: a static figure still works
+    except Exception:  # noqa: BLE001  # no IPython, no kernel or no ipympl: a static figure still works
         return "static"
     return "live"
 
@@ -183,7 +184,7 @@ def fmt(value: Any, scale: float, unit: str, digits: int = 4) -> str:
     if size >= 10 ** (digits - 1):
         text = f"{shown:,.0f}"
     elif size >= 1.0:
-        text = f"{shown:.{digits - 1 - int(math.floor(math.log10(size)))}f}"
+        text = f"{shown:.{digits - 1 - math.floor(math.log10(size))}f}"
     elif size == 0.0:
         text = "0"
     else:
@@ -273,7 +274,7 @@ class Panel(widgets.VBox):
         """The readouts of the last valid view, SI."""
         return dict(self._results)
 
-    def set(self, **values: Any) -> "Panel":
+    def set(self, **values: Any) -> Panel:
         """Drive the panel from code with SI values; one update for all of them.
 
         Names are those of :attr:`controls`. A numeric value outside a
@@ -341,7 +342,7 @@ class Panel(widgets.VBox):
         except (DomainError, ValueError, ZeroDivisionError) as err:
             self._show_message(str(err))
             return
-        except Exception as err:  # never raise into the notebook; say what went wrong
+        except Exception as err:  # noqa: BLE001  # never raise into the notebook; say what went wrong
             self._show_message(f"unexpected {type(err).__name__}: {err}")
             return
         self._pending.clear()

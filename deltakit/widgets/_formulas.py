@@ -10,15 +10,16 @@ table can be read, tested and extended on its own.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any, Callable
+from typing import Any
 
 from ..constants import BODIES, EARTH
 from ..departure import capture_burn, escape_burn
 from ..errors import DomainError
 from ..transfers import bielliptic, hohmann, plane_change
 
-__all__ = ["Parameter", "Formula", "FORMULAS", "evaluate"]
+__all__ = ["FORMULAS", "Formula", "Parameter", "evaluate"]
 
 KM = 1e3
 DEG = math.pi / 180.0

@@ -19,7 +19,7 @@ import html
 import math
 import tempfile
 from pathlib import Path
-from typing import Any
+from typing import Any, ClassVar
 
 import ipywidgets as widgets
 
@@ -105,7 +105,7 @@ class BudgetBuilder(Panel):
     843.7
     """
 
-    readout_spec = {
+    readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
         "total_dv": ("total delta-v (with margins)", 1.0, "m/s"),
         "propellant": ("propellant used", 1.0, "kg"),
         "final_mass": ("mass at the end", 1.0, "kg"),
@@ -355,11 +355,11 @@ class BudgetBuilder(Panel):
         if dry < 0.0 or (dry and dry >= v["m0"]):
             raise DomainError(f"dry mass must be between 0 and the starting mass {v['m0']:g} kg (got {dry:g} kg).")
         budget = Budget(v["m0"], v["isp"] * G0, v["name"], dry_mass=dry or None)
-        for number, line in enumerate(self._lines):
+        for index, line in enumerate(self._lines):
             try:
                 result = evaluate(line["formula"], line["params"])
             except DomainError as err:
-                raise DomainError(f"line {number + 1} ({line['label']}): {err}") from None
+                raise DomainError(f"line {index + 1} ({line['label']}): {err}") from None
             ve = None if line["isp"] is None else line["isp"] * G0
             budget.add(line["label"], result, ve=ve, margin=line["margin"])
         return budget

@@ -15,7 +15,7 @@ Default case: the invented Rustline orbiter (:mod:`deltakit.demo`) in its
 from __future__ import annotations
 
 import math
-from typing import Any
+from typing import Any, ClassVar
 
 import numpy as np
 
@@ -28,7 +28,7 @@ from ..plotting.energy import energy_gain_curve, plot_energy_gain
 from ..plotting.orbits import burn_at_angle, conic_points, draw_burn, draw_conic, update_burn, update_conic
 from ._base import Panel, choice, number, slider, sticky_limits
 
-__all__ = ["BurnPointExplorer", "DIRECTIONS"]
+__all__ = ["DIRECTIONS", "BurnPointExplorer"]
 
 DEG = math.pi / 180.0
 
@@ -75,7 +75,7 @@ class BurnPointExplorer(Panel):
     1.0
     """
 
-    readout_spec = {
+    readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
         "speed": ("speed at the burn", 1e3, "km/s"),
         "energy_change": ("energy change", MJ_PER_KG, "MJ/kg"),
         "periapsis_altitude_after": ("periapsis altitude after", KM, "km"),

@@ -14,7 +14,7 @@ Default case: the invented Cinderwren probe (:mod:`deltakit.demo`) at Jupiter
 from __future__ import annotations
 
 import math
-from typing import Any
+from typing import ClassVar
 
 import numpy as np
 
@@ -56,7 +56,7 @@ class EscapeFlyby(Panel):
     True
     """
 
-    readout_spec = {
+    readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
         "dv_periapsis": ("departure burn at periapsis", 1e3, "km/s"),
         "dv_far": ("escape, then burn far away", 1e3, "km/s"),
         "saving": ("saved by burning at periapsis", 1.0, "m/s"),

@@ -15,7 +15,7 @@ its burn at the circular speed of a 400 km Earth orbit (cited constants).
 from __future__ import annotations
 
 import math
-from typing import Any
+from typing import ClassVar
 
 import ipywidgets as widgets
 import numpy as np
@@ -64,7 +64,7 @@ class PropellantTrade(Panel):
     2039.2
     """
 
-    readout_spec = {
+    readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
         "dv": ("delta-v (rocket equation)", 1.0, "m/s"),
         "mass_ratio": ("mass ratio m0/mf", 1.0, ""),
         "exhaust_velocity": ("exhaust velocity", 1e3, "km/s"),

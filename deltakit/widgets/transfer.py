@@ -17,7 +17,7 @@ radius for the bi-elliptic option.
 from __future__ import annotations
 
 import math
-from typing import Any
+from typing import ClassVar
 
 import numpy as np
 
@@ -68,7 +68,7 @@ class TransferTrade(Panel):
     3893
     """
 
-    readout_spec = {
+    readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
         "radius_ratio": ("radius ratio r2/r1", 1.0, ""),
         "hohmann_total": ("Hohmann total", 1e3, "km/s"),
         "hohmann_duration": ("Hohmann time of flight", HOUR, "h"),
