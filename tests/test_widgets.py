@@ -539,3 +539,30 @@ def test_fast_update_really_skips_the_full_draw(explorer, monkeypatch):
     assert calls == []
     explorer.set(periapsis_altitude=600e3)  # a new orbit: full redraw
     assert len(calls) == 1
+
+
+def test_explorer_escape_case_exports_json(explorer):
+    explorer.set(body="Earth", periapsis_altitude=400e3, apoapsis_altitude=400e3, dv=3300.0, nu=0.0)
+    assert explorer.error == ""
+    assert explorer.results["eccentricity_after"] > 1.0
+    assert "escapes Earth" in explorer.readouts.value
+    assert readout_text(explorer, "apoapsis_altitude_after") == "unbounded"
+    exported = explorer.export()
+    assert exported["results"]["apoapsis_altitude_after"] is None
+    json.dumps(exported, allow_nan=False)
+
+
+# ipympl's own toolbar passes its canvas on to traitlets, which warns; not ours to fix
+@pytest.mark.filterwarnings("ignore:Passing unrecognized arguments:DeprecationWarning")
+def test_live_figures_use_an_ipympl_canvas(monkeypatch):
+    pytest.importorskip("ipympl")
+    monkeypatch.setenv("DELTAKIT_FIGURES", "live")
+    live = dk.widgets.BurnPointExplorer()
+    assert type(live.view.widget).__name__ == "Canvas"
+    assert live.view.widget in live.children
+    live.set(nu=1.0)
+    live.set(nu=1.2)
+    monkeypatch.setenv("DELTAKIT_FIGURES", "static")
+    static = dk.widgets.BurnPointExplorer(nu=1.2)
+    assert live.export() == static.export()
+    assert type(static.view.widget).__name__ == "Image"
