@@ -566,3 +566,20 @@ def test_live_figures_use_an_ipympl_canvas(monkeypatch):
     static = dk.widgets.BurnPointExplorer(nu=1.2)
     assert live.export() == static.export()
     assert type(static.view.widget).__name__ == "Image"
+
+
+def test_sticky_limits_move_only_when_needed():
+    from matplotlib.figure import Figure
+
+    from deltakit.widgets._base import sticky_limits
+
+    ax = Figure().add_subplot()
+    assert sticky_limits(ax, 0.0, 10.0, force=True)
+    assert ax.get_ylim() == pytest.approx((0.0, 10.8))
+    assert not sticky_limits(ax, 0.0, 9.0)  # inside and filling the span: leave the ticks alone
+    assert sticky_limits(ax, 0.0, 12.0)  # leaves the axes: widen
+    assert ax.get_ylim()[1] >= 12.0
+    assert sticky_limits(ax, 0.0, 2.0)  # would be lost in the span: tighten
+    assert ax.get_ylim()[1] < 3.0
+    assert sticky_limits(ax, -5.0, -1.0, axis="x", include_zero=False)
+    assert ax.get_xlim()[0] < -5.0 and -1.0 < ax.get_xlim()[1] < 0.0
