@@ -28,7 +28,7 @@ from numpy.typing import ArrayLike
 from ._checks import finite, nonnegative, positive, require, scalar_or_array
 from ._results import Result, quantity
 
-__all__ = ["Conic"]
+__all__ = ["Conic", "elements_from_state"]
 
 _TWO_PI = 2.0 * np.pi
 
@@ -169,19 +169,8 @@ class Conic(Result):
         v_vec = _two_vector(v_vec, "v_vec")
         mu = positive(mu, "mu", "m^3/s^2")
         x, y = r_vec[..., 0], r_vec[..., 1]
-        vx, vy = v_vec[..., 0], v_vec[..., 1]
-        r = np.hypot(x, y)
-        require(r, r <= 0.0, "r_vec", "non-zero (a position away from the centre)", "m")
-        h = x * vy - y * vx
-        v2 = vx * vx + vy * vy
-        rv = x * vx + y * vy
-        ex = ((v2 - mu / r) * x - rv * vx) / mu
-        ey = ((v2 - mu / r) * y - rv * vy) / mu
-        e = np.hypot(ex, ey)
-        with np.errstate(invalid="ignore"):
-            rp = np.where(h > 0.0, h * h / mu / (1.0 + e), np.nan)
-        e = np.where(h > 0.0, e, np.nan)
-        argp = np.where(h > 0.0, np.arctan2(ey, ex), np.nan)
+        require(r_vec, np.hypot(x, y) <= 0.0, "r_vec", "non-zero (a position away from the centre)", "m")
+        rp, e, argp = elements_from_state(x, y, v_vec[..., 0], v_vec[..., 1], mu)
         return cls._trusted(rp, e, mu, argp)
 
     # ------------------------------------------------------------------ properties
@@ -346,6 +335,26 @@ class Conic(Result):
         r_vec = _two_vector(r_vec, "r_vec")
         angle = np.arctan2(r_vec[..., 1], r_vec[..., 0]) - self.argp
         return scalar_or_array(np.pi - np.mod(np.pi - angle, _TWO_PI))
+
+
+def elements_from_state(x: np.ndarray, y: np.ndarray, vx: np.ndarray, vy: np.ndarray, mu: np.ndarray) -> tuple:
+    """Periapsis radius, eccentricity and argp of the conic through a planar state.
+
+    Unchecked arrays in, arrays out: the shared kernel of
+    :meth:`Conic.from_state` and the finite-burn integrator. Elements are NaN
+    where the angular momentum ``h = x vy - y vx`` is not positive.
+    """
+    with np.errstate(invalid="ignore", divide="ignore"):
+        r = np.hypot(x, y)
+        h = x * vy - y * vx
+        v2 = vx * vx + vy * vy
+        rv = x * vx + y * vy
+        ex = ((v2 - mu / r) * x - rv * vx) / mu
+        ey = ((v2 - mu / r) * y - rv * vy) / mu
+        e = np.hypot(ex, ey)
+        good = h > 0.0
+        rp = np.where(good, h * h / mu / (1.0 + e), np.nan)
+    return rp, np.where(good, e, np.nan), np.where(good, np.arctan2(ey, ex), np.nan)
 
 
 def _two_vector(value: ArrayLike, name: str) -> np.ndarray:

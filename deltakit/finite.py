@@ -40,7 +40,7 @@ from numpy.typing import ArrayLike
 from ._checks import finite, nonnegative, positive, require, scalar_or_array
 from ._results import Result, quantity
 from ._rk853 import integrate
-from .conic import Conic
+from .conic import Conic, elements_from_state
 from .constants import G0
 from .errors import DomainError
 from .kepler import propagate
@@ -120,21 +120,6 @@ def _state(rp, e, mu, argp, nu):
     angle = nu + argp
     c, s = np.cos(angle), np.sin(angle)
     return r * c, r * s, radial * c - transverse * s, radial * s + transverse * c
-
-
-def _elements(x, y, vx, vy, mu):
-    """Periapsis radius, eccentricity and argp of the conic through a state (NaN if h <= 0)."""
-    with np.errstate(invalid="ignore", divide="ignore"):
-        r = np.hypot(x, y)
-        h = x * vy - y * vx
-        v2 = vx * vx + vy * vy
-        rv = x * vx + y * vy
-        ex = ((v2 - mu / r) * x - rv * vx) / mu
-        ey = ((v2 - mu / r) * y - rv * vy) / mu
-        e = np.hypot(ex, ey)
-        good = h > 0.0
-        rp = np.where(good, h * h / mu / (1.0 + e), np.nan)
-    return rp, np.where(good, e, np.nan), np.where(good, np.arctan2(ey, ex), np.nan)
 
 
 def _burn(rp, e, mu, argp, nu_center, thrust, ve, mass, propellant, prograde):
@@ -286,7 +271,7 @@ def thrust_arc(
             # energies from states on both ends, so a zero burn changes nothing at all
             energy_start = _energy(*start, mu)
         state[:, todo] = final
-        new_rp, new_e, new_argp = _elements(*final, mu[todo])
+        new_rp, new_e, new_argp = elements_from_state(*final, mu[todo])
         coast = tuple(np.array(q, float) for q in coast)
         for old, new in zip(coast, (new_rp, new_e, new_argp)):
             old[todo] = new
@@ -300,7 +285,7 @@ def thrust_arc(
         root = np.sqrt(speed_center**2 + 2.0 * energy_change)
         equivalent = 2.0 * energy_change / (speed_center + root)
         loss = dv - equivalent
-    after_rp, after_e, after_argp = _elements(x, y, vx, vy, mu)
+    after_rp, after_e, after_argp = elements_from_state(x, y, vx, vy, mu)
     after_rp, after_e, after_argp = (np.where(alive, q, np.nan) for q in (after_rp, after_e, after_argp))
 
     def out(q: np.ndarray) -> Any:
