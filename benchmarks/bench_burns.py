@@ -20,9 +20,9 @@ from __future__ import annotations
 import math
 import statistics
 import sys
-import time
 
 import numpy as np
+from _timing import median_time
 
 from deltakit import Conic, burn_prograde
 from deltakit.constants import EARTH
@@ -116,15 +116,6 @@ def plain_loop(rp, e, mu, argp, nu, dv):
         rp_new = p * s * s / (1.0 + e_new)
         out.append((rp_new, e_new, argp_i + nu_i - nu_after, nu_after, dv_i * (v + 0.5 * dv_i)))
     return out
-
-
-def median_time(function, *args, repeats: int = REPEATS) -> float:
-    times = []
-    for _ in range(repeats):
-        start = time.perf_counter()
-        function(*args)
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
 
 
 def workload_independent():

@@ -25,6 +25,7 @@ import time
 from pathlib import Path
 
 import numpy as np
+from _timing import median_time
 
 ROOT = Path(__file__).resolve().parent.parent
 FIRST_DERIVE_BUDGET = 1.0
@@ -56,15 +57,6 @@ def fused_hohmann(r1: np.ndarray, r2: np.ndarray, mu: float) -> np.ndarray:
     first = v1 * (np.sqrt(2.0 * r2 / s) - 1.0)
     second = v2 * (1.0 - np.sqrt(2.0 * r1 / s))
     return np.abs(first) + np.abs(second)
-
-
-def median_time(function, *args, repeats: int) -> float:
-    times = []
-    for _ in range(repeats):
-        start = time.perf_counter()
-        function(*args)
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
 
 
 def main(argv: list[str]) -> int:
