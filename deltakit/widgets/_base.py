@@ -24,7 +24,7 @@ from matplotlib.figure import Figure
 
 from ..errors import DomainError
 
-__all__ = ["CAUTION", "FigureView", "Panel", "figure_mode", "json_ready"]
+__all__ = ["CAUTION", "FigureView", "Panel", "figure_mode", "json_ready", "on_slider_grid"]
 
 #: The small print every panel shows.
 CAUTION = (
@@ -80,6 +80,8 @@ class FigureView:
             FigureManager(canvas, id(figure))
             canvas.header_visible = False
             canvas.toolbar_visible = "fade-in-fade-out"
+            # on top, the toolbar never lies over the y-axis label and ticks of a full-width figure
+            canvas.toolbar_position = "top"
             canvas.resizable = False
             self.widget: widgets.DOMWidget = canvas
         else:
@@ -154,6 +156,31 @@ def json_ready(value: Any) -> Any:
     return str(value)
 
 
+def _decimals(x: float) -> int:
+    """Decimal places of a slider's step or origin as written (0.05 -> 2, 5.0 -> 0)."""
+    text = f"{abs(x):.10f}".rstrip("0")
+    return len(text.split(".")[1])
+
+
+def on_slider_grid(value: float, low: float, step: float) -> float:
+    """The nearest value a slider with origin ``low`` and ``step`` can hold: ``low + k * step``.
+
+    The browser's slider snaps every value to this grid and sends the snapped
+    value back to the kernel, so a panel only ever gives its sliders grid values.
+
+    >>> on_slider_grid(7.6686, 0.0, 0.05), on_slider_grid(-37.3, -180.0, 1.0), on_slider_grid(0.3, 0.0, 0.1)
+    (7.65, -37.0, 0.3)
+    """
+    if not step > 0.0:
+        return float(value)
+    k = round((value - low) / step)
+    return round(low + k * step, max(_decimals(step), _decimals(low)))
+
+
+def _is_slider(widget: Any) -> bool:
+    return isinstance(widget, (widgets.FloatSlider, widgets.IntSlider))
+
+
 def _round_si(x: float) -> float:
     return float(f"{x:.{_DIGITS}g}")
 
@@ -214,6 +241,7 @@ class Panel(widgets.VBox):
         self._holding = False
         self._pending: set[str] = set()
         self._error = ""
+        self._adjusted: dict[str, str] = {}
         #: set by ``_update`` when only animated artists moved (a fast redraw is enough)
         self._fast = False
         self.figure: Figure | None = None
@@ -232,6 +260,8 @@ class Panel(widgets.VBox):
         """Register a control. ``scale`` is SI units per display unit (1e3 for km); None for non-numbers."""
         widget.style = {"description_width": "initial"}
         widget.add_class(f"deltakit-control-{name.replace('_', '-')}")
+        if _is_slider(widget):
+            self._put_on_grid(name, widget, float(widget.value))
         self.controls[name] = widget
         self._scales[name] = scale
         return widget
@@ -285,6 +315,7 @@ class Panel(widgets.VBox):
             raise TypeError(
                 f"{type(self).__name__}.set() got unknown names {unknown}; expected some of {sorted(self.controls)}"
             )
+        self._adjusted = {}
         self._holding = True
         try:
             for name, value in values.items():
@@ -310,11 +341,42 @@ class Panel(widgets.VBox):
             raise DomainError(f"`{name}` must be a number, not {value!r}") from err
         if not math.isfinite(shown):
             raise DomainError(f"`{name}` must be finite, not {value!r}")
+        if _is_slider(widget):
+            self._put_on_grid(name, widget, shown)
+            return
         if hasattr(widget, "max") and shown > widget.max:
             widget.max = shown
         if hasattr(widget, "min") and shown < widget.min:
             widget.min = shown
         widget.value = shown
+
+    def _put_on_grid(self, name: str, widget: Any, shown: float) -> None:
+        """Give a slider ``shown`` (display units) as the nearest value it can hold, and say so if it moved.
+
+        The browser snaps a slider to ``min + k * step`` and sends the snapped
+        value back, so an off-grid value would change the panel's input behind
+        the analyst's back. Instead the panel snaps at once and names the
+        change in its readouts. A value beyond the range widens it by whole steps.
+        """
+        step = float(widget.step)
+        if shown > widget.max:
+            widget.max = on_slider_grid(widget.min + math.ceil((shown - widget.min) / step - 1e-9) * step,
+                                        widget.min, step)
+        if shown < widget.min:
+            widget.min = on_slider_grid(widget.min - math.ceil((widget.min - shown) / step - 1e-9) * step,
+                                        widget.min, step)
+        snapped = min(max(on_slider_grid(shown, widget.min, step), widget.min), widget.max)
+        if abs(snapped - shown) > 1e-6 * step:
+            self._adjusted[name] = (
+                f"{widget.description}: {shown:.6g} is between the slider's steps of {step:g}; "
+                f"the panel uses {snapped:.6g}."
+            )
+        widget.value = snapped
+
+    @property
+    def adjusted(self) -> dict[str, str]:
+        """Slider values set from code that were moved to the slider's step grid: name -> note."""
+        return dict(self._adjusted)
 
     def export(self) -> dict[str, Any]:
         """Inputs and readouts, JSON-ready and SI: ``{"panel", "version", "values", "results"}``.
@@ -333,6 +395,11 @@ class Panel(widgets.VBox):
         name = next((k for k, w in self.controls.items() if w is change["owner"]), None)
         if self._holding:
             return
+        widget = change["owner"]
+        if _is_slider(widget) and isinstance(change.get("old"), (int, float)) and \
+                abs(change["new"] - change["old"]) <= 1e-9 * float(widget.step):
+            return  # the browser echoing our own value in its float arithmetic: nothing moved
+        self._adjusted.pop(name, None)
         self._refresh({name} if name else set(self.controls))
 
     def _refresh(self, changed: set[str]) -> None:
@@ -370,6 +437,7 @@ class Panel(widgets.VBox):
         rows = [(key, label, fmt(results[key], scale, unit)) for key, (label, scale, unit) in self.readout_spec.items()
                 if key in results]
         body = html_table(rows)
+        notes = [*self._adjusted.values(), *(notes or [])]
         if notes:
             body += "".join(f'<div style="color:#5a4a00">{html.escape(n)}</div>' for n in notes)
         self.readouts.value = body
@@ -405,15 +473,32 @@ def sticky_limits(ax: Any, low: float, high: float, *, axis: str = "y", include_
 
 def slider(description: str, value: float, low: float, high: float, step: float, *, readout_format: str = ".1f",
            continuous: bool = True) -> widgets.FloatSlider:
-    """A float slider with the project's look."""
-    return widgets.FloatSlider(value=value, min=low, max=high, step=step, description=description,
-                               readout_format=readout_format, continuous_update=continuous,
-                               layout=widgets.Layout(width="520px"))
+    """A float slider with the project's look; its right end lies on the step grid too."""
+    high = on_slider_grid(low + math.ceil((high - low) / step - 1e-9) * step, low, step)
+    return widgets.FloatSlider(value=min(max(value, low), high), min=low, max=high, step=step,
+                               description=description, readout_format=readout_format,
+                               continuous_update=continuous, layout=widgets.Layout(width="520px"))
 
 
-def number(description: str, value: float, *, step: float | None = None, width: str = "250px") -> widgets.FloatText:
-    """A float text box with the project's look."""
-    return widgets.FloatText(value=value, description=description, step=step, layout=widgets.Layout(width=width))
+#: Room for the digits of a number box (about 12 characters) beside its label.
+_INPUT_PX = 130
+#: Width of one character of a control's label at the notebook's font size.
+_LABEL_CHAR_PX = 7.4
+
+
+def number_width(description: str) -> str:
+    """A number box wide enough for its label and about 12 digits.
+
+    >>> number_width("dry mass (kg)")
+    '226px'
+    """
+    return f"{round(len(description) * _LABEL_CHAR_PX + _INPUT_PX)}px"
+
+
+def number(description: str, value: float, *, step: float | None = None, width: str | None = None) -> widgets.FloatText:
+    """A float text box with the project's look, as wide as its label needs (or ``width``)."""
+    return widgets.FloatText(value=value, description=description, step=step,
+                             layout=widgets.Layout(width=width or number_width(description)))
 
 
 def choice(description: str, options: list[Any], value: Any, *, width: str = "250px") -> widgets.Dropdown:

@@ -31,6 +31,10 @@ from ._base import Panel, number, slider, sticky_limits
 __all__ = ["PropellantTrade"]
 
 GJ = 1.0e9
+#: Slider step of the speed, km/s (10 m/s).
+_SPEED_STEP = 0.01
+#: The circular speed of a 400 km Earth orbit (7668.6 m/s) on the slider's step: 7.67 km/s.
+_DEFAULT_SPEED = round(float(circular_speed(EARTH.radius + 400e3, EARTH.mu)) / 1e3 / _SPEED_STEP) * _SPEED_STEP * 1e3
 _RATIOS = np.linspace(0.0, 5.0, 501)
 
 
@@ -54,7 +58,10 @@ class PropellantTrade(Panel):
         Effective exhaust velocity, m/s; None: ``isp * G0``.
     exhaust_input : {"specific impulse", "exhaust velocity"}
     speed : float
-        Vehicle speed when the burn starts, m/s, along the thrust.
+        Vehicle speed when the burn starts, m/s, along the thrust; the slider
+        holds it to 10 m/s (an off-step value is moved to the nearest step
+        and the readouts say so). Default: 7670 m/s, the circular speed of a
+        400 km Earth orbit to that step.
 
     Examples
     --------
@@ -80,7 +87,7 @@ class PropellantTrade(Panel):
                  propellant_mass: float = HALYARD.vehicle.propellant_mass, mass_ratio: float | None = None,
                  mass_input: str = "propellant mass", isp: float = HALYARD.vehicle.isp,
                  exhaust_velocity: float | None = None, exhaust_input: str = "specific impulse",
-                 speed: float = float(circular_speed(EARTH.radius + 400e3, EARTH.mu))) -> None:
+                 speed: float = _DEFAULT_SPEED) -> None:
         super().__init__()
         if mass_ratio is None:
             mass_ratio = (dry_mass + propellant_mass) / dry_mass if dry_mass > 0 else 1.0
@@ -95,7 +102,7 @@ class PropellantTrade(Panel):
                                                              value=exhaust_input, description="give"))
         self._control("isp", number("specific impulse (s)", isp), 1.0)
         self._control("exhaust_velocity", number("exhaust velocity (km/s)", exhaust_velocity / 1e3, step=0.01), 1e3)
-        self._control("speed", slider("speed at the burn (km/s)", speed / 1e3, 0.0, 20.0, 0.05,
+        self._control("speed", slider("speed at the burn (km/s)", speed / 1e3, 0.0, 20.0, _SPEED_STEP,
                                       readout_format=".2f"), 1e3)
         for toggle in ("mass_input", "exhaust_input"):
             self.controls[toggle].style = {"button_width": "130px", "description_width": "initial"}
@@ -223,12 +230,12 @@ class PropellantTrade(Panel):
             self.controls["isp"].disabled = v_exhaust != "specific impulse"
             self.controls["exhaust_velocity"].disabled = v_exhaust != "exhaust velocity"
             if v_mass == "propellant mass":
-                self.controls["mass_ratio"].value = round(ratio, 6)
+                self.controls["mass_ratio"].value = round(ratio, 4)
             else:
-                self.controls["propellant_mass"].value = round(propellant, 6)
+                self.controls["propellant_mass"].value = round(propellant, 2)
             if v_exhaust == "specific impulse":
-                self.controls["exhaust_velocity"].value = round(ve / 1e3, 9)
+                self.controls["exhaust_velocity"].value = round(ve / 1e3, 4)  # 0.1 m/s
             else:
-                self.controls["isp"].value = round(ve / G0, 6)
+                self.controls["isp"].value = round(ve / G0, 2)
         finally:
             self._holding = False
