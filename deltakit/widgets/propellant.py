@@ -114,7 +114,7 @@ class PropellantTrade(Panel):
         )
 
     def _build_figure(self) -> None:
-        fig = self._figure(7.6, 3.6)
+        fig = self._figure(7.6, 4.2)
         self.energy_axes, self.efficiency_axes = fig.subplots(1, 2, gridspec_kw={"width_ratios": [1.0, 1.2]})
         names = ["vehicle", "exhaust", "total"]
         self._bars = self.energy_axes.barh(names, [0.0, 0.0, 0.0], color=[COLOURS[n] for n in names], height=0.6)
@@ -129,7 +129,8 @@ class PropellantTrade(Panel):
         (self._share,) = self.share_axes.plot(_RATIOS, np.zeros_like(_RATIOS), color=COLOURS["after"],
                                               linewidth=1.8, linestyle="--",
                                               label="vehicle's gain / energy released (right)")
-        self.share_axes.set_ylabel("vehicle's gain / energy released", color=COLOURS["after"])
+        self.share_axes.set_ylabel("vehicle's gain / energy released\n(ratio)", color=COLOURS["after"],
+                                   fontsize="small")
         self.share_axes.tick_params(axis="y", colors=COLOURS["after"])
         (self._span,) = ax.plot([0.0, 0.0], [0.0, 0.0], color=COLOURS["burn"], linewidth=5, alpha=0.35,
                                 solid_capstyle="butt", label="during this burn")
@@ -139,8 +140,10 @@ class PropellantTrade(Panel):
                    title="efficiency against speed")
         ax.set_ylim(0.0, 1.05)
         handles = [self._efficiency, self._share, self._span, self._now]
-        ax.legend(handles, [h.get_label() for h in handles], loc="lower right", fontsize="small", framealpha=0.85)
-        fig.subplots_adjust(left=0.09, right=0.91, bottom=0.15, top=0.9, wspace=0.3)
+        # below both plots, where it covers no curve whatever the speed
+        fig.legend(handles, [h.get_label() for h in handles], loc="lower center", bbox_to_anchor=(0.5, 0.0),
+                   ncol=2, fontsize="small", frameon=False)
+        fig.subplots_adjust(left=0.12, right=0.86, bottom=0.26, top=0.92, wspace=0.36)
         self.view.animate(*self._bars.patches, self._span, self._now, self._share_now)
 
     def _update(self, changed: set[str]) -> None:

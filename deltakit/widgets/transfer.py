@@ -114,19 +114,20 @@ class TransferTrade(Panel):
                                             linestyle="--", linewidth=1.6, label="bi-elliptic, this rb/r1")
         (self._limit_curve,) = ax.plot(_RATIOS, np.zeros_like(_RATIOS), color=COLOURS["bielliptic"], linestyle=":",
                                        linewidth=1.4, label="bi-elliptic, rb far away")
-        for ratio in (BIELLIPTIC_BREAK_EVEN_RATIO, BIELLIPTIC_ALWAYS_BETTER_RATIO):
-            ax.axvline(ratio, color=COLOURS["reference"], linewidth=0.9, linestyle="-.")
-        ax.text(BIELLIPTIC_BREAK_EVEN_RATIO, 0.98, f"{BIELLIPTIC_BREAK_EVEN_RATIO:g} ",
-                transform=ax.get_xaxis_transform(), ha="right", va="top", fontsize="x-small",
-                color=COLOURS["reference"])
-        ax.text(BIELLIPTIC_ALWAYS_BETTER_RATIO, 0.98, f" {BIELLIPTIC_ALWAYS_BETTER_RATIO:g}",
-                transform=ax.get_xaxis_transform(), ha="left", va="top", fontsize="x-small",
-                color=COLOURS["reference"])
+        for ratio, style, label in ((BIELLIPTIC_BREAK_EVEN_RATIO, "-.", "break-even r2/r1 (rb far away)"),
+                                    (BIELLIPTIC_ALWAYS_BETTER_RATIO, ":", "bi-elliptic better for any rb > r2")):
+            ax.axvline(ratio, color=COLOURS["reference"], linewidth=0.9, linestyle=style, label=label)
+        # the values sit just above the frame, where the moving "this r2/r1" line (clipped to the axes)
+        # can never cross them, one left and one right of its line so they never overlap each other
+        for ratio, align in ((BIELLIPTIC_BREAK_EVEN_RATIO, "right"), (BIELLIPTIC_ALWAYS_BETTER_RATIO, "left")):
+            ax.text(ratio, 1.01, f"{ratio:.4g}", transform=ax.get_xaxis_transform(), ha=align, va="bottom",
+                    fontsize="x-small", color=COLOURS["reference"])
         self._ratio_now = ax.axvline(1.0, color=COLOURS["burn"], linewidth=1.4, label="this r2/r1")
         ax.set_xscale("log")
         ax.set_xlim(1.0, 100.0)
         style_axes(ax, xlabel="radius ratio r2/r1", ylabel="total delta-v / initial speed",
                    title="total delta-v against radius ratio")
+        ax.set_title(ax.get_title(), fontsize="medium", pad=12)  # room for the break-even values
         ax.legend(loc="lower right", fontsize="x-small", framealpha=0.85)
 
         ax = self.split_axes
@@ -139,7 +140,7 @@ class TransferTrade(Panel):
                    title="splitting the plane change")
         ax.legend(loc="upper left", fontsize="x-small", framealpha=0.85)
         self.view.animate(self._split_curve, self._split_best)
-        fig.subplots_adjust(left=0.14, right=0.97, bottom=0.08, top=0.95, wspace=0.34, hspace=0.45)
+        fig.subplots_adjust(left=0.14, right=0.97, bottom=0.08, top=0.92, wspace=0.34, hspace=0.5)
 
     def _update(self, changed: set[str]) -> None:
         v = self.values
