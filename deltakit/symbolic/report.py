@@ -86,8 +86,9 @@ def _latex_document(title: str, derivations: list) -> str:
         out.append(r"\begin{itemize}")
         out.extend(rf"  \item {text_tex(text)}" for text in d.assumptions)
         out.append(r"\end{itemize}")
-        out.append(r"\paragraph{Symbols.}")
-        out.append(r"\par\noindent\begin{tabular}{lp{0.62\textwidth}l}")
+        # the run-in heading gets a line of its own: beside a table it would sit at the table's middle
+        out.append(r"\paragraph{Symbols.}\mbox{}\par")
+        out.append(r"\noindent\begin{tabular}[t]{lp{0.62\textwidth}l}")
         for info in d.symbols.values():
             out.append(rf"  ${info.latex}$ & {text_tex(info.meaning)} & ${unit_tex(info.unit)}$ \\")
         out.append(r"\end{tabular}")
