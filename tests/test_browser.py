@@ -231,11 +231,45 @@ def _open_and_run(page: Any, lab: dict[str, Any]) -> None:
     # status bar names the kernel's state only once it is connected.
     page.locator(".jp-StatusBar-Widget", has_text=re.compile(r"\|\s*Idle")).first.wait_for(timeout=60_000)
     _wait_idle(page)
-    page.locator(".lm-MenuBar-item", has_text="Run").first.click()
-    page.locator("[data-command='runmenu:run-all']").click()
+    _run_all(page)
     page.wait_for_selector(".bt-smoke", state="visible", timeout=60_000)
+    _wait_all_executed(page)
     _wait_idle(page)
     page.wait_for_timeout(1000)  # first ipympl frames
+
+
+def _prompts(page: Any) -> list[str]:
+    """The execution prompts of the notebook's code cells: "[ ]:", "[*]:" or "[7]:"."""
+    return page.locator(".jp-CodeCell .jp-InputArea-prompt").evaluate_all("els => els.map(e => e.textContent)")
+
+
+def _run_all(page: Any, attempts: int = 3, wait_s: float = 15.0) -> None:
+    """Run every cell from the Run menu, again if the first request was dropped.
+
+    JupyterLab may drop a run-all sent just after the kernel first shows idle
+    (the session is still settling): no cell then gets a "[*]" or a number.
+    """
+    for attempt in range(1, attempts + 1):
+        page.locator(".lm-MenuBar-item", has_text="Run").first.click()
+        page.locator("[data-command='runmenu:run-all']").click()
+        deadline = time.monotonic() + wait_s
+        while time.monotonic() < deadline:
+            if any(re.search(r"\[(\*|\d+)\]", p) for p in _prompts(page)):
+                return
+            page.wait_for_timeout(250)
+    raise AssertionError(f"run-all started no cell after {attempts} tries; prompts: {_prompts(page)}")
+
+
+def _wait_all_executed(page: Any, timeout_s: float = 120.0) -> None:
+    """Wait until every code cell shows an execution count (none still queued or running)."""
+    deadline = time.monotonic() + timeout_s
+    while True:
+        prompts = _prompts(page)
+        if prompts and all(re.search(r"\[\d+\]", p) for p in prompts):
+            return
+        if time.monotonic() > deadline:
+            raise AssertionError(f"cells still waiting after {timeout_s:.0f} s: {prompts}")
+        page.wait_for_timeout(250)
 
 
 def _wait_idle(page: Any) -> None:

@@ -30,7 +30,7 @@ from ..errors import DomainError
 from ..plotting.waterfall import update_budget_waterfall
 from ..transfers import hohmann
 from ..twobody import circular_speed
-from ._base import Panel, json_ready, number
+from ._base import Panel, json_ready, number, number_width
 from ._formulas import FORMULAS, evaluate
 
 __all__ = ["BudgetBuilder", "default_lines"]
@@ -121,7 +121,7 @@ class BudgetBuilder(Panel):
         self._control("name", widgets.Text(value=name, description="budget name", layout=widgets.Layout(width="420px")))
         self._control("m0", number("starting mass (kg)", m0), 1.0)
         self._control("isp", number("specific impulse (s)", isp), 1.0)
-        self._control("dry_mass", number("dry mass (kg, 0: not given)", dry_mass, width="280px"), 1.0)
+        self._control("dry_mass", number("dry mass (kg, 0: not given)", dry_mass), 1.0)
         self._control("lines", widgets.Select(options=[], rows=6, description="lines",
                                               layout=widgets.Layout(width="640px")))
         self._control("path", widgets.Text(value=path, description="file", layout=widgets.Layout(width="420px")))
@@ -168,9 +168,9 @@ class BudgetBuilder(Panel):
             "formula": widgets.Dropdown(options=[(f.title, key) for key, f in FORMULAS.items()], value="number",
                                         description="from", style=style),
             "margin": widgets.FloatText(value=0.0, description="margin (%)", style=style,
-                                        layout=widgets.Layout(width="170px")),
+                                        layout=widgets.Layout(width=number_width("margin (%)"))),
             "isp": widgets.FloatText(value=0.0, description="own Isp (s, 0: budget's)", style=style,
-                                     layout=widgets.Layout(width="240px")),
+                                     layout=widgets.Layout(width=number_width("own Isp (s, 0: budget's)"))),
         }
         self._param_widgets: dict[str, dict[str, widgets.Widget]] = {}
         boxes = []
@@ -182,7 +182,7 @@ class BudgetBuilder(Panel):
                                                      style=style, layout=widgets.Layout(width="220px"))
                 else:
                     fields[p.key] = widgets.FloatText(value=round(p.default / p.scale, 6), description=p.label,
-                                                      style=style, layout=widgets.Layout(width="260px"))
+                                                      style=style, layout=widgets.Layout(width=number_width(p.label)))
             self._param_widgets[key] = fields
             boxes.append(widgets.HBox(list(fields.values()), layout=widgets.Layout(flex_flow="row wrap")))
         self._param_boxes = dict(zip(FORMULAS, boxes))
