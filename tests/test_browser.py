@@ -518,3 +518,36 @@ def test_panel_fits_notebook_width(notebook_page: Any, name: str) -> None:
         f"{extent['widest']!r}: it is clipped at notebook width"
     )
     assert not extent["cut"], f"{name}: text cut off in its box (label, input or slider readout): {extent['cut']}"
+
+
+_OVERLAP_JS = """
+e => {
+  const canvas = e.querySelector('.jupyter-matplotlib-canvas-div');
+  const bars = [...e.querySelectorAll('.jupyter-matplotlib-toolbar')].filter(b => b.offsetParent !== null);
+  if (!canvas) return null;
+  const c = canvas.getBoundingClientRect();
+  return bars.map(b => {
+    const r = b.getBoundingClientRect();
+    const overlap = Math.max(0, Math.min(r.right, c.right) - Math.max(r.left, c.left)) *
+                    Math.max(0, Math.min(r.bottom, c.bottom) - Math.max(r.top, c.top));
+    return {overlap, opacity: getComputedStyle(b).opacity, top: r.top, canvasTop: c.top};
+  });
+}
+"""
+
+
+@pytest.mark.parametrize("name", ["BurnPointExplorer", "PropellantTrade", "TransferTrade", "EscapeFlyby",
+                                  "BudgetBuilder"])
+def test_figure_toolbar_never_covers_the_figure(notebook_page: Any, artifacts: Path, name: str) -> None:
+    """With the pointer over a live figure its toolbar shows above it, not over the axis labels and ticks."""
+    page = notebook_page
+    box = page.locator(f".bt-{name}").first
+    box.wait_for(state="visible", timeout=30_000)
+    figure = _figure_locator(box)
+    figure.scroll_into_view_if_needed()
+    figure.hover()
+    page.wait_for_timeout(800)  # the toolbar fades in
+    bars = box.evaluate(_OVERLAP_JS)
+    box.screenshot(path=str(artifacts / f"browser-{name}-hover.png"))
+    assert bars, f"{name}: no ipympl toolbar found over its live figure"
+    assert all(b["overlap"] == 0 for b in bars), f"{name}: the figure toolbar lies over the figure: {bars}"
