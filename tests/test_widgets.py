@@ -561,6 +561,8 @@ def test_live_figures_use_an_ipympl_canvas(monkeypatch):
     live = dk.widgets.BurnPointExplorer()
     assert type(live.view.widget).__name__ == "Canvas"
     assert live.view.widget in live.children
+    # ipympl lays any visible toolbar over the figure (tests/test_browser.py shows it in a browser)
+    assert live.view.widget.toolbar_visible is False
     live.set(nu=1.0)
     live.set(nu=1.2)
     monkeypatch.setenv("DELTAKIT_FIGURES", "static")

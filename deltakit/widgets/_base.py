@@ -79,8 +79,10 @@ class FigureView:
             canvas = Canvas(figure)
             FigureManager(canvas, id(figure))
             canvas.header_visible = False
-            canvas.toolbar_visible = "fade-in-fade-out"
-            # on top, the toolbar never lies over the y-axis label and ticks of a full-width figure
+            # ipympl lays its toolbar over the figure wherever it is placed (over the y-axis label and
+            # ticks on the left, over titles and legends at the top), and a panel keeps its own axis
+            # limits, which pan and zoom would fight: no toolbar. ``panel.figure.savefig`` saves a picture.
+            canvas.toolbar_visible = False
             canvas.toolbar_position = "top"
             canvas.resizable = False
             self.widget: widgets.DOMWidget = canvas
