@@ -663,3 +663,77 @@ def test_mirrored_number_boxes_show_few_digits(trade):
     assert trade.controls["exhaust_velocity"].value == round(trade.controls["exhaust_velocity"].value, 4)
     assert trade.controls["mass_ratio"].value == round(trade.controls["mass_ratio"].value, 4)
     assert trade.results["exhaust_velocity"] == pytest.approx(trade.values["isp"] * 9.80665, rel=1e-12)
+
+
+# ---------------------------------------------------------------------- no text over text
+def _text_boxes(fig):
+    """(name, window bbox, rotation) of every drawn text, tick label and legend of a figure."""
+    from matplotlib.axis import Axis
+    from matplotlib.legend import Legend
+    from matplotlib.text import Text
+
+    fig.canvas.draw()
+    renderer = fig.canvas.get_renderer()
+    legends = [legend for legend in fig.findobj(Legend) if legend.get_visible()]
+    skip = {id(t) for legend in legends for t in [*legend.get_texts(), legend.get_title()]}
+    found = []
+    for axis in fig.findobj(Axis):
+        ticks = axis.get_major_ticks() + axis.get_minor_ticks()
+        skip |= {id(t) for tick in ticks for t in (tick.label1, tick.label2)}
+        if not (axis.get_visible() and axis.axes.get_visible()):
+            continue
+        for tick in axis._update_ticks():  # only the ticks inside the view are drawn
+            found += [(f"tick {t.get_text()!r}", t.get_window_extent(renderer), t.get_rotation())
+                      for t in (tick.label1, tick.label2) if t.get_visible() and t.get_text().strip()]
+    for t in fig.findobj(Text):
+        if id(t) not in skip and t.get_visible() and t.get_text().strip():
+            found.append((f"text {t.get_text()!r}", t.get_window_extent(renderer), t.get_rotation()))
+    found += [(f"legend {[t.get_text() for t in legend.get_texts()][:2]}", legend.get_window_extent(renderer), 0)
+              for legend in legends]
+    return found
+
+
+def _overlapping_text(fig):
+    import itertools
+
+    clashes = []
+    for (a, box_a, rot_a), (b, box_b, rot_b) in itertools.combinations(_text_boxes(fig), 2):
+        if rot_a % 90 and rot_b % 90:
+            continue  # the upright boxes of two slanted labels overlap without their letters doing so
+        width = min(box_a.x1, box_b.x1) - max(box_a.x0, box_b.x0)
+        height = min(box_a.y1, box_b.y1) - max(box_a.y0, box_b.y0)
+        if width > 1 and height > 1:
+            clashes.append((a, b))
+    return clashes
+
+
+@pytest.mark.parametrize("panel_name", SLIDER_PANELS + ["BudgetBuilder"])
+def test_panel_figure_has_no_overlapping_text(panel_name):
+    panel = getattr(dk.widgets, panel_name)()
+    assert _text_boxes(panel.figure), "no text found: the check would pass on anything"
+    assert _overlapping_text(panel.figure) == []
+
+
+def test_overlap_check_sees_overlapping_text():
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=(4, 3))
+    FigureCanvasAgg(fig)
+    ax = fig.add_subplot()
+    ax.text(0.5, 0.5, "break-even 15.58")
+    ax.text(0.52, 0.5, "this r2/r1")
+    assert len(_overlapping_text(fig)) == 1
+
+
+@pytest.mark.parametrize("ratio", [11.94, 15.58, 17.7])
+def test_transfer_break_even_values_sit_above_the_moving_line(transfer, ratio):
+    # the "this r2/r1" line is clipped to the axes; the values above the frame can never be crossed
+    transfer.set(r2=transfer.values["r1"] * ratio)
+    transfer.figure.canvas.draw()
+    renderer = transfer.figure.canvas.get_renderer()
+    top = transfer.ratio_axes.get_window_extent(renderer).y1
+    values = [t for t in transfer.ratio_axes.texts if t.get_text() in ("11.94", "15.58")]
+    assert len(values) == 2
+    assert all(t.get_window_extent(renderer).y0 >= top for t in values)
+    assert _overlapping_text(transfer.figure) == []

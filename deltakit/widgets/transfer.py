@@ -114,8 +114,8 @@ class TransferTrade(Panel):
                                             linestyle="--", linewidth=1.6, label="bi-elliptic, this rb/r1")
         (self._limit_curve,) = ax.plot(_RATIOS, np.zeros_like(_RATIOS), color=COLOURS["bielliptic"], linestyle=":",
                                        linewidth=1.4, label="bi-elliptic, rb far away")
-        for ratio, style, label in ((BIELLIPTIC_BREAK_EVEN_RATIO, "-.", "break-even r2/r1 (rb far away)"),
-                                    (BIELLIPTIC_ALWAYS_BETTER_RATIO, ":", "bi-elliptic better for any rb > r2")):
+        for ratio, style, label in ((BIELLIPTIC_BREAK_EVEN_RATIO, "-.", "break-even, rb far away"),
+                                    (BIELLIPTIC_ALWAYS_BETTER_RATIO, ":", "bi-elliptic wins for any rb > r2")):
             ax.axvline(ratio, color=COLOURS["reference"], linewidth=0.9, linestyle=style, label=label)
         # the values sit just above the frame, where the moving "this r2/r1" line (clipped to the axes)
         # can never cross them, one left and one right of its line so they never overlap each other
@@ -128,7 +128,7 @@ class TransferTrade(Panel):
         style_axes(ax, xlabel="radius ratio r2/r1", ylabel="total delta-v / initial speed",
                    title="total delta-v against radius ratio")
         ax.set_title(ax.get_title(), fontsize="medium", pad=12)  # room for the break-even values
-        ax.legend(loc="lower right", fontsize="x-small", framealpha=0.85)
+        self._ratio_legend()
 
         ax = self.split_axes
         (self._split_curve,) = ax.plot(_FRACTIONS * 100, np.zeros_like(_FRACTIONS), color=COLOURS["hohmann"],
@@ -141,6 +141,12 @@ class TransferTrade(Panel):
         ax.legend(loc="upper left", fontsize="x-small", framealpha=0.85)
         self.view.animate(self._split_curve, self._split_best)
         fig.subplots_adjust(left=0.14, right=0.97, bottom=0.08, top=0.92, wspace=0.34, hspace=0.5)
+
+    def _ratio_legend(self) -> None:
+        """The radius-ratio plot's legend, under the orbit drawing: inside its own axes it would cover curves."""
+        self.ratio_axes.legend(loc="upper center", bbox_to_anchor=(0.42, -0.37), bbox_transform=self.orbit_axes.transAxes,
+                               ncol=2, fontsize="x-small", frameon=False, title="total delta-v plot",
+                               title_fontsize="x-small")
 
     def _update(self, changed: set[str]) -> None:
         v = self.values
@@ -178,7 +184,7 @@ class TransferTrade(Panel):
             self._bielliptic_curve.set_ydata(curves[1])
             self._limit_curve.set_ydata(curves[2])
             self._bielliptic_curve.set_label(f"bi-elliptic, rb = {rb / r1:.3g} r1")
-            self.ratio_axes.legend(loc="lower right", fontsize="x-small", framealpha=0.85)
+            self._ratio_legend()
             top = float(np.nanmax(np.concatenate([curves[0], curves[2]])))
             self.ratio_axes.set_ylim(0.0, 1.1 * top)
             self._curve_key = key
