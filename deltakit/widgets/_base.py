@@ -309,8 +309,11 @@ class Panel(widgets.VBox):
     def set(self, **values: Any) -> Panel:
         """Drive the panel from code with SI values; one update for all of them.
 
-        Names are those of :attr:`controls`. A numeric value outside a
-        slider's range widens the range.
+        Names are those of :attr:`controls`. A slider holds only values on
+        its step grid (the browser would snap any other and send it back):
+        an off-step value moves to the nearest step, and the readouts and
+        :attr:`adjusted` say so. A value outside a slider's range widens the
+        range by whole steps.
         """
         unknown = sorted(set(values) - set(self.controls))
         if unknown:

@@ -9,7 +9,8 @@ exhaust: the faster the vehicle already moves, the larger the vehicle's share
 propulsive efficiency against the speed ratio v/ve.
 
 Default case: the invented Halyard cargo tug (:mod:`deltakit.demo`) starting
-its burn at the circular speed of a 400 km Earth orbit (cited constants).
+its burn at the circular speed of a 400 km Earth orbit (cited constants), to
+the speed slider's 10 m/s step.
 """
 
 from __future__ import annotations
