@@ -69,7 +69,7 @@ def main(argv: list[str]) -> int:
     panel.view.png = lambda: b""  # the same update without encoding the static view's PNG
     draw_ms = median_ms(update, count)
     panel.view.png = png
-    dv_step_ms = median_ms(lambda i: panel.set(dv=100.0 + (i % 5)), count)
+    dv_step_ms = median_ms(lambda i: panel.set(dv=100.0 + 5.0 * (i % 5)), count)  # on the 5 m/s grid
     full_redraw_ms = median_ms(lambda i: panel._refresh({"periapsis_altitude"}), max(5, count // 4))
     assert panel.error == "", panel.error
 
