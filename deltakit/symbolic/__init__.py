@@ -21,8 +21,8 @@ True
 from __future__ import annotations
 
 from . import departure, energetics, orbits, transfers  # noqa: F401  (importing registers the entries)
-from ._registry import UnknownEntry, catalog, derive
+from ._registry import UnknownEntry, catalog, derive, titles
 from .derivation import Derivation, Meaning
 from .report import report
 
-__all__ = ["Derivation", "Meaning", "UnknownEntry", "catalog", "derive", "report"]
+__all__ = ["Derivation", "Meaning", "UnknownEntry", "catalog", "derive", "report", "titles"]

@@ -20,9 +20,11 @@ class Builder:
     as a chain of assignments.
     """
 
-    def __init__(self, name: str, title: str) -> None:
+    def __init__(self, name: str, title: str | None = None) -> None:
+        from ._registry import registered_title
+
         self.name = name
-        self.title = title
+        self.title = registered_title(name) if title is None else title
         self.symbols: dict[sp.Symbol, Meaning] = {}
         self.steps: list[tuple[str, sp.Basic]] = []
         self.zero_ok: set[sp.Symbol] = set()

@@ -7,10 +7,11 @@ from collections.abc import Callable
 
 from .derivation import Derivation
 
-__all__ = ["UnknownEntry", "catalog", "derive", "entry"]
+__all__ = ["UnknownEntry", "catalog", "derive", "entry", "titles"]
 
 _BUILDERS: dict[str, Callable[[], Derivation]] = {}
 _ALIASES: dict[str, str] = {}
+_TITLES: dict[str, str] = {}
 #: Catalog order: one orbit, transfers, leaving and reaching a body, propellant.
 _FAMILIES = ("orbits", "transfers", "departure", "energetics")
 
@@ -22,11 +23,15 @@ class UnknownEntry(KeyError):
         return str(self.args[0])
 
 
-def entry(name: str, *aliases: str) -> Callable[[Callable[[], Derivation]], Callable[[], Derivation]]:
-    """Register a builder under ``name`` (and optional aliases)."""
+def entry(name: str, *aliases: str, title: str) -> Callable[[Callable[[], Derivation]], Callable[[], Derivation]]:
+    """Register a builder under ``name`` (and optional aliases) with its title.
+
+    The title is known without deriving, so a menu of the catalog is instant.
+    """
 
     def register(builder: Callable[[], Derivation]) -> Callable[[], Derivation]:
         _BUILDERS[name] = builder
+        _TITLES[name] = title
         for alias in aliases:
             _ALIASES[alias] = name
         return builder
@@ -51,6 +56,23 @@ def catalog() -> tuple[str, ...]:
         return rank.get(family, len(rank)), order[name]
 
     return tuple(sorted(_BUILDERS, key=key))
+
+
+def titles() -> dict[str, str]:
+    """Entry name -> title, in catalog order, without deriving anything.
+
+    Examples
+    --------
+    >>> from deltakit.symbolic import titles
+    >>> titles()["hohmann"]
+    'Hohmann transfer between circular orbits'
+    """
+    return {name: _TITLES[name] for name in catalog()}
+
+
+def registered_title(name: str) -> str:
+    """The title an entry was registered with."""
+    return _TITLES[name]
 
 
 @functools.cache

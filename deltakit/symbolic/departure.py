@@ -36,8 +36,8 @@ def _parking_speed(rp: sp.Symbol, mu: sp.Symbol, ra: sp.Symbol | None) -> sp.Exp
     return tidy(d.result.subs({r_s: rp, a_s: a, mu_s: mu}, simultaneous=True))
 
 
-def _periapsis_entry(name: str, title: str, leaving: bool, elliptic: bool) -> Derivation:
-    b = Builder(name, title)
+def _periapsis_entry(name: str, leaving: bool, elliptic: bool) -> Derivation:
+    b = Builder(name)
     if elliptic:
         rp = b.symbol("rp", "periapsis radius of the parking orbit (where the burn happens)", "m", "r_{p}")
     else:
@@ -80,33 +80,31 @@ def _periapsis_entry(name: str, title: str, leaving: bool, elliptic: bool) -> De
     )
 
 
-@entry("escape_burn")
+@entry("escape_burn", title="Escape burn from a circular parking orbit")
 def _escape_burn() -> Derivation:
-    return _periapsis_entry("escape_burn", "Escape burn from a circular parking orbit", leaving=True, elliptic=False)
+    return _periapsis_entry("escape_burn", leaving=True, elliptic=False)
 
 
-@entry("capture_burn")
+@entry("capture_burn", title="Capture burn into a circular orbit")
 def _capture_burn() -> Derivation:
-    return _periapsis_entry("capture_burn", "Capture burn into a circular orbit", leaving=False, elliptic=False)
+    return _periapsis_entry("capture_burn", leaving=False, elliptic=False)
 
 
-@entry("escape_burn_elliptic")
+@entry("escape_burn_elliptic", title="Escape burn from the periapsis of an elliptic parking orbit")
 def _escape_burn_elliptic() -> Derivation:
-    return _periapsis_entry(
-        "escape_burn_elliptic", "Escape burn from the periapsis of an elliptic parking orbit", leaving=True, elliptic=True
+    return _periapsis_entry("escape_burn_elliptic", leaving=True, elliptic=True
     )
 
 
-@entry("capture_burn_elliptic")
+@entry("capture_burn_elliptic", title="Capture burn into an elliptic orbit at its periapsis")
 def _capture_burn_elliptic() -> Derivation:
-    return _periapsis_entry(
-        "capture_burn_elliptic", "Capture burn into an elliptic orbit at its periapsis", leaving=False, elliptic=True
+    return _periapsis_entry("capture_burn_elliptic", leaving=False, elliptic=True
     )
 
 
-@entry("powered_flyby")
+@entry("powered_flyby", title="Powered flyby: what a periapsis burn buys")
 def _powered_flyby() -> Derivation:
-    b = Builder("powered_flyby", "Powered flyby: what a periapsis burn buys")
+    b = Builder("powered_flyby")
     vinf_in = b.symbol("vinf_in", "hyperbolic excess speed on arrival", "m/s", r"v_{\infty,\mathrm{in}}", zero_ok=True)
     rp = b.symbol("rp", "periapsis radius of the flyby", "m", "r_{p}")
     dv = b.symbol("dv", "delta-v along the velocity at periapsis (negative: braking)", "m/s", r"\Delta v", real=True)

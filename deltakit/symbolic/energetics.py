@@ -19,9 +19,9 @@ __all__: list[str] = []
 _NO_GRAVITY = "Straight-line motion with no external force during the ejection (gravity and drag act over longer times and are left out)."
 
 
-@entry("rocket_equation", "rocket_dv")
+@entry("rocket_equation", "rocket_dv", title="Rocket equation (Tsiolkovsky)")
 def _rocket_equation() -> Derivation:
-    b = Builder("rocket_equation", "Rocket equation (Tsiolkovsky)")
+    b = Builder("rocket_equation")
     ve = b.symbol("ve", "effective exhaust velocity relative to the vehicle", "m/s", "v_{e}")
     m0 = b.symbol("m0", "mass before the burn", "kg", "m_{0}")
     mf = b.symbol("mf", "mass after the burn", "kg", "m_{f}")
@@ -59,9 +59,9 @@ def _rocket_equation() -> Derivation:
     )
 
 
-@entry("ejection_energy")
+@entry("ejection_energy", title="Energy accounting of one discrete ejection")
 def _ejection_energy() -> Derivation:
-    b = Builder("ejection_energy", "Energy accounting of one discrete ejection")
+    b = Builder("ejection_energy")
     m_vehicle = b.symbol("m_vehicle", "mass of the whole vehicle before the ejection", "kg", r"m_{v}")
     m_ejected = b.symbol("m_ejected", "mass thrown out", "kg", r"m_{e}", zero_ok=True)
     u = b.symbol("u", "speed of the ejecta in the frame that moved with the whole vehicle", "m/s", zero_ok=True)
@@ -109,9 +109,9 @@ def _ejection_energy() -> Derivation:
     )
 
 
-@entry("burn_energy")
+@entry("burn_energy", title="Energy accounting of a continuous burn")
 def _burn_energy() -> Derivation:
-    b = Builder("burn_energy", "Energy accounting of a continuous burn")
+    b = Builder("burn_energy")
     m0 = b.symbol("m0", "mass before the burn", "kg", "m_{0}")
     mf = b.symbol("mf", "mass after the burn", "kg", "m_{f}")
     ve = b.symbol("ve", "effective exhaust velocity relative to the vehicle", "m/s", "v_{e}")
@@ -158,9 +158,9 @@ def _burn_energy() -> Derivation:
     )
 
 
-@entry("propulsive_efficiency")
+@entry("propulsive_efficiency", title="Propulsive efficiency")
 def _propulsive_efficiency() -> Derivation:
-    b = Builder("propulsive_efficiency", "Propulsive efficiency")
+    b = Builder("propulsive_efficiency")
     v = b.symbol("v", "vehicle speed, signed along the thrust", "m/s", real=True)
     ve = b.symbol("ve", "effective exhaust velocity relative to the vehicle", "m/s", "v_{e}")
     mdot = b.symbol("mdot", "propellant mass flow", "kg/s", r"\dot{m}")

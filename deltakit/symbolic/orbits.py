@@ -22,9 +22,9 @@ _TWO_BODY = "Two-body motion: a point mass in the field of one spherical central
 _IMPULSIVE = "Impulsive burn: the velocity changes instantly, the position does not."
 
 
-@entry("vis_viva")
+@entry("vis_viva", title="Vis-viva: speed at a radius")
 def _vis_viva() -> Derivation:
-    b = Builder("vis_viva", "Vis-viva: speed at a radius")
+    b = Builder("vis_viva")
     r = b.symbol("r", "distance from the centre of the central body", "m")
     a = b.symbol("a", "semi-major axis (negative for a hyperbola)", "m", real=True, nonzero=True)
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
@@ -65,9 +65,9 @@ def _vis_viva() -> Derivation:
     )
 
 
-@entry("orbital_period", "period")
+@entry("orbital_period", "period", title="Period of an elliptic orbit (Kepler's third law)")
 def _orbital_period() -> Derivation:
-    b = Builder("orbital_period", "Period of an elliptic orbit (Kepler's third law)")
+    b = Builder("orbital_period")
     a = b.symbol("a", "semi-major axis", "m")
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
     e = b.symbol("e", "eccentricity (below 1)", "1", "e", nonnegative=True, real=True)
@@ -109,9 +109,9 @@ def _period_twin(a: Any, mu: Any) -> Any:
     return dk.Conic.circular(positive(a, "a", "m"), mu).period
 
 
-@entry("oberth", "energy_gain")
+@entry("oberth", "energy_gain", title="Energy gain of a prograde burn (Oberth relation)")
 def _oberth() -> Derivation:
-    b = Builder("oberth", "Energy gain of a prograde burn (Oberth relation)")
+    b = Builder("oberth")
     v = b.symbol("v", "speed just before the burn", "m/s", zero_ok=True)
     dv = b.symbol("dv", "delta-v along the velocity (negative: retrograde)", "m/s", r"\Delta v", real=True)
     r = b.symbol("r", "radius where the burn happens", "m")
@@ -144,9 +144,9 @@ def _oberth() -> Derivation:
     )
 
 
-@entry("inplane_burn")
+@entry("inplane_burn", title="Energy gain of a general in-plane burn")
 def _inplane_burn() -> Derivation:
-    b = Builder("inplane_burn", "Energy gain of a general in-plane burn")
+    b = Builder("inplane_burn")
     rp = b.symbol("rp", "periapsis radius of the orbit before the burn", "m", "r_{p}")
     e = b.symbol("e", "eccentricity before the burn", "1", "e", nonnegative=True, real=True)
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
@@ -198,9 +198,9 @@ def _burn_twin(rp: Any, e: Any, mu: Any, nu: Any, radial: Any, transverse: Any) 
     return dk.burn(dk.Conic(rp, e, mu), nu, radial=radial, transverse=transverse).energy_change
 
 
-@entry("apsis_change")
+@entry("apsis_change", title="Tangential apsis change: apoapsis after a prograde periapsis burn")
 def _apsis_change() -> Derivation:
-    b = Builder("apsis_change", "Tangential apsis change: apoapsis after a prograde periapsis burn")
+    b = Builder("apsis_change")
     rp = b.symbol("rp", "periapsis radius (where the burn happens)", "m", "r_{p}")
     ra = b.symbol("ra", "apoapsis radius before the burn", "m", "r_{a}")
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")

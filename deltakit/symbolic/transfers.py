@@ -42,9 +42,9 @@ def _circular_speed(b: Builder, r: sp.Symbol, mu: sp.Symbol) -> sp.Expr:
     return b.step("Solve for the circular speed.", v, solve_for(balance, v)[0])
 
 
-@entry("hohmann")
+@entry("hohmann", title="Hohmann transfer between circular orbits")
 def _hohmann() -> Derivation:
-    b = Builder("hohmann", "Hohmann transfer between circular orbits")
+    b = Builder("hohmann")
     r1 = b.symbol("r1", "radius of the initial circular orbit", "m", "r_{1}")
     r2 = b.symbol("r2", "radius of the final circular orbit", "m", "r_{2}")
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
@@ -85,9 +85,9 @@ def _hohmann() -> Derivation:
     )
 
 
-@entry("bielliptic")
+@entry("bielliptic", title="Bi-elliptic transfer between circular orbits")
 def _bielliptic() -> Derivation:
-    b = Builder("bielliptic", "Bi-elliptic transfer between circular orbits")
+    b = Builder("bielliptic")
     r1 = b.symbol("r1", "radius of the initial circular orbit", "m", "r_{1}")
     r2 = b.symbol("r2", "radius of the final circular orbit", "m", "r_{2}")
     rb = b.symbol("rb", "intermediate apoapsis radius (>= max(r1, r2))", "m", "r_{b}")
@@ -146,9 +146,9 @@ def _bielliptic() -> Derivation:
     )
 
 
-@entry("plane_change")
+@entry("plane_change", title="Pure plane change")
 def _plane_change() -> Derivation:
-    b = Builder("plane_change", "Pure plane change")
+    b = Builder("plane_change")
     v = b.symbol("v", "speed, the same before and after", "m/s", zero_ok=True)
     angle = b.symbol("angle", "angle between the old and the new velocity, in [0, pi]", "rad", r"\theta", zero_ok=True)
     dv = b.symbol("dv", "delta-v of the turn", "m/s", r"\Delta v")
@@ -180,9 +180,9 @@ def _plane_change() -> Derivation:
     )
 
 
-@entry("combined_plane_change")
+@entry("combined_plane_change", title="Combined plane and speed change")
 def _combined_plane_change() -> Derivation:
-    b = Builder("combined_plane_change", "Combined plane and speed change")
+    b = Builder("combined_plane_change")
     v1 = b.symbol("v1", "speed before the burn", "m/s", "v_{1}", zero_ok=True)
     v2 = b.symbol("v2", "speed after the burn", "m/s", "v_{2}", zero_ok=True)
     angle = b.symbol("angle", "angle between the two velocities, in [0, pi]", "rad", r"\theta", zero_ok=True)

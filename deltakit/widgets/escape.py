@@ -61,7 +61,7 @@ class EscapeFlyby(Panel):
         "dv_far": ("escape, then burn far away", 1e3, "km/s"),
         "saving": ("saved by burning at periapsis", 1.0, "m/s"),
         "vinf_out": ("flyby: excess speed leaving", 1e3, "km/s"),
-        "gain": ("flyby: gain beyond vinf + dv", 1.0, "m/s"),
+        "gain": ("flyby: gain beyond v∞ + dv", 1.0, "m/s"),
         "deflection": ("flyby: turn of the excess velocity", DEG, "deg"),
     }
 

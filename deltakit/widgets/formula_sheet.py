@@ -95,12 +95,11 @@ class FormulaSheet(Panel):
 
     def __init__(self, *, derivation: str = "oberth", steps: bool = True) -> None:
         super().__init__()
-        from ..symbolic import catalog, derive
+        from ..symbolic import derive, titles
 
         self._derive = derive
-        names = list(catalog())
-        # catalog names as labels: deriving every entry just for its title would take seconds
-        options = [(name.replace("_", " "), name) for name in names]
+        # titles are registered with the entries: the menu costs no derivation
+        options = [(title, name) for name, title in titles().items()]
         self._control("derivation", widgets.Dropdown(options=options, value=derivation, description="derivation",
                                                      layout=widgets.Layout(width="420px")))
         self._control("steps", widgets.Checkbox(value=steps, description="show the steps"))
