@@ -20,52 +20,23 @@ from __future__ import annotations
 
 import html
 import json
-import os
 import re
-import secrets
-import socket
-import subprocess
-import sys
 import time
-import urllib.request
 from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
 
 import pytest
+from _jupyterlab import chromium, get, jupyterlab, require_browser
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
-CHROMIUM = Path(os.environ.get("DELTAKIT_CHROMIUM", "/usr/bin/chromium"))  # Debian's package
-REQUIRE = os.environ.get("DELTAKIT_REQUIRE_BROWSER") == "1"
 
 #: The panels the notebook shows, in order (DESIGN.md, "Widgets and plots").
 PANELS = ["BurnPointExplorer", "PropellantTrade", "TransferTrade", "EscapeFlyby", "BudgetBuilder", "FormulaSheet"]
 
 #: Lab extensions the kernel's widgets need in the browser.
 NEEDED_EXTENSIONS = ("@jupyter-widgets/jupyterlab-manager", "jupyter-matplotlib")
-
-CHROMIUM_ARGS = [
-    "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
-    "--disable-background-networking", "--disable-component-update", "--disable-sync",
-]
-
-
-def _missing_browser_reason() -> str | None:
-    if not CHROMIUM.exists():
-        return f"{CHROMIUM} not found (apt-get install chromium)"
-    try:
-        import playwright.sync_api  # noqa: F401
-    except ImportError:
-        return "playwright is not installed (pip install playwright; no browser download needed)"
-    return None
-
-
-def _skip_or_fail(reason: str) -> None:
-    if REQUIRE:
-        pytest.fail(f"DELTAKIT_REQUIRE_BROWSER=1 but the browser test cannot run: {reason}")
-    pytest.skip(reason)
-
 
 # --------------------------------------------------------------------------- the notebook
 
@@ -122,73 +93,18 @@ def _write_notebook(folder: Path) -> Path:
 
 # --------------------------------------------------------------------------- the server
 
-def _free_port() -> int:
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
-
-
-def _get(url: str, timeout: float = 2.0) -> bytes:
-    with urllib.request.urlopen(url, timeout=timeout) as response:
-        return response.read()
-
-
 @pytest.fixture(scope="module")
 def lab(tmp_path_factory: pytest.TempPathFactory) -> Iterator[dict[str, Any]]:
-    reason = _missing_browser_reason()
-    if reason:
-        _skip_or_fail(reason)
-    home = tmp_path_factory.mktemp("lab-home")
+    require_browser()
     root = tmp_path_factory.mktemp("lab-root")
     _write_notebook(root)
-    env = dict(os.environ)
-    for var, sub in [("JUPYTER_CONFIG_DIR", "config"), ("JUPYTER_DATA_DIR", "data"),
-                     ("IPYTHONDIR", "ipython"), ("MPLCONFIGDIR", "mpl"), ("JUPYTER_RUNTIME_DIR", "runtime")]:
-        (home / sub).mkdir()
-        env[var] = str(home / sub)
-    env.pop("MPLBACKEND", None)  # let the kernel use ipympl as the notebook asks
-    # Keep the news and update pop-ups away; JupyterLab reads overrides from the
-    # environment's share/jupyter/lab/settings, which we must not touch, so the
-    # same settings go to the per-user settings folder of the temporary home.
-    settings = home / "config" / "lab" / "user-settings" / "@jupyterlab" / "apputils-extension"
-    settings.mkdir(parents=True)
-    (settings / "notification.jupyterlab-settings").write_text(
-        json.dumps({"fetchNews": "false", "checkForUpdates": False})
-    )
-    port, token = _free_port(), secrets.token_hex(16)
-    log = open(home / "lab.log", "wb")  # noqa: SIM115 (closed below)
-    process = subprocess.Popen(
-        [sys.executable, "-m", "jupyterlab", "--no-browser", "--allow-root",
-         "--ServerApp.ip=127.0.0.1", f"--ServerApp.port={port}", "--ServerApp.port_retries=0",
-         f"--IdentityProvider.token={token}", f"--ServerApp.root_dir={root}",
-         "--LabApp.news_url=None", "--LabApp.check_for_updates_class=jupyterlab.NeverCheckForUpdate"],
-        env=env, stdout=log, stderr=subprocess.STDOUT, cwd=root,
-    )
-    base = f"http://127.0.0.1:{port}"
-    try:
-        deadline = time.monotonic() + 60
-        while True:
-            try:
-                _get(f"{base}/api/status?token={token}")
-                break
-            except OSError:
-                if process.poll() is not None or time.monotonic() > deadline:
-                    raise RuntimeError(f"JupyterLab did not start:\n{(home / 'lab.log').read_text()[-3000:]}")
-                time.sleep(0.3)
-        yield {"base": base, "token": token, "root": root, "home": home}
-    finally:
-        process.terminate()
-        try:
-            process.wait(timeout=15)
-        except subprocess.TimeoutExpired:
-            process.kill()
-            process.wait()
-        log.close()
+    with jupyterlab(root, tmp_path_factory.mktemp("lab-home")) as server:
+        yield server
 
 
 def test_widget_extensions_are_found(lab: dict[str, Any]) -> None:
     """With temporary config and data folders, the page still loads the .venv's extensions."""
-    page = _get(f"{lab['base']}/lab?token={lab['token']}").decode()
+    page = get(f"{lab['base']}/lab?token={lab['token']}").decode()
     match = re.search(r'<script id="jupyter-config-data" type="application/json">(.*?)</script>', page, re.DOTALL)
     assert match, "JupyterLab page carries no jupyter-config-data"
     config = json.loads(match.group(1))
@@ -203,25 +119,13 @@ def test_widget_extensions_are_found(lab: dict[str, Any]) -> None:
 def notebook_page(
     lab: dict[str, Any], tmp_path_factory: pytest.TempPathFactory, artifacts: Path
 ) -> Iterator[Any]:
-    from playwright.sync_api import sync_playwright
-
-    profile = tmp_path_factory.mktemp("chromium-profile")
-    with sync_playwright() as pw:
-        context = pw.chromium.launch_persistent_context(
-            user_data_dir=str(profile), executable_path=str(CHROMIUM), headless=True,
-            args=CHROMIUM_ARGS, viewport={"width": 1280, "height": 1500},
-        )
+    with chromium(tmp_path_factory.mktemp("chromium-profile")) as page:
         try:
-            page = context.new_page()
-            page.set_default_timeout(60_000)
-            try:
-                _open_and_run(page, lab)
-            except Exception:  # any failure: keep a picture, then re-raise
-                page.screenshot(path=str(artifacts / "browser-failed-start.png"), full_page=True)
-                raise
-            yield page
-        finally:
-            context.close()
+            _open_and_run(page, lab)
+        except Exception:  # any failure: keep a picture, then re-raise
+            page.screenshot(path=str(artifacts / "browser-failed-start.png"), full_page=True)
+            raise
+        yield page
 
 
 def _open_and_run(page: Any, lab: dict[str, Any]) -> None:
