@@ -39,7 +39,7 @@ import dask
 import numpy as np
 
 import deltakit as dk
-import deltakit.sweep as sweep_module
+import deltakit.sweeps as sweep_module
 from deltakit.constants import EARTH
 from deltakit.trades import prograde_energy_change
 

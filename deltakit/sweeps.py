@@ -55,10 +55,12 @@ __all__ = ["EAGER_LIMIT", "KNOWN_UNITS", "open_sweep", "save_sweep", "sweep"]
 EAGER_LIMIT: int = 1 << 22
 
 #: Cases per block when the sweep goes lazy without an explicit chunk layout.
-#: 2 MB per float64 variable: the temporaries of one block stay in a core's
-#: cache (measured about 1.6x cheaper per case than 8 MB blocks on our 2-core
-#: machines), while the scheduler's cost per block stays small against the NumPy work.
-_BLOCK_CASES: int = 1 << 18
+#: 8 MB per float64 variable. Measured on our 2-core machines with two dask
+#: threads: blocks of 2^18 cases spent so much time in the scheduler and in
+#: Python between NumPy calls that the sweep got about 1.1 cores; 2^20 gets
+#: about 1.3 and nearly doubles the cases per second, and 2^22 gains little
+#: more while a wide result (seven fields of a burn) would need over 1 GB.
+_BLOCK_CASES: int = 1 << 20
 
 #: Units of the parameter and plain-result names of the numeric layer (DESIGN.md vocabulary).
 KNOWN_UNITS: dict[str, str] = {
