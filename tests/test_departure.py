@@ -86,7 +86,7 @@ def test_flyby_energy_is_the_oberth_gain_at_periapsis(vinf, rp, mu, dv):
         float(energy_gain(vp, dv)), rel=1e-10, abs=1e-9 * vp * abs(dv) + rounding
     )
     assert f.gain == pytest.approx(f.vinf_out - vinf - dv, abs=1e-9 * (vp + abs(dv)))
-    if dv > 0:
+    if dv > 1e-3:  # below that the gain (~dv mu / (rp vinf^2)) nears the rounding of vinf_out
         assert f.gain > 0.0  # burning deep in the well always pays (Oberth)
 
 
