@@ -188,6 +188,22 @@ def test_budget_waterfall_bars_are_budget_masses():
     np.testing.assert_allclose([bar.get_height() for bar in art2.remaining][1:], budget.mass_after)
 
 
+def test_budget_waterfall_mouse_readout_names_the_line():
+    """The x axis holds line names, so the readout names the bar under the cursor."""
+    budget = dk.Budget(1200.0, 3100.0).add("raise", 600.0).add("trim", 50.0)
+    ax = axes()
+    art = plot_budget_waterfall(ax, budget)
+    text = ax.format_coord(1.2, 800.0)
+    assert text.startswith("raise: ")
+    assert f"{budget.propellant_per_line[0]:,.1f} kg" in text and f"{budget.mass_after[0]:,.1f} kg" in text
+    assert "cursor at 800 kg" in text
+    assert ax.format_coord(-0.3, 10.0).startswith("start: 1,200.0 kg")
+    assert ax.format_coord(5.0, 10.0) == "cursor at 10 kg"
+    budget.replace(1, "trim", 75.0)
+    update_budget_waterfall(ax, art, budget)  # heights move in place: the readout follows
+    assert f"mass after {budget.mass_after[1]:,.1f} kg" in ax.format_coord(2.0, 0.0)
+
+
 def test_gallery_figure_saved(artifacts):
     """One figure with every helper, saved for a person to look at."""
     fig = Figure(figsize=(9, 8), dpi=100)

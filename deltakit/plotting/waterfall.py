@@ -43,6 +43,25 @@ def budget_masses(budget: Any) -> tuple[list[str], np.ndarray]:
     return labels, masses
 
 
+def _mass_readout(labels: list[str], masses: np.ndarray, spent: np.ndarray):
+    """The mouse readout of a waterfall: the line under the cursor and its masses.
+
+    The x axis holds line names, not numbers, so the default readout would
+    show an empty x; this one names the bar and gives its masses in kg.
+    """
+
+    def format_coord(x: float, y: float) -> str:
+        i = int(np.floor(x + 0.5))
+        cursor = f"cursor at {y:,.0f} kg"
+        if not 0 <= i < len(labels):
+            return cursor
+        if i == 0:
+            return f"start: {masses[0]:,.1f} kg; {cursor}"
+        return f"{labels[i]}: propellant {spent[i]:,.1f} kg, mass after {masses[i]:,.1f} kg; {cursor}"
+
+    return format_coord
+
+
 def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs: Any) -> WaterfallArtists:
     """Draw the mass after each line of a :class:`deltakit.Budget`.
 
@@ -88,6 +107,7 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
     if dry_mass is not None:
         dry = ax.axhline(float(dry_mass), color=COLOURS["burn"], linestyle="--", linewidth=1.2, label="dry mass")
     ax.legend(loc="upper right", fontsize="small", framealpha=0.9)
+    ax.format_coord = _mass_readout(labels, masses, spent)
     return WaterfallArtists(remaining, spent_bars, dry)
 
 
@@ -107,6 +127,7 @@ def update_budget_waterfall(ax: Axes, artists: WaterfallArtists | None, budget: 
             bar.set_height(s)
         ax.set_xticks(np.arange(len(labels)), labels)
         ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
+        ax.format_coord = _mass_readout(labels, masses, before - masses)
         dry_mass = getattr(budget, "dry_mass", None)
         if (artists.dry is None) == (dry_mass is None):
             if artists.dry is not None:
