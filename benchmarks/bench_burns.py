@@ -32,12 +32,12 @@ import numpy as np
 from _timing import median_time
 
 from deltakit import Conic, burn_prograde
+from deltakit.burns import _blockwise  # the same block loop, so the floor pays what deltakit pays
 from deltakit.constants import EARTH
 
 N = 1_000_000
 LOOP_N = 20_000
 REPEATS = 7
-BLOCK = 32768  # the block size of deltakit's kernels
 FUSED_TARGET = 1.5
 LOOP_TARGET = 100.0
 
@@ -114,28 +114,25 @@ def floor(rp, e, mu, argp, nu, dv):
     the square root of the new eccentricity and the ``arctan2`` of the new
     true anomaly. Here each runs once at the shape its inputs give it (in a
     burn-point x delta-v grid the first two depend on the burn point only),
-    in cache-sized blocks as deltakit does, and each of the five fresh outputs
+    in the cache-sized blocks of deltakit's own block loop, and each of the five fresh outputs
     is written by a single operation. The rest of the maths (about twenty-five
     multiplications, additions and divisions) is left out.
     """
-    arrays = [np.asarray(a, dtype=float) for a in (rp, e, argp, nu, dv)]
-    shape = np.broadcast_shapes(*(a.shape for a in arrays))
-    outputs = tuple(np.empty(shape) for _ in range(5))
-    arrays = [a.reshape((1,) * (len(shape) - a.ndim) + a.shape) for a in arrays]
-    rows = max(1, BLOCK * shape[0] // outputs[0].size)
-    with np.errstate(invalid="ignore"):
-        for start in range(0, shape[0], rows):
-            rp_b, e_b, argp_b, nu_b, dv_b = (x if x.shape[0] == 1 else x[start : start + rows] for x in arrays)
-            rp_o, e_o, argp_o, nu_o, energy_o = (o[start : start + rows] for o in outputs)
-            half_angle = np.tan(nu_b)  # at the shape of nu
-            speed = np.sqrt(e_b + half_angle)  # at the shape of (e, nu)
-            np.add(rp_b, speed, out=rp_o)
-            np.add(nu_b, dv_b, out=e_o)
-            np.sqrt(e_o, out=e_o)
-            np.arctan2(nu_b, dv_b, out=nu_o)
-            np.subtract(argp_b, dv_b, out=argp_o)
-            np.multiply(speed, dv_b, out=energy_o)
-    return outputs
+    arrays = (np.asarray(a, dtype=float) for a in (rp, e, mu, argp, nu, dv))
+    return _blockwise(_floor_kernel, *arrays)
+
+
+def _floor_kernel(rp, e, mu, argp, nu, dv, out):
+    """One block of :func:`floor`, run by deltakit's own block loop."""
+    rp_o, e_o, argp_o, nu_o, energy_o = out
+    half_angle = np.tan(nu)  # at the shape of nu
+    speed = np.sqrt(e + half_angle)  # at the shape of (e, nu)
+    np.add(rp, speed, out=rp_o)
+    np.add(nu, dv, out=e_o)
+    np.sqrt(e_o, out=e_o)
+    np.arctan2(nu, dv, out=nu_o)
+    np.subtract(argp, dv, out=argp_o)
+    np.multiply(speed, dv, out=energy_o)
 
 
 def plain_loop(rp, e, mu, argp, nu, dv):
