@@ -169,7 +169,14 @@ def workload_grid():
     e = (ra - rp) / (ra + rp)
     nu = np.linspace(-np.pi, np.pi, side)[:, np.newaxis]
     dv = np.linspace(-300.0, 1200.0, side)[np.newaxis, :]
-    return "one orbit, 1000 burn points x 1000 delta-v", (np.float64(rp), np.float64(e), EARTH.mu, 0.0, nu, dv)
+    return "one orbit, 1000 burn points x 1000 delta-v", (
+        np.float64(rp),
+        np.float64(e),
+        EARTH.mu,
+        0.0,
+        nu,
+        dv,
+    )
 
 
 def run(title: str, inputs) -> bool:
@@ -193,7 +200,9 @@ def run(title: str, inputs) -> bool:
         t_ours.append(median_time(with_deltakit, conic, nu, dv, repeats=1))
         t_fused.append(median_time(fused, rp, e, mu, argp, nu, dv, repeats=1))
         t_floor.append(median_time(floor, rp, e, mu, argp, nu, dv, repeats=1))
-        t_loop.append(median_time(plain_loop, flat[0], flat[1], mu, *flat[2:], repeats=1) * (N / len(flat[0])))
+        t_loop.append(
+            median_time(plain_loop, flat[0], flat[1], mu, *flat[2:], repeats=1) * (N / len(flat[0]))
+        )
     t_ours_med = statistics.median(t_ours)
     t_fused_med = statistics.median(t_fused)
     t_floor_med = statistics.median(t_floor)
@@ -208,11 +217,19 @@ def run(title: str, inputs) -> bool:
     print(f"  hand-fused NumPy         {t_fused_med * 1e3:9.1f} ms")
     print(f"  floor (see docstring)     {t_floor_med * 1e3:9.1f} ms")
     print(f"  plain-Python math loop   {t_loop * 1e3:9.1f} ms  (timed on {len(flat[0]):,}, scaled)")
-    print(f"  deltakit / fused  = {vs_fused:6.2f}x   target <= {FUSED_TARGET}x   {'OK' if fused_ok else 'FAIL'}")
-    print(f"  loop / deltakit   = {vs_loop:6.0f}x   target >= {LOOP_TARGET:.0f}x   {'OK' if loop_ok else 'FAIL'}")
+    print(
+        f"  deltakit / fused  = {vs_fused:6.2f}x   target <= {FUSED_TARGET}x   {'OK' if fused_ok else 'FAIL'}"
+    )
+    print(
+        f"  loop / deltakit   = {vs_loop:6.0f}x   target >= "
+        f"{LOOP_TARGET:.0f}x   {'OK' if loop_ok else 'FAIL'}"
+    )
     ceiling = t_loop / t_floor_med
     print(f"  loop / fused      = {t_loop / t_fused_med:6.0f}x   (the hand-fused expression, for comparison)")
-    print(f"  loop / floor      = {ceiling:6.0f}x   (the most any NumPy code returning these arrays can reach here)")
+    print(
+        f"  loop / floor      = {ceiling:6.0f}x   (the most any NumPy code "
+        "returning these arrays can reach here)"
+    )
     budget = t_loop / LOOP_TARGET - t_floor_med
     print(f"  at the loop target, the arithmetic beyond the floor may take {budget * 1e3:.1f} ms in all")
     if not loop_ok and ceiling < LOOP_TARGET:

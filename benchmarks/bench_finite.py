@@ -75,7 +75,8 @@ def scipy_loop(conic, thrust, ve, m0, dv, nu_center, subset):
         sol = solve_ivp(rates, (0.0, duration[i]), s0, method="DOP853", rtol=RTOL, atol=atol)
         s = sol.y[:, -1]
         out[j] = (0.5 * (s[2] ** 2 + s[3] ** 2) - mu / np.hypot(s[0], s[1])) - (
-            0.5 * (s0[2] ** 2 + s0[3] ** 2) - mu / np.hypot(s0[0], s0[1]))
+            0.5 * (s0[2] ** 2 + s0[3] ** 2) - mu / np.hypot(s0[0], s0[1])
+        )
     return out, time.perf_counter() - start
 
 
@@ -100,11 +101,17 @@ def main(argv: list[str]) -> int:
     ratio = loop_scaled / vectorised
     print(f"finite burns, {N} cases (prograde, thrust-to-weight 0.01-1, dv 0.1-2 km/s)")
     print(f"  {'deltakit thrust_arc, one call':44s} {vectorised:9.3f} s   (median of {repeats})")
-    note = "all cases" if subset_size == N else (
-        f"timed on {subset_size} cases: {loop_time:.2f} s, scaled x{N / subset_size:.1f}")
+    note = (
+        "all cases"
+        if subset_size == N
+        else (f"timed on {subset_size} cases: {loop_time:.2f} s, scaled x{N / subset_size:.1f}")
+    )
     print(f"  {'scipy solve_ivp DOP853 loop':44s} {loop_scaled:9.3f} s   ({note})")
     print(f"  speed-up {ratio:8.1f}x   (target >= {TARGET:.0f}x)")
-    print(f"  largest relative difference in energy change over the compared cases: {error:.1e} (must be < 1e-6)")
+    print(
+        "  largest relative difference in energy change over the compared "
+        f"cases: {error:.1e} (must be < 1e-6)"
+    )
     ok = ratio >= TARGET and error < 1e-6
     print("  target met" if ok else "  TARGET MISSED")
     return 0 if ok else 1

@@ -88,7 +88,9 @@ def floor_rate(axes: dict[str, np.ndarray], rp_rows: int, budget: float) -> tupl
     return cases / wall, cases / cpu, first
 
 
-def sweep_rate(axes: dict[str, np.ndarray], chunks: dict[str, int], cores: int) -> tuple[float, float, object]:
+def sweep_rate(
+    axes: dict[str, np.ndarray], chunks: dict[str, int], cores: int
+) -> tuple[float, float, object]:
     """Cases per wall second and per CPU second of the whole sweep, reduced over nu."""
     cases = int(np.prod([a.size for a in axes.values()]))
     with dask.config.set(scheduler="threads", num_workers=cores):
@@ -139,11 +141,15 @@ def main() -> int:
     wall_ratio = floor_wall / per_core
     ratio = floor_cpu / rate_cpu
     rss = peak_rss()
-    blocks = int(np.prod([np.ceil(axes[k].size / (axes[k].size if c == -1 else c)) for k, c in chunks.items()]))
+    blocks = int(
+        np.prod([np.ceil(axes[k].size / (axes[k].size if c == -1 else c)) for k, c in chunks.items()])
+    )
     print(f"cases                      {cases:.3e}  ({' x '.join(f'{k} {v.size}' for k, v in axes.items())})")
     print(f"blocks                     {blocks} of <= {N_NU * axes['ra'].size * rp_rows:.2e} cases")
-    print(f"sweep wall time            {cases / rate_wall:.1f} s on {args.cores} threads"
-          f" (CPU it got: {cores_used:.2f} cores)")
+    print(
+        f"sweep wall time            {cases / rate_wall:.1f} s on {args.cores} threads"
+        f" (CPU it got: {cores_used:.2f} cores)"
+    )
     print(f"sweep                      {rate_wall:.3e} cases/s = {per_core:.3e} per core (wall)")
     print(f"floor (NumPy slice, 1 th)  {floor_wall:.3e} cases/s (wall)")
     print(f"sweep per CPU-second       {rate_cpu:.3e} cases")

@@ -82,8 +82,10 @@ def main(argv: list[str]) -> int:
     assert derive("bielliptic") is first
     ratio = t_first / t_second
     ok &= ratio >= CACHE_TARGET
-    print(f"cached derive: first {t_first * 1e3:.1f} ms, then {t_second * 1e6:.2f} us; "
-          f"ratio {ratio:,.0f}x, target >= {CACHE_TARGET:,.0f}x  {'OK' if ratio >= CACHE_TARGET else 'FAIL'}")
+    print(
+        f"cached derive: first {t_first * 1e3:.1f} ms, then {t_second * 1e6:.2f} us; "
+        f"ratio {ratio:,.0f}x, target >= {CACHE_TARGET:,.0f}x  {'OK' if ratio >= CACHE_TARGET else 'FAIL'}"
+    )
 
     n = 100_000 if quick else 1_000_000
     rng = np.random.default_rng(3)  # invented spread of Earth transfers (demo data)
@@ -103,8 +105,10 @@ def main(argv: list[str]) -> int:
     print(f"  derive('hohmann').function()  {t_f * 1e3:8.1f} ms")
     print(f"  hand-fused NumPy              {t_fused * 1e3:8.1f} ms")
     print(f"  deltakit.hohmann (twin)       {t_twin * 1e3:8.1f} ms")
-    print(f"  function / fused = {vs_fused:.2f}x   target <= {FUSED_TARGET}x   "
-          f"{'OK' if vs_fused <= FUSED_TARGET else 'FAIL'}")
+    print(
+        f"  function / fused = {vs_fused:.2f}x   target <= {FUSED_TARGET}x   "
+        f"{'OK' if vs_fused <= FUSED_TARGET else 'FAIL'}"
+    )
     return 0 if ok else 1
 
 

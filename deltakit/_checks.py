@@ -7,7 +7,8 @@ passes over the data and never a Python loop over elements.
 
 from __future__ import annotations
 
-from typing import Any, Callable
+from collections.abc import Callable
+from typing import Any
 
 import numpy as np
 

@@ -178,7 +178,9 @@ def _rtn_kernel(rp, e, mu, argp, nu, radial, transverse, out):
     vr = e * sin_nu / root_p_mu
     vt = q / root_p_mu
     x = transverse / vt  # relative change of transverse speed
-    np.add(vr * radial + vt * transverse, 0.5 * (radial * radial + transverse * transverse), out=energy_change)
+    np.add(
+        vr * radial + vt * transverse, 0.5 * (radial * radial + transverse * transverse), out=energy_change
+    )
     scale_t = 1.0 + x
     bad = _infeasible(q, transverse, vt, x)
     if bad is not None:

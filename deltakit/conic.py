@@ -74,7 +74,9 @@ class Conic(Result):
         argp = finite(self.argp, "argp", "rad")
         self._store(rp, e, mu, argp)
 
-    def _store(self, rp: np.ndarray, e: np.ndarray, mu: np.ndarray, argp: np.ndarray, copy: bool = True) -> None:
+    def _store(
+        self, rp: np.ndarray, e: np.ndarray, mu: np.ndarray, argp: np.ndarray, copy: bool = True
+    ) -> None:
         shape = np.broadcast_shapes(rp.shape, e.shape, mu.shape, argp.shape)
         for name, value in zip(("rp", "e", "mu", "argp"), (rp, e, mu, argp)):
             if shape:
@@ -86,7 +88,7 @@ class Conic(Result):
             object.__setattr__(self, name, scalar_or_array(value))
 
     @classmethod
-    def _trusted(cls, rp: Any, e: Any, mu: Any, argp: Any = 0.0, *, copy: bool = True) -> "Conic":
+    def _trusted(cls, rp: Any, e: Any, mu: Any, argp: Any = 0.0, *, copy: bool = True) -> Conic:
         """Build without checks from arrays the numeric layer computed itself.
 
         Elements may be NaN (an infeasible outcome); nothing is validated.
@@ -102,7 +104,7 @@ class Conic(Result):
 
     # ------------------------------------------------------------------ constructors
     @classmethod
-    def from_apsides(cls, rp: ArrayLike, ra: ArrayLike, mu: ArrayLike, argp: ArrayLike = 0.0) -> "Conic":
+    def from_apsides(cls, rp: ArrayLike, ra: ArrayLike, mu: ArrayLike, argp: ArrayLike = 0.0) -> Conic:
         """The ellipse (or circle) with periapsis ``rp`` and apoapsis ``ra``, both m.
 
         Raises :class:`~deltakit.DomainError` when ``ra < rp``.
@@ -119,7 +121,7 @@ class Conic(Result):
         return cls(rp, (ra - rp) / (ra + rp), mu, argp)
 
     @classmethod
-    def circular(cls, r: ArrayLike, mu: ArrayLike) -> "Conic":
+    def circular(cls, r: ArrayLike, mu: ArrayLike) -> Conic:
         """The circular orbit of radius ``r``, m.
 
         Examples
@@ -131,7 +133,7 @@ class Conic(Result):
         return cls(positive(r, "r", "m"), 0.0, mu)
 
     @classmethod
-    def from_vinf(cls, rp: ArrayLike, vinf: ArrayLike, mu: ArrayLike, argp: ArrayLike = 0.0) -> "Conic":
+    def from_vinf(cls, rp: ArrayLike, vinf: ArrayLike, mu: ArrayLike, argp: ArrayLike = 0.0) -> Conic:
         """The hyperbola with periapsis ``rp`` (m) and excess speed ``vinf`` (m/s).
 
         ``vinf = 0`` gives the parabola.
@@ -149,7 +151,7 @@ class Conic(Result):
         return cls(rp, 1.0 + rp * vinf * vinf / mu, mu, argp)
 
     @classmethod
-    def from_state(cls, r_vec: ArrayLike, v_vec: ArrayLike, mu: ArrayLike) -> "Conic":
+    def from_state(cls, r_vec: ArrayLike, v_vec: ArrayLike, mu: ArrayLike) -> Conic:
         """The conic through position ``r_vec`` (m) with velocity ``v_vec`` (m/s).
 
         Both are 2-vectors in the orbit plane, components on the last axis,
@@ -179,7 +181,7 @@ class Conic(Result):
         """Broadcast shape of the elements (``()`` for one orbit)."""
         return np.shape(self.rp)
 
-    def __getitem__(self, index: Any) -> "Conic":
+    def __getitem__(self, index: Any) -> Conic:
         """The orbits at ``index`` of the element arrays."""
         return Conic._trusted(*(np.asarray(getattr(self, n))[index] for n in ("rp", "e", "mu", "argp")))
 
@@ -215,13 +217,17 @@ class Conic(Result):
         """Orbital period, s (``inf`` for ``e >= 1``, NaN where ``e`` is NaN)."""
         with np.errstate(divide="ignore", invalid="ignore"):
             a = np.divide(self.rp, 1.0 - self.e)
-            return scalar_or_array(np.where(self.e >= 1.0, np.inf, _TWO_PI * np.sqrt(np.abs(a) ** 3 / self.mu)))
+            return scalar_or_array(
+                np.where(self.e >= 1.0, np.inf, _TWO_PI * np.sqrt(np.abs(a) ** 3 / self.mu))
+            )
 
     @property
     def vinf(self) -> Any:
         """Hyperbolic excess speed, m/s (0 for a parabola, NaN for ``e < 1``)."""
         with np.errstate(invalid="ignore"):
-            return scalar_or_array(np.where(self.e >= 1.0, np.sqrt(np.abs(self.mu * (self.e - 1.0) / self.rp)), np.nan))
+            return scalar_or_array(
+                np.where(self.e >= 1.0, np.sqrt(np.abs(self.mu * (self.e - 1.0) / self.rp)), np.nan)
+            )
 
     @property
     def true_anomaly_limit(self) -> Any:
@@ -319,7 +325,9 @@ class Conic(Result):
         angle = nu + self.argp
         c, s = np.cos(angle), np.sin(angle)
         r_vec = np.stack(np.broadcast_arrays(r * c, r * s), axis=-1)
-        v_vec = np.stack(np.broadcast_arrays(radial * c - transverse * s, radial * s + transverse * c), axis=-1)
+        v_vec = np.stack(
+            np.broadcast_arrays(radial * c - transverse * s, radial * s + transverse * c), axis=-1
+        )
         return r_vec, v_vec
 
     def true_anomaly_at(self, r_vec: ArrayLike) -> Any:
@@ -337,7 +345,9 @@ class Conic(Result):
         return scalar_or_array(np.pi - np.mod(np.pi - angle, _TWO_PI))
 
 
-def elements_from_state(x: np.ndarray, y: np.ndarray, vx: np.ndarray, vy: np.ndarray, mu: np.ndarray) -> tuple:
+def elements_from_state(
+    x: np.ndarray, y: np.ndarray, vx: np.ndarray, vy: np.ndarray, mu: np.ndarray
+) -> tuple:
     """Periapsis radius, eccentricity and argp of the conic through a planar state.
 
     Unchecked arrays in, arrays out: the shared kernel of

@@ -76,13 +76,17 @@ _DE440 = "GM: JPL ephemeris DE440 (Park et al. 2021, Table 8)"
 _IAU = "radius: IAU WGCCRE 2015 (Archinal et al. 2018)"
 
 SUN = CentralBody(
-    "Sun", 1.32712440041279e20, 6.957e8,
+    "Sun",
+    1.32712440041279e20,
+    6.957e8,
     "GM: JPL ephemeris DE440 (Park et al. 2021, Table 8); radius: IAU 2015 Resolution B3 nominal",
 )
 MERCURY = CentralBody("Mercury", 2.2031868551e13, 2.44053e6, f"{_DE440}; {_IAU}")
 VENUS = CentralBody("Venus", 3.24858592e14, 6.0518e6, f"{_DE440}; {_IAU}")
 EARTH = CentralBody(
-    "Earth", 3.986004418e14, 6.378137e6,
+    "Earth",
+    3.986004418e14,
+    6.378137e6,
     "GM: IERS Conventions (2010), Table 1.1; radius: WGS 84 / IERS (2010) equatorial",
 )
 MOON = CentralBody("Moon", 4.902800118e12, 1.7374e6, f"{_DE440}; radius: IAU WGCCRE 2015 mean radius")
@@ -94,6 +98,5 @@ NEPTUNE = CentralBody("Neptune", 6.83652710058e15, 2.4764e7, f"{_DE440} (system)
 
 #: The bodies by name, in order of distance from the Sun (the Moon after Earth).
 BODIES: dict[str, CentralBody] = {
-    body.name: body
-    for body in (SUN, MERCURY, VENUS, EARTH, MOON, MARS, JUPITER, SATURN, URANUS, NEPTUNE)
+    body.name: body for body in (SUN, MERCURY, VENUS, EARTH, MOON, MARS, JUPITER, SATURN, URANUS, NEPTUNE)
 }

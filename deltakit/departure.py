@@ -119,7 +119,9 @@ def capture_burn(rp: ArrayLike, vinf: ArrayLike, mu: ArrayLike, ra: ArrayLike | 
     >>> from deltakit import capture_burn
     >>> from deltakit.constants import MARS
     >>> rp = MARS.radius + 400e3
-    >>> round(float(capture_burn(rp, 2600.0, MARS.mu))), round(float(capture_burn(rp, 2600.0, MARS.mu, ra=33000e3)))
+    >>> into_circle = capture_burn(rp, 2600.0, MARS.mu)
+    >>> into_ellipse = capture_burn(rp, 2600.0, MARS.mu, ra=33000e3)
+    >>> round(float(into_circle)), round(float(into_ellipse))
     (2056, 917)
     """
     return _periapsis_burn(rp, vinf, mu, ra)

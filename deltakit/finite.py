@@ -239,7 +239,12 @@ def thrust_arc(
 
     arrays = np.broadcast_arrays(
         *(np.asarray(getattr(conic, n), float) for n in ("rp", "e", "mu", "argp")),
-        thrust, ve, m0, dv, nu_center, splits,
+        thrust,
+        ve,
+        m0,
+        dv,
+        nu_center,
+        splits,
     )
     shape = arrays[0].shape
     rp, e, mu, argp, thrust, ve, m0, dv, nu_center, splits = (a.ravel() for a in arrays)
@@ -265,8 +270,18 @@ def thrust_arc(
         if todo.size == 0:
             break
         c_rp, c_e, c_argp = (q[todo] for q in coast)
-        start, final = _burn(c_rp, c_e, mu[todo], c_argp, centre[todo], thrust[todo], ve[todo],
-                             m0[todo] - k * each[todo], each[todo], steering == "prograde")
+        start, final = _burn(
+            c_rp,
+            c_e,
+            mu[todo],
+            c_argp,
+            centre[todo],
+            thrust[todo],
+            ve[todo],
+            m0[todo] - k * each[todo],
+            each[todo],
+            steering == "prograde",
+        )
         if k == 0:
             # energies from states on both ends, so a zero burn changes nothing at all
             energy_start = _energy(*start, mu)
@@ -316,7 +331,7 @@ def loss_table(
     splits: Sequence[int] = (1, 2, 3, 4),
     nu_center: float = 0.0,
     steering: str = "prograde",
-) -> "pd.DataFrame":
+) -> pd.DataFrame:
     """Finite-burn loss for one mission against thrust-to-weight ratio and number of burns.
 
     Thrust-to-weight is ``thrust / (m0 G0)`` with standard gravity

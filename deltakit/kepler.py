@@ -379,8 +379,10 @@ def true_anomaly_from_mean(conic: Conic, M: ArrayLike) -> Any:
     ee = np.where(elliptic, e, 0.0)
     E = np.asarray(mean_to_eccentric(np.where(elliptic, M, 0.0), ee))
     turns, reduced = _reduce(E)
-    nu_ellipse = 2.0 * np.arctan2(np.sqrt(1.0 + ee) * np.sin(0.5 * reduced),
-                                  np.sqrt(1.0 - ee) * np.cos(0.5 * reduced)) + _TWO_PI * turns
+    nu_ellipse = (
+        2.0 * np.arctan2(np.sqrt(1.0 + ee) * np.sin(0.5 * reduced), np.sqrt(1.0 - ee) * np.cos(0.5 * reduced))
+        + _TWO_PI * turns
+    )
     # hyperbola
     eh = np.where(hyperbolic, e, 2.0)
     H = np.asarray(mean_to_hyperbolic(np.where(hyperbolic, M, 0.0), eh))

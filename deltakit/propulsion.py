@@ -153,9 +153,7 @@ def propellant_mass(
     return scalar_or_array(mf * np.expm1(dv / ve))
 
 
-def ejection_energy(
-    m_vehicle: ArrayLike, m_ejected: ArrayLike, u: ArrayLike, v0: ArrayLike
-) -> EnergySplit:
+def ejection_energy(m_vehicle: ArrayLike, m_ejected: ArrayLike, u: ArrayLike, v0: ArrayLike) -> EnergySplit:
     """Energy books of one discrete ejection of mass.
 
     Reading of the set-up: before the ejection the whole vehicle, of mass
@@ -203,8 +201,11 @@ def ejection_energy(
     m_vehicle = positive(m_vehicle, "m_vehicle", "kg")
     m_ejected = nonnegative(m_ejected, "m_ejected", "kg")
     require(
-        m_ejected, m_ejected >= m_vehicle, "m_ejected",
-        "< m_vehicle (some mass must remain after the ejection)", "kg",
+        m_ejected,
+        m_ejected >= m_vehicle,
+        "m_ejected",
+        "< m_vehicle (some mass must remain after the ejection)",
+        "kg",
     )
     u = nonnegative(u, "u", "m/s")
     v0 = finite(v0, "v0", "m/s")

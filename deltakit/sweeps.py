@@ -64,17 +64,50 @@ _BLOCK_CASES: int = 1 << 20
 
 #: Units of the parameter and plain-result names of the numeric layer (DESIGN.md vocabulary).
 KNOWN_UNITS: dict[str, str] = {
-    "nu": "rad", "nu_center": "rad", "angle": "rad", "argp": "rad",
-    "dv": "m/s", "v": "m/s", "v0": "m/s", "v1": "m/s", "v2": "m/s", "ve": "m/s",
-    "u": "m/s", "vinf": "m/s", "vinf_in": "m/s", "radial": "m/s", "transverse": "m/s",
-    "r": "m", "rp": "m", "ra": "m", "r1": "m", "r2": "m", "rb": "m", "a": "m",
-    "e": "1", "mu": "m^3/s^2", "isp": "s",
-    "m0": "kg", "mf": "kg", "m_vehicle": "kg", "m_ejected": "kg",
-    "thrust": "N", "splits": "1", "margin": "1",
+    "nu": "rad",
+    "nu_center": "rad",
+    "angle": "rad",
+    "argp": "rad",
+    "dv": "m/s",
+    "v": "m/s",
+    "v0": "m/s",
+    "v1": "m/s",
+    "v2": "m/s",
+    "ve": "m/s",
+    "u": "m/s",
+    "vinf": "m/s",
+    "vinf_in": "m/s",
+    "radial": "m/s",
+    "transverse": "m/s",
+    "r": "m",
+    "rp": "m",
+    "ra": "m",
+    "r1": "m",
+    "r2": "m",
+    "rb": "m",
+    "a": "m",
+    "e": "1",
+    "mu": "m^3/s^2",
+    "isp": "s",
+    "m0": "kg",
+    "mf": "kg",
+    "m_vehicle": "kg",
+    "m_ejected": "kg",
+    "thrust": "N",
+    "splits": "1",
+    "margin": "1",
     # plain-array results, named after their function
-    "circular_speed": "m/s", "escape_speed": "m/s", "vis_viva": "m/s", "specific_energy": "J/kg",
-    "energy_gain": "J/kg", "exhaust_velocity": "m/s", "rocket_dv": "m/s", "propellant_mass": "kg",
-    "plane_change": "m/s", "combined_plane_change": "m/s", "propulsive_efficiency": "1",
+    "circular_speed": "m/s",
+    "escape_speed": "m/s",
+    "vis_viva": "m/s",
+    "specific_energy": "J/kg",
+    "energy_gain": "J/kg",
+    "exhaust_velocity": "m/s",
+    "rocket_dv": "m/s",
+    "propellant_mass": "kg",
+    "plane_change": "m/s",
+    "combined_plane_change": "m/s",
+    "propulsive_efficiency": "1",
 }
 
 #: Attribute that marks a dataset (and a file) as a deltakit sweep, and its format version.
@@ -171,13 +204,17 @@ def _check_parameters(function: Callable[..., Any], names: list[str]) -> None:
 def _axis(value: Any, name: str) -> np.ndarray:
     array = np.asarray(value)
     if array.ndim != 1:
-        raise DomainError(f"sweep axis `{name}` must be 1-D (or a scalar for a fixed value), got shape {array.shape}")
+        raise DomainError(
+            f"sweep axis `{name}` must be 1-D (or a scalar for a fixed value), got shape {array.shape}"
+        )
     if array.size == 0:
         raise DomainError(f"sweep axis `{name}` must have at least one value, got none")
     return array
 
 
-def _open_grid(axes: dict[str, np.ndarray], blocks: dict[str, np.ndarray] | None = None) -> dict[str, np.ndarray]:
+def _open_grid(
+    axes: dict[str, np.ndarray], blocks: dict[str, np.ndarray] | None = None
+) -> dict[str, np.ndarray]:
     """Each axis (or its block) reshaped to length n on its own dimension, 1 elsewhere."""
     blocks = axes if blocks is None else blocks
     ndim = len(axes)
@@ -189,9 +226,7 @@ def _open_grid(axes: dict[str, np.ndarray], blocks: dict[str, np.ndarray] | None
     return grid
 
 
-def _block_layout(
-    axes: dict[str, np.ndarray], chunks: Any
-) -> dict[str, int]:
+def _block_layout(axes: dict[str, np.ndarray], chunks: Any) -> dict[str, int]:
     """Chunk length per axis from ``chunks``: dict, int (cases per block) or "auto"."""
     sizes = {name: axis.size for name, axis in axes.items()}
     if isinstance(chunks, Mapping):
@@ -244,7 +279,9 @@ def _pick(fields: dict[str, np.ndarray], key: str) -> np.ndarray:
     return np.ascontiguousarray(fields[key])
 
 
-def _evaluate_and_pick(evaluate: Callable[..., dict[str, np.ndarray]], key: str, *blocks: np.ndarray) -> np.ndarray:
+def _evaluate_and_pick(
+    evaluate: Callable[..., dict[str, np.ndarray]], key: str, *blocks: np.ndarray
+) -> np.ndarray:
     return _pick(evaluate(*blocks), key)
 
 
@@ -282,7 +319,9 @@ def _lazy_fields(
         tasks[(raw_name, *index)] = (evaluate, *slices)
     if len(fields) == 1:  # one field: the block task returns its array, nothing to pick
         ((key, (dtype, _)),) = fields.items()
-        single = {k: (functools.partial(_evaluate_and_pick, evaluate, key), *task[1:]) for k, task in tasks.items()}
+        single = {
+            k: (functools.partial(_evaluate_and_pick, evaluate, key), *task[1:]) for k, task in tasks.items()
+        }
         graph = HighLevelGraph({raw_name: single}, {raw_name: set()})
         return {key: da.Array(graph, raw_name, chunks, meta=np.empty((0,) * len(names), dtype=dtype))}
     data = {}
@@ -496,7 +535,9 @@ def save_sweep(dataset: xarray.Dataset, path: str | os.PathLike[str]) -> Path:
     """
     xr, _ = _import_scale()
     if not isinstance(dataset, xr.Dataset) or _TAG not in dataset.attrs:
-        raise DomainError("save_sweep: `dataset` must be a deltakit sweep (an xarray.Dataset made by deltakit.sweep)")
+        raise DomainError(
+            "save_sweep: `dataset` must be a deltakit sweep (an xarray.Dataset made by deltakit.sweep)"
+        )
     path = Path(path)
     if (path.exists() or path.is_symlink()) and _read_tag(path, xr) is None:
         raise DomainError(f"save_sweep: refusing to overwrite {path}: it is not a deltakit sweep")
@@ -550,7 +591,9 @@ def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Da
     try:
         dataset = xr.open_zarr(path, consolidated=False, chunks=chunks)
     except Exception as err:
-        raise DomainError(f"open_sweep: {path} is not a readable Zarr store ({type(err).__name__}: {err})") from err
+        raise DomainError(
+            f"open_sweep: {path} is not a readable Zarr store ({type(err).__name__}: {err})"
+        ) from err
     version = dataset.attrs.get(_TAG)
     if version is None:
         dataset.close()
@@ -558,7 +601,8 @@ def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Da
     if not isinstance(version, (int, np.integer)) or not 1 <= version <= _FORMAT_VERSION:
         dataset.close()
         raise DomainError(
-            f"open_sweep: {path} has sweep format version {version!r}; this deltakit reads 1 to {_FORMAT_VERSION}"
+            f"open_sweep: {path} has sweep format version {version!r}; this "
+            f"deltakit reads 1 to {_FORMAT_VERSION}"
         )
     try:
         missing = _missing_chunks(path)

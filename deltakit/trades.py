@@ -133,7 +133,14 @@ def best_burn_point(
     # nu last: the automatic block layout keeps trailing axes whole, so each
     # block holds whole nu rows and the reductions over nu stay inside blocks.
     grid = sweep(
-        prograde_energy_change, dv=dv, rp=rp, ra=ra, nu=nu, mu=mu, chunks=chunks, name="energy_change",
+        prograde_energy_change,
+        dv=dv,
+        rp=rp,
+        ra=ra,
+        nu=nu,
+        mu=mu,
+        chunks=chunks,
+        name="energy_change",
         units={"energy_change": "J/kg"},
     )
     energy = grid["energy_change"]
@@ -230,7 +237,11 @@ def bielliptic_break_even(r2_ratio: ArrayLike, rb_ratio: ArrayLike, *, chunks: A
     if r2_ratio.ndim == 1 and r2_ratio.size > 1:
         require(r2_ratio[1:], np.diff(r2_ratio) <= 0.0, "r2_ratio", "increasing")
     grid = sweep(
-        _advantage, r2_ratio=r2_ratio, rb_ratio=rb_ratio, chunks=chunks, name="advantage",
+        _advantage,
+        r2_ratio=r2_ratio,
+        rb_ratio=rb_ratio,
+        chunks=chunks,
+        name="advantage",
         units={"advantage": "1", "r2_ratio": "1", "rb_ratio": "1"},
     )
     advantage = grid["advantage"].assign_attrs(
@@ -241,8 +252,12 @@ def bielliptic_break_even(r2_ratio: ArrayLike, rb_ratio: ArrayLike, *, chunks: A
     wins = (advantage > _TIE).assign_attrs(long_name="bi-elliptic cheaper than Hohmann")
     rows = advantage.chunk({"rb_ratio": -1}) if advantage.chunks else advantage  # whole rb rows per block
     rb_break_even = xr.apply_ufunc(
-        _break_even_rb, rows, grid["rb_ratio"],
-        input_core_dims=[["rb_ratio"], ["rb_ratio"]], dask="parallelized", output_dtypes=[float],
+        _break_even_rb,
+        rows,
+        grid["rb_ratio"],
+        input_core_dims=[["rb_ratio"], ["rb_ratio"]],
+        dask="parallelized",
+        output_dtypes=[float],
     ).assign_attrs(units="1", long_name="rb/r1 from which every bi-elliptic on the grid beats Hohmann")
     beyond_r2 = grid["rb_ratio"] > grid["r2_ratio"] * (1.0 + 1e-9)
     all_win = (wins | ~beyond_r2 | advantage.isnull()).all("rb_ratio") & beyond_r2.any("rb_ratio")
@@ -306,7 +321,11 @@ def propellant_grid(dv: ArrayLike, m0: ArrayLike, ve: ArrayLike, *, chunks: Any 
     [[314.8, 299.4], [393.5, 374.2]]
     """
     grid = sweep(
-        _propellant_books, dv=dv, m0=m0, ve=ve, chunks=chunks,
+        _propellant_books,
+        dv=dv,
+        m0=m0,
+        ve=ve,
+        chunks=chunks,
         units={"propellant": "kg", "final_mass": "kg", "propellant_fraction": "1"},
     )
     grid.attrs["trade"] = "propellant_grid"

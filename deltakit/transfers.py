@@ -191,7 +191,13 @@ def bielliptic(r1: ArrayLike, r2: ArrayLike, rb: ArrayLike, mu: ArrayLike) -> Tr
 
 def _check_angle(angle: ArrayLike, name: str) -> np.ndarray:
     angle = finite(angle, name, "rad")
-    require(angle, (angle < 0.0) | (angle > np.pi), name, "between 0 and pi (radians; use np.radians for degrees)", "rad")
+    require(
+        angle,
+        (angle < 0.0) | (angle > np.pi),
+        name,
+        "between 0 and pi (radians; use np.radians for degrees)",
+        "rad",
+    )
     return angle
 
 
@@ -270,7 +276,9 @@ def _hohmann_speeds(r1: np.ndarray, r2: np.ndarray, mu: np.ndarray) -> tuple[np.
 
 def _split_total(speeds: tuple[np.ndarray, ...], angle: np.ndarray, fraction: np.ndarray) -> np.ndarray:
     v_circ1, v_depart, v_arrive, v_circ2 = speeds
-    return _combined(v_circ1, v_depart, fraction * angle) + _combined(v_arrive, v_circ2, (1.0 - fraction) * angle)
+    return _combined(v_circ1, v_depart, fraction * angle) + _combined(
+        v_arrive, v_circ2, (1.0 - fraction) * angle
+    )
 
 
 def hohmann_plane_change(

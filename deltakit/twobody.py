@@ -101,4 +101,3 @@ def specific_energy(r: ArrayLike, v: ArrayLike, mu: ArrayLike) -> np.floating | 
     v = nonnegative(v, "v", "m/s")
     mu = positive(mu, "mu", "m^3/s^2")
     return scalar_or_array(0.5 * v * v - mu / r)
-

@@ -150,7 +150,8 @@ the tank holds and explain to the project why burning fast, deep in Earth's well
 The answer lies in an energy ledger: the propellant releases the same kinetic energy
 $\\tfrac12 (m_0 - m_f)\\,v_e^2$ whatever the vehicle's speed, but the **split** of that energy between
 vehicle and exhaust depends on the speed. At high speed the exhaust is left nearly at rest and the
-vehicle takes more than the propellant's chemical energy."""),
+vehicle takes more than the propellant's chemical energy.""",
+    ),
     code("""
 tug = demo.HALYARD.vehicle
 ve = dk.exhaust_velocity(tug.isp)
@@ -225,7 +226,8 @@ NB03 = [
         """\
 **Mission (invented):** a *Halyard* variant must move a pallet from a 400 km parking orbit inclined
 28.5° to a circular equatorial orbit of radius 120,000 km. The analyst compares a Hohmann transfer
-with a bi-elliptic one (out to 240,000 km), and splits the 28.5° plane change between the two burns."""),
+with a bi-elliptic one (out to 240,000 km), and splits the 28.5° plane change between the two burns.""",
+    ),
     code("""
 from deltakit.constants import EARTH
 from deltakit.transfers import best_plane_change_split, hohmann_plane_change
@@ -314,7 +316,8 @@ NB04 = [
 **Mission (invented):** the *Cinderwren* probe passes Jupiter with a hyperbolic excess speed of
 5.6 km/s and carries enough propellant for a few hundred m/s. Two questions: (1) for a departure from
 a parking orbit, how much is saved by burning at periapsis rather than escaping first and burning far
-away? (2) in the flyby, how much faster does the probe leave if it fires 300 m/s at a close periapsis?"""),
+away? (2) in the flyby, how much faster does the probe leave if it fires 300 m/s at a close periapsis?""",
+    ),
     code("""
 mission = demo.CINDERWREN
 jupiter = mission.body
@@ -383,7 +386,8 @@ NB05 = [
 **Mission (invented):** the *Halyard* tug's 4.4 kN engine (thrust-to-weight about 0.08 when full)
 must give 3.08 km/s for the trans-lunar injection from a 400 km circular orbit. A long burn spreads
 over a large arc of the orbit, away from the fast point where the energy is cheapest. How much is lost,
-and does splitting the injection into several periapsis burns help?"""),
+and does splitting the injection into several periapsis burns help?""",
+    ),
     code("""
 mission = demo.HALYARD
 tug = mission.vehicle
@@ -442,7 +446,8 @@ NB06 = [
 **Mission (invented):** the *Halyard* tug takes a cargo pallet from a 400 km circular Earth orbit to a
 100 km circular lunar orbit. The analyst builds the delta-v budget line by line from the manoeuvre
 formulas, checks it against the tank, and writes a report in Markdown and LaTeX that carries the
-derivations of every formula it used."""),
+derivations of every formula it used.""",
+    ),
     code("""
 from deltakit.constants import EARTH, MOON
 
@@ -584,7 +589,11 @@ def build(folder: Path = HERE) -> list[Path]:
     written = []
     for name, cells in NOTEBOOKS.items():
         nb = new_notebook(cells=cells)
-        nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3 (ipykernel)", "language": "python"}
+        nb.metadata["kernelspec"] = {
+            "name": "python3",
+            "display_name": "Python 3 (ipykernel)",
+            "language": "python",
+        }
         nb.metadata["language_info"] = {"name": "python"}
         for i, cell in enumerate(nb.cells):
             cell["id"] = f"{name[:2]}-{i:02d}"  # stable ids: no churn in the diff

@@ -67,8 +67,13 @@ def get(url: str, timeout: float = 2.0) -> bytes:
 def jupyterlab(root: Path, home: Path) -> Iterator[dict[str, Any]]:
     """Run JupyterLab serving ``root``, with its settings under ``home``; yield base, token, root, home."""
     env = dict(os.environ)
-    for var, sub in [("JUPYTER_CONFIG_DIR", "config"), ("JUPYTER_DATA_DIR", "data"),
-                     ("IPYTHONDIR", "ipython"), ("MPLCONFIGDIR", "mpl"), ("JUPYTER_RUNTIME_DIR", "runtime")]:
+    for var, sub in [
+        ("JUPYTER_CONFIG_DIR", "config"),
+        ("JUPYTER_DATA_DIR", "data"),
+        ("IPYTHONDIR", "ipython"),
+        ("MPLCONFIGDIR", "mpl"),
+        ("JUPYTER_RUNTIME_DIR", "runtime"),
+    ]:
         (home / sub).mkdir(exist_ok=True)
         env[var] = str(home / sub)
     env.pop("MPLBACKEND", None)  # let the kernel use ipympl as the notebook asks
@@ -96,9 +101,10 @@ def jupyterlab(root: Path, home: Path) -> Iterator[dict[str, Any]]:
             try:
                 get(f"{base}/api/status?token={token}")
                 break
-            except OSError:
+            except OSError as err:
                 if process.poll() is not None or time.monotonic() > deadline:
-                    raise RuntimeError(f"JupyterLab did not start:\n{(home / 'lab.log').read_text()[-3000:]}")
+                    log = (home / "lab.log").read_text()[-3000:]
+                    raise RuntimeError(f"JupyterLab did not start:\n{log}") from err
                 time.sleep(0.3)
         yield {"base": base, "token": token, "root": root, "home": home}
     finally:

@@ -17,7 +17,9 @@ settings.register_profile("ci", parent=settings.get_profile("default"), derandom
 settings.load_profile("ci" if os.environ.get("CI") else "default")
 
 #: Screenshots, rendered LaTeX and saved figures land here for a person to look at.
-ARTIFACTS = Path(os.environ.get("DELTAKIT_ARTIFACTS", Path(__file__).resolve().parent.parent / "test-artifacts"))
+ARTIFACTS = Path(
+    os.environ.get("DELTAKIT_ARTIFACTS", Path(__file__).resolve().parent.parent / "test-artifacts")
+)
 
 
 @pytest.fixture(scope="session")

@@ -33,7 +33,14 @@ pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
 
 #: The panels the notebook shows, in order (DESIGN.md, "Widgets and plots").
-PANELS = ["BurnPointExplorer", "PropellantTrade", "TransferTrade", "EscapeFlyby", "BudgetBuilder", "FormulaSheet"]
+PANELS = [
+    "BurnPointExplorer",
+    "PropellantTrade",
+    "TransferTrade",
+    "EscapeFlyby",
+    "BudgetBuilder",
+    "FormulaSheet",
+]
 
 #: Lab extensions the kernel's widgets need in the browser.
 NEEDED_EXTENSIONS = ("@jupyter-widgets/jupyterlab-manager", "jupyter-matplotlib")
@@ -85,13 +92,18 @@ def _write_notebook(folder: Path) -> Path:
     cells.append(nbformat.v4.new_code_cell(SMOKE_CELL))
     cells += [nbformat.v4.new_code_cell(_panel_cell(name)) for name in PANELS]
     nb = nbformat.v4.new_notebook(cells=cells)
-    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3 (ipykernel)", "language": "python"}
+    nb.metadata["kernelspec"] = {
+        "name": "python3",
+        "display_name": "Python 3 (ipykernel)",
+        "language": "python",
+    }
     path = folder / "panels.ipynb"
     nbformat.write(nb, path)
     return path
 
 
 # --------------------------------------------------------------------------- the server
+
 
 @pytest.fixture(scope="module")
 def lab(tmp_path_factory: pytest.TempPathFactory) -> Iterator[dict[str, Any]]:
@@ -105,7 +117,9 @@ def lab(tmp_path_factory: pytest.TempPathFactory) -> Iterator[dict[str, Any]]:
 def test_widget_extensions_are_found(lab: dict[str, Any]) -> None:
     """With temporary config and data folders, the page still loads the .venv's extensions."""
     page = get(f"{lab['base']}/lab?token={lab['token']}").decode()
-    match = re.search(r'<script id="jupyter-config-data" type="application/json">(.*?)</script>', page, re.DOTALL)
+    match = re.search(
+        r'<script id="jupyter-config-data" type="application/json">(.*?)</script>', page, re.DOTALL
+    )
     assert match, "JupyterLab page carries no jupyter-config-data"
     config = json.loads(match.group(1))
     names = {ext["name"] for ext in config.get("federated_extensions", [])}
@@ -114,6 +128,7 @@ def test_widget_extensions_are_found(lab: dict[str, Any]) -> None:
 
 
 # --------------------------------------------------------------------------- the browser
+
 
 @pytest.fixture(scope="module")
 def notebook_page(
@@ -144,7 +159,9 @@ def _open_and_run(page: Any, lab: dict[str, Any]) -> None:
 
 def _prompts(page: Any) -> list[str]:
     """The execution prompts of the notebook's code cells: "[ ]:", "[*]:" or "[7]:"."""
-    return page.locator(".jp-CodeCell .jp-InputArea-prompt").evaluate_all("els => els.map(e => e.textContent)")
+    return page.locator(".jp-CodeCell .jp-InputArea-prompt").evaluate_all(
+        "els => els.map(e => e.textContent)"
+    )
 
 
 def _run_all(page: Any, attempts: int = 3, wait_s: float = 15.0) -> None:
@@ -153,7 +170,7 @@ def _run_all(page: Any, attempts: int = 3, wait_s: float = 15.0) -> None:
     JupyterLab may drop a run-all sent just after the kernel first shows idle
     (the session is still settling): no cell then gets a "[*]" or a number.
     """
-    for attempt in range(1, attempts + 1):
+    for _attempt in range(1, attempts + 1):
         page.locator(".lm-MenuBar-item", has_text="Run").first.click()
         page.locator("[data-command='runmenu:run-all']").click()
         deadline = time.monotonic() + wait_s
@@ -193,7 +210,10 @@ def _figure_locator(box: Any) -> Any:
 
 
 def _readout_texts(box: Any) -> list[str]:
-    return [_compact(t) for t in box.locator(".deltakit-readout").evaluate_all("els => els.map(e => e.textContent)")]
+    return [
+        _compact(t)
+        for t in box.locator(".deltakit-readout").evaluate_all("els => els.map(e => e.textContent)")
+    ]
 
 
 def _wait_readouts(page: Any, box: Any, expected: list[str], timeout_s: float = 20.0) -> list[str]:
@@ -238,6 +258,7 @@ def test_plain_slider_moves_and_redraws(notebook_page: Any, artifacts: Path) -> 
 
 # --------------------------------------------------------------------------- the panels
 
+
 def _walk(widget: Any) -> Iterator[Any]:
     yield widget
     for child in getattr(widget, "children", ()):
@@ -271,7 +292,8 @@ def _check_slider_values(box: Any, panel: Any, name: str) -> None:
         except ValueError:
             continue
         assert text.strip() == expected, (
-            f"{name}: slider {slider.description!r} holds {slider.value!r} (shown as {expected}) but the browser "
+            f"{name}: slider {slider.description!r} holds {slider.value!r} "
+            f"(shown as {expected}) but the browser "
             f"shows {text.strip()}: the value is off the slider's step grid "
             f"(min={slider.min}, step={slider.step}), so the front-end snaps it and changes the panel's input"
         )
@@ -283,7 +305,9 @@ def _first_difference(expected: list[str], seen: list[str]) -> str:
     for e, s in zip(expected, seen):
         if e not in s:
             at = next((i for i, (a, b) in enumerate(zip(e, s)) if a != b), min(len(e), len(s)))
-            return f"expected ...{e[max(0, at - 40):at + 60]}... but saw ...{s[max(0, at - 40):at + 60]}..."
+            return (
+                f"expected ...{e[max(0, at - 40) : at + 60]}... but saw ...{s[max(0, at - 40) : at + 60]}..."
+            )
     return "none"
 
 
@@ -390,7 +414,10 @@ e => {
     const r = el.getBoundingClientRect();
     if (!r.width || !r.height) continue;
     left = Math.min(left, r.left);
-    if (r.right > right) { right = r.right; widest = el.className && el.className.baseVal === undefined ? String(el.className) : el.tagName; }
+    if (r.right > right) {
+      right = r.right;
+      widest = el.className && el.className.baseVal === undefined ? String(el.className) : el.tagName;
+    }
   }
   const cut = [];
   for (const el of e.querySelectorAll('.widget-label, input, .widget-readout')) {
@@ -418,10 +445,13 @@ def test_panel_fits_notebook_width(notebook_page: Any, name: str) -> None:
     width = extent["areaRight"] - extent["areaLeft"]
     assert fits, (
         f"{name} spans {extent['left']:.0f}..{extent['right']:.0f} px but its output area is "
-        f"{extent['areaLeft']:.0f}..{extent['areaRight']:.0f} px ({width:.0f} px wide); the widest element is "
+        f"{extent['areaLeft']:.0f}..{extent['areaRight']:.0f} px "
+        f"({width:.0f} px wide); the widest element is "
         f"{extent['widest']!r}: it is clipped at notebook width"
     )
-    assert not extent["cut"], f"{name}: text cut off in its box (label, input or slider readout): {extent['cut']}"
+    assert not extent["cut"], (
+        f"{name}: text cut off in its box (label, input or slider readout): {extent['cut']}"
+    )
 
 
 _OVERLAP_JS = """
@@ -429,7 +459,10 @@ e => {
   const canvas = e.querySelector('.jupyter-matplotlib-canvas-div');
   if (!canvas) return {canvas: false, bars: []};
   const c = canvas.getBoundingClientRect();
-  const shown = b => { const s = getComputedStyle(b); return s.visibility !== 'hidden' && s.display !== 'none' && Number(s.opacity) > 0; };
+  const shown = b => {
+    const s = getComputedStyle(b);
+    return s.visibility !== 'hidden' && s.display !== 'none' && Number(s.opacity) > 0;
+  };
   const bars = [...e.querySelectorAll('.jupyter-matplotlib-toolbar')].filter(shown).map(b => {
     const r = b.getBoundingClientRect();
     const overlap = Math.max(0, Math.min(r.right, c.right) - Math.max(r.left, c.left)) *
@@ -441,8 +474,9 @@ e => {
 """
 
 
-@pytest.mark.parametrize("name", ["BurnPointExplorer", "PropellantTrade", "TransferTrade", "EscapeFlyby",
-                                  "BudgetBuilder"])
+@pytest.mark.parametrize(
+    "name", ["BurnPointExplorer", "PropellantTrade", "TransferTrade", "EscapeFlyby", "BudgetBuilder"]
+)
 def test_figure_toolbar_never_covers_the_figure(notebook_page: Any, artifacts: Path, name: str) -> None:
     """With the pointer over a live figure no toolbar shows over its axis labels, ticks, titles or legends."""
     page = notebook_page
@@ -456,4 +490,6 @@ def test_figure_toolbar_never_covers_the_figure(notebook_page: Any, artifacts: P
     found = box.evaluate(_OVERLAP_JS)
     box.screenshot(path=str(artifacts / f"browser-{name}-hover.png"))
     assert found["canvas"], f"{name}: no live ipympl figure found"
-    assert all(b["overlap"] == 0 for b in found["bars"]), f"{name}: a figure toolbar lies over the figure: {found}"
+    assert all(b["overlap"] == 0 for b in found["bars"]), (
+        f"{name}: a figure toolbar lies over the figure: {found}"
+    )

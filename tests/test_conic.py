@@ -70,9 +70,23 @@ RP = 7000e3
     "e, expected",
     [
         # Closed forms of the conic sections (Curtis, 3rd ed., Ch. 2; common practice).
-        (0.0, dict(a=RP, ra=RP, p=RP, energy=-MU / (2 * RP), period=2 * np.pi * np.sqrt(RP**3 / MU), vinf=np.nan)),
-        (0.125, dict(a=8000e3, ra=9000e3, p=7875e3, energy=-MU / (2 * 8000e3),
-                     period=2 * np.pi * np.sqrt(8000e3**3 / MU), vinf=np.nan)),
+        (
+            0.0,
+            dict(
+                a=RP, ra=RP, p=RP, energy=-MU / (2 * RP), period=2 * np.pi * np.sqrt(RP**3 / MU), vinf=np.nan
+            ),
+        ),
+        (
+            0.125,
+            dict(
+                a=8000e3,
+                ra=9000e3,
+                p=7875e3,
+                energy=-MU / (2 * 8000e3),
+                period=2 * np.pi * np.sqrt(8000e3**3 / MU),
+                vinf=np.nan,
+            ),
+        ),
         (1.0, dict(a=np.inf, ra=np.inf, p=2 * RP, energy=0.0, period=np.inf, vinf=0.0)),
         (2.0, dict(a=-RP, ra=np.inf, p=3 * RP, energy=MU / (2 * RP), period=np.inf, vinf=np.sqrt(MU / RP))),
     ],

@@ -73,7 +73,18 @@ def test_geostationary_radius_gives_a_sidereal_day():
 
 
 def test_every_body_is_cited_and_sane():
-    assert list(BODIES) == ["Sun", "Mercury", "Venus", "Earth", "Moon", "Mars", "Jupiter", "Saturn", "Uranus", "Neptune"]
+    assert list(BODIES) == [
+        "Sun",
+        "Mercury",
+        "Venus",
+        "Earth",
+        "Moon",
+        "Mars",
+        "Jupiter",
+        "Saturn",
+        "Uranus",
+        "Neptune",
+    ]
     for name, body in BODIES.items():
         assert isinstance(body, CentralBody) and body.name == name
         assert body.mu > 0 and body.radius > 0

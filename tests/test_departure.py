@@ -95,7 +95,9 @@ def test_flyby_capture_and_reversal_are_nan_rest_untouched():
     vp = math.sqrt(vinf**2 + 2 * mu / rp)
     dv = np.array([100.0, -1500.0, -2.5 * vp, 0.0])  # boost, capture, reversal, coast
     f = powered_flyby(vinf, rp, dv, mu)
-    assert np.isnan(f.vinf_out[1:3]).all() and np.isnan(f.deflection[1:3]).all() and np.isnan(f.gain[1:3]).all()
+    assert (
+        np.isnan(f.vinf_out[1:3]).all() and np.isnan(f.deflection[1:3]).all() and np.isnan(f.gain[1:3]).all()
+    )
     good = powered_flyby(vinf, rp, dv[[0, 3]], mu)
     np.testing.assert_array_equal(f.vinf_out[[0, 3]], good.vinf_out)
     np.testing.assert_array_equal(f.deflection[[0, 3]], good.deflection)
@@ -122,8 +124,14 @@ def test_powered_flyby_against_integrated_legs():
     legs = []
     for speed, direction in ((vp, -1.0), (vp + dv, 1.0)):
         sol = solve_ivp(
-            _two_body, (0.0, direction * 1e9), [rp, 0.0, 0.0, speed], method="DOP853",
-            rtol=1e-12, atol=1e-6, args=(mu,), events=leave,
+            _two_body,
+            (0.0, direction * 1e9),
+            [rp, 0.0, 0.0, speed],
+            method="DOP853",
+            rtol=1e-12,
+            atol=1e-6,
+            args=(mu,),
+            events=leave,
         )
         legs.append(sol.y_events[0][0])
     (x_in, y_in, vx_in, vy_in), (x_out, y_out, vx_out, vy_out) = legs
@@ -136,7 +144,9 @@ def test_powered_flyby_against_integrated_legs():
     assert f.deflection == pytest.approx(turn, abs=2e-3)
 
 
-@given(st.lists(st.tuples(st.floats(0.0, 15000.0), radii, st.floats(-2000.0, 2000.0)), min_size=1, max_size=6))
+@given(
+    st.lists(st.tuples(st.floats(0.0, 15000.0), radii, st.floats(-2000.0, 2000.0)), min_size=1, max_size=6)
+)
 def test_arrays_equal_loop_of_scalar_calls(rows):
     vinf, rp, dv = (np.array(c) for c in zip(*rows))
     many = powered_flyby(vinf, rp, dv, MARS.mu)

@@ -42,8 +42,9 @@ def _atol(state):
 def _coast(mu, state, dt):
     if dt == 0.0:
         return np.asarray(state, float)
-    sol = solve_ivp(_rates(mu, 0.0, 1.0, 1.0, (0.0, 0.0)), (0.0, dt), state, method="DOP853",
-                    rtol=RTOL, atol=_atol(state))
+    sol = solve_ivp(
+        _rates(mu, 0.0, 1.0, 1.0, (0.0, 0.0)), (0.0, dt), state, method="DOP853", rtol=RTOL, atol=_atol(state)
+    )
     return sol.y[:, -1]
 
 
@@ -61,8 +62,15 @@ def _next_periapsis(mu, state):
     periapsis.direction = 1.0
     periapsis.terminal = True
     # the burn just ended after periapsis (r . v > 0): skip the start
-    sol = solve_ivp(_rates(mu, 0.0, 1.0, 1.0, (0.0, 0.0)), (0.0, 1.5 * period), state, method="DOP853",
-                    rtol=RTOL, atol=_atol(state), events=periapsis)
+    sol = solve_ivp(
+        _rates(mu, 0.0, 1.0, 1.0, (0.0, 0.0)),
+        (0.0, 1.5 * period),
+        state,
+        method="DOP853",
+        rtol=RTOL,
+        atol=_atol(state),
+        events=periapsis,
+    )
     times = sol.t_events[0]
     return sol.y_events[0][0] if times.size else None
 
@@ -86,8 +94,14 @@ def _scipy_arc(conic, thrust, ve, m0, dv, nu_center=0.0, steering="prograde", sp
         if start_energy is None:
             start_energy = 0.5 * np.dot(start[2:], start[2:]) - mu / np.hypot(*start[:2])
         direction = None if steering == "prograde" else centre[2:] / np.hypot(*centre[2:])
-        sol = solve_ivp(_rates(mu, thrust, ve, m0 - k * each, direction), (0.0, burn_time), start,
-                        method="DOP853", rtol=RTOL, atol=_atol(start))
+        sol = solve_ivp(
+            _rates(mu, thrust, ve, m0 - k * each, direction),
+            (0.0, burn_time),
+            start,
+            method="DOP853",
+            rtol=RTOL,
+            atol=_atol(start),
+        )
         state = sol.y[:, -1]
     energy = 0.5 * np.dot(state[2:], state[2:]) - mu / np.hypot(*state[:2])
     return energy - start_energy, state
@@ -96,23 +110,96 @@ def _scipy_arc(conic, thrust, ve, m0, dv, nu_center=0.0, steering="prograde", sp
 # name, conic, thrust N, ve m/s, m0 kg, dv m/s, nu_center rad, steering
 # Invented vehicles around real bodies (constants cited in deltakit.constants).
 CASES = [
-    ("LEO departure stage, T/W 0.25", Conic.circular(EARTH.radius + 300e3, EARTH.mu), 30e3, 4400.0, 12e3, 3200.0, 0.0, "prograde"),
-    ("GTO apogee-raise at perigee, low thrust", Conic.from_apsides(EARTH.radius + 250e3, 42164e3, EARTH.mu, argp=0.7),
-     400.0, 3100.0, 2500.0, 400.0, 0.0, "prograde"),
-    ("same, inertial steering", Conic.from_apsides(EARTH.radius + 250e3, 42164e3, EARTH.mu, argp=0.7),
-     400.0, 3100.0, 2500.0, 400.0, 0.0, "inertial"),
-    ("ellipse, burn centred off periapsis", Conic.from_apsides(8000e3, 20000e3, EARTH.mu, argp=-1.0),
-     2000.0, 3000.0, 1500.0, 600.0, 1.2, "prograde"),
-    ("Mars arrival hyperbola, burn past periapsis", Conic.from_vinf(MARS.radius + 400e3, 2500.0, MARS.mu),
-     5000.0, 3200.0, 3000.0, 900.0, 0.3, "prograde"),
-    ("Mars hyperbola, inertial", Conic.from_vinf(MARS.radius + 400e3, 2500.0, MARS.mu),
-     5000.0, 3200.0, 3000.0, 900.0, -0.2, "inertial"),
-    ("parabola, burn centred on periapsis", Conic.from_vinf(EARTH.radius + 500e3, 0.0, EARTH.mu),
-     10e3, 3200.0, 5000.0, 500.0, 0.0, "prograde"),
-    ("near-parabolic ellipse (e = 0.99), inertial", Conic(EARTH.radius + 500e3, 0.99, EARTH.mu, argp=2.0),
-     3000.0, 3200.0, 5000.0, 700.0, -0.1, "inertial"),
-    ("electric propulsion, spiral of about eight turns", Conic.circular(EARTH.radius + 1000e3, EARTH.mu),
-     2.0, 30000.0, 1000.0, 100.0, 0.0, "prograde"),
+    (
+        "LEO departure stage, T/W 0.25",
+        Conic.circular(EARTH.radius + 300e3, EARTH.mu),
+        30e3,
+        4400.0,
+        12e3,
+        3200.0,
+        0.0,
+        "prograde",
+    ),
+    (
+        "GTO apogee-raise at perigee, low thrust",
+        Conic.from_apsides(EARTH.radius + 250e3, 42164e3, EARTH.mu, argp=0.7),
+        400.0,
+        3100.0,
+        2500.0,
+        400.0,
+        0.0,
+        "prograde",
+    ),
+    (
+        "same, inertial steering",
+        Conic.from_apsides(EARTH.radius + 250e3, 42164e3, EARTH.mu, argp=0.7),
+        400.0,
+        3100.0,
+        2500.0,
+        400.0,
+        0.0,
+        "inertial",
+    ),
+    (
+        "ellipse, burn centred off periapsis",
+        Conic.from_apsides(8000e3, 20000e3, EARTH.mu, argp=-1.0),
+        2000.0,
+        3000.0,
+        1500.0,
+        600.0,
+        1.2,
+        "prograde",
+    ),
+    (
+        "Mars arrival hyperbola, burn past periapsis",
+        Conic.from_vinf(MARS.radius + 400e3, 2500.0, MARS.mu),
+        5000.0,
+        3200.0,
+        3000.0,
+        900.0,
+        0.3,
+        "prograde",
+    ),
+    (
+        "Mars hyperbola, inertial",
+        Conic.from_vinf(MARS.radius + 400e3, 2500.0, MARS.mu),
+        5000.0,
+        3200.0,
+        3000.0,
+        900.0,
+        -0.2,
+        "inertial",
+    ),
+    (
+        "parabola, burn centred on periapsis",
+        Conic.from_vinf(EARTH.radius + 500e3, 0.0, EARTH.mu),
+        10e3,
+        3200.0,
+        5000.0,
+        500.0,
+        0.0,
+        "prograde",
+    ),
+    (
+        "near-parabolic ellipse (e = 0.99), inertial",
+        Conic(EARTH.radius + 500e3, 0.99, EARTH.mu, argp=2.0),
+        3000.0,
+        3200.0,
+        5000.0,
+        700.0,
+        -0.1,
+        "inertial",
+    ),
+    (
+        "electric propulsion, spiral of about eight turns",
+        Conic.circular(EARTH.radius + 1000e3, EARTH.mu),
+        2.0,
+        30000.0,
+        1000.0,
+        100.0,
+        0.0,
+        "prograde",
+    ),
 ]
 
 
@@ -278,8 +365,13 @@ def test_loss_table():
     table = loss_table(leo, 3200.0, 2000.0, 3300.0, thrust_to_weight=[0.05, 0.2, 1.0], splits=[1, 2, 4])
     assert isinstance(table, pd.DataFrame)
     assert table.index.name == "thrust/weight"
-    assert list(table.columns) == ["thrust (N)", "burn time (s)", "loss, 1 burn (m/s)",
-                                   "loss, 2 burns (m/s)", "loss, 4 burns (m/s)"]
+    assert list(table.columns) == [
+        "thrust (N)",
+        "burn time (s)",
+        "loss, 1 burn (m/s)",
+        "loss, 2 burns (m/s)",
+        "loss, 4 burns (m/s)",
+    ]
     np.testing.assert_allclose(table["thrust (N)"], np.array([0.05, 0.2, 1.0]) * 2000.0 * G0)
     # each cell is what thrust_arc says for that case
     direct = thrust_arc(leo, 0.2 * 2000.0 * G0, 3200.0, 2000.0, 3300.0, splits=2)

@@ -28,8 +28,7 @@ def _fresh(code: str) -> dict:
 
 def test_import_loads_no_heavy_module():
     loaded = _fresh(
-        "import sys, json, deltakit\n"
-        f"print(json.dumps([m for m in {HEAVY!r} if m in sys.modules]))"
+        f"import sys, json, deltakit\nprint(json.dumps([m for m in {HEAVY!r} if m in sys.modules]))"
     )
     assert loaded == []
 
@@ -66,8 +65,17 @@ def test_every_public_name_resolves():
 
 
 @pytest.mark.parametrize(
-    "name", ["exhaust_velocity", "rocket_dv", "propellant_mass", "ejection_energy", "burn_energy",
-             "EnergySplit", "propulsive_efficiency", "Budget"],
+    "name",
+    [
+        "exhaust_velocity",
+        "rocket_dv",
+        "propellant_mass",
+        "ejection_energy",
+        "burn_energy",
+        "EnergySplit",
+        "propulsive_efficiency",
+        "Budget",
+    ],
 )
 def test_names_of_propulsion_and_budget(name):
     value = getattr(deltakit, name)

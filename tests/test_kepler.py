@@ -52,8 +52,13 @@ def test_elliptic_round_trip_hypothesis(M, e):
 
 def test_elliptic_round_trip_grid_near_parabolic_and_tiny():
     e = np.array([0.0, 1e-12, 1e-6, 0.1, 0.5, 0.9, 0.99, 0.999, 0.999999, 1 - 1e-12])[:, None]
-    M = np.concatenate([[0.0, 1e-300, 1e-15, 1e-9, 1e-5, 0.01, 0.3, 1.0, 3.0, np.pi, -np.pi],
-                        -np.geomspace(1e-12, 1e6, 40), np.geomspace(1e-12, 1e6, 40)])[None, :]
+    M = np.concatenate(
+        [
+            [0.0, 1e-300, 1e-15, 1e-9, 1e-5, 0.01, 0.3, 1.0, 3.0, np.pi, -np.pi],
+            -np.geomspace(1e-12, 1e6, 40),
+            np.geomspace(1e-12, 1e6, 40),
+        ]
+    )[None, :]
     E = mean_to_eccentric(M, e)
     assert E.shape == (e.size, M.size)
     back = eccentric_to_mean(E, e)
@@ -210,9 +215,12 @@ def test_time_of_flight_is_forward():
     ellipse = Conic(7000e3, 0.3, 3.986e14)
     a, b = 2.0, -2.5
     # going round once: a -> b -> a is one period, and 300 deg -> 10 deg passes periapsis
-    assert time_of_flight(ellipse, a, b) + time_of_flight(ellipse, b, a) == pytest.approx(ellipse.period, rel=1e-13)
+    assert time_of_flight(ellipse, a, b) + time_of_flight(ellipse, b, a) == pytest.approx(
+        ellipse.period, rel=1e-13
+    )
     assert time_of_flight(ellipse, np.radians(300), np.radians(10)) == pytest.approx(
-        time_of_flight(ellipse, np.radians(-60), np.radians(10)), rel=1e-13)
+        time_of_flight(ellipse, np.radians(-60), np.radians(10)), rel=1e-13
+    )
     assert time_of_flight(ellipse, 1.0, 1.0) == 0.0
     assert time_of_flight(ellipse, 1.0 + 2 * np.pi, 1.0) == pytest.approx(0.0, abs=1e-6)
     hyperbola = Conic(7000e3, 1.5, 3.986e14)
@@ -235,7 +243,8 @@ def test_propagate_round_trip(e, nu, dt):
         expected = dt % c.period if e < 1 else dt
         tof = time_of_flight(c, nu, there)
         assert tof == pytest.approx(expected, rel=1e-9, abs=1e-6) or (
-            e < 1 and abs(tof - expected) == pytest.approx(c.period, rel=1e-9))
+            e < 1 and abs(tof - expected) == pytest.approx(c.period, rel=1e-9)
+        )
 
 
 def test_propagate_counts_turns_and_goes_back():

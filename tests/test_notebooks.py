@@ -38,8 +38,12 @@ def _kernel_name() -> str:
 
 def _execute(nb: nbformat.NotebookNode, cwd: Path) -> nbformat.NotebookNode:
     client = NotebookClient(
-        nb, timeout=CELL_TIMEOUT, kernel_name=_kernel_name(), store_widget_state=True,
-        allow_errors=False, resources={"metadata": {"path": str(cwd)}},
+        nb,
+        timeout=CELL_TIMEOUT,
+        kernel_name=_kernel_name(),
+        store_widget_state=True,
+        allow_errors=False,
+        resources={"metadata": {"path": str(cwd)}},
     )
     client.execute()
     return nb
@@ -67,7 +71,9 @@ def test_there_are_notebooks() -> None:
 
 def test_kernel_is_this_interpreter(tmp_path: Path) -> None:
     """The notebooks run on the same python (and so the same deltakit) as the tests."""
-    nb = nbformat.v4.new_notebook(cells=[nbformat.v4.new_code_cell("import sys, deltakit; print(sys.executable)")])
+    nb = nbformat.v4.new_notebook(
+        cells=[nbformat.v4.new_code_cell("import sys, deltakit; print(sys.executable)")]
+    )
     _execute(nb, tmp_path)
     printed = nb.cells[0].outputs[0].text.strip()
     assert Path(printed).resolve() == Path(sys.executable).resolve()
@@ -75,7 +81,9 @@ def test_kernel_is_this_interpreter(tmp_path: Path) -> None:
 
 @pytest.mark.slow
 @pytest.mark.parametrize("path", PATHS, ids=[p.stem for p in PATHS])
-def test_notebook_runs_clean(path: Path, tmp_path: Path, artifacts: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+def test_notebook_runs_clean(
+    path: Path, tmp_path: Path, artifacts: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     nb = nbformat.read(path, as_version=4)
     assert not any(c.get("outputs") for c in nb.cells if c.cell_type == "code"), (
         f"{path.name} is committed with outputs; run notebooks/_build.py or clear them"
@@ -98,8 +106,13 @@ def test_notebook_runs_clean(path: Path, tmp_path: Path, artifacts: Path, monkey
         state = nb.metadata.get("widgets", {}).get(WIDGET_STATE, {}).get("state", {})
         assert state, f"{path.name} shows panels but stored no widget state"
         json.dumps(state)  # the stored state is plain JSON
-        views = [o for c in nb.cells if c.cell_type == "code" for o in c.outputs
-                 if "application/vnd.jupyter.widget-view+json" in o.get("data", {})]
+        views = [
+            o
+            for c in nb.cells
+            if c.cell_type == "code"
+            for o in c.outputs
+            if "application/vnd.jupyter.widget-view+json" in o.get("data", {})
+        ]
         assert views, f"{path.name} shows panels but no cell output is a widget view"
         for view in views:
             model = view["data"]["application/vnd.jupyter.widget-view+json"]["model_id"]

@@ -92,7 +92,11 @@ def test_update_conic_moves_same_artist():
 
 @pytest.mark.parametrize(
     "angle, reference, along",
-    [(0.0, "velocity", "velocity"), (math.pi, "velocity", "-velocity"), (math.pi / 2, "transverse", "radius")],
+    [
+        (0.0, "velocity", "velocity"),
+        (math.pi, "velocity", "-velocity"),
+        (math.pi / 2, "transverse", "radius"),
+    ],
 )
 def test_draw_burn_marker_arrow_and_orbit_after(angle, reference, along):
     orbit = dk.Conic.from_apsides(EARTH.radius + 300e3, EARTH.radius + 5000e3, EARTH.mu, argp=0.3)
@@ -115,10 +119,13 @@ def test_burn_at_angle_agrees_with_burn_functions():
     orbit = dk.Conic.from_apsides(7000e3, 15000e3, EARTH.mu)
     nu = np.linspace(-3.0, 3.0, 7)
     prograde = burn_at_angle(orbit, nu, 250.0)
-    np.testing.assert_allclose(prograde.energy_change, dk.burn_prograde(orbit, nu, 250.0).energy_change, rtol=1e-12)
+    np.testing.assert_allclose(
+        prograde.energy_change, dk.burn_prograde(orbit, nu, 250.0).energy_change, rtol=1e-12
+    )
     radial = burn_at_angle(orbit, nu, 250.0, math.pi / 2, reference="transverse")
-    np.testing.assert_allclose(radial.energy_change, dk.burn(orbit, nu, radial=250.0).energy_change,
-                               rtol=1e-9, atol=1e-6)
+    np.testing.assert_allclose(
+        radial.energy_change, dk.burn(orbit, nu, radial=250.0).energy_change, rtol=1e-9, atol=1e-6
+    )
     with pytest.raises(dk.DomainError, match="reference"):
         burn_at_angle(orbit, 0.0, 1.0, reference="inertial")
 
@@ -146,8 +153,9 @@ def test_plot_energy_gain_is_oberth_relation():
     assert x[np.argmax(y)] == 0.0  # most at periapsis
     assert "(deg)" in ax.get_xlabel() and "(MJ/kg)" in ax.get_ylabel()
     update_energy_gain(line, orbit, 300.0)
-    np.testing.assert_allclose(line.get_ydata(), dk.energy_gain(orbit.speed(np.radians(x)), 300.0) / 1e6,
-                               rtol=1e-9)
+    np.testing.assert_allclose(
+        line.get_ydata(), dk.energy_gain(orbit.speed(np.radians(x)), 300.0) / 1e6, rtol=1e-9
+    )
 
 
 def test_plot_energy_gain_on_hyperbola_stays_inside_asymptotes():
@@ -174,7 +182,11 @@ def test_draw_transfer_arcs_join_the_orbits():
 
 
 def test_budget_waterfall_bars_are_budget_masses():
-    budget = dk.Budget(1200.0, 3100.0, name="demo", dry_mass=700.0).add("raise", 600.0).add("trim", 50.0, margin=0.1)
+    budget = (
+        dk.Budget(1200.0, 3100.0, name="demo", dry_mass=700.0)
+        .add("raise", 600.0)
+        .add("trim", 50.0, margin=0.1)
+    )
     ax = axes()
     art = plot_budget_waterfall(ax, budget)
     heights = [bar.get_height() for bar in art.remaining]

@@ -146,7 +146,9 @@ def test_burn_total_is_half_propellant_ve_squared(m0, f, ve, v0, v1):
 
 
 @pytest.mark.parametrize("v0", [-3000.0, 0.0, 2500.0, 7800.0, 15000.0])
-@pytest.mark.parametrize("m0, mf, ve", [(1000.0, 800.0, 3000.0), (5000.0, 1200.0, 4400.0), (50.0, 49.0, 700.0)])
+@pytest.mark.parametrize(
+    "m0, mf, ve", [(1000.0, 800.0, 3000.0), (5000.0, 1200.0, 4400.0), (50.0, 49.0, 700.0)]
+)
 def test_burn_ejecta_against_quadrature(m0, mf, ve, v0):
     # The exhaust element dm leaves at v(m) - ve with v(m) = v0 + ve ln(m0/m)
     # (rocket equation); its kinetic-energy change from v0 integrated by
@@ -181,7 +183,9 @@ def test_burn_is_the_limit_of_many_small_ejections():
     for steps in (100, 1000, 10000):
         vehicle, ejecta, total, step = _discrete_burn(m0, mf, ve, v0, steps)
         # Each step's books balance on their own.
-        np.testing.assert_allclose(step.vehicle + step.ejecta, step.total, rtol=1e-9, atol=1e-6 * float(step.total[0]))
+        np.testing.assert_allclose(
+            step.vehicle + step.ejecta, step.total, rtol=1e-9, atol=1e-6 * float(step.total[0])
+        )
         errors.append([abs(vehicle - split.vehicle), abs(ejecta - split.ejecta), abs(total - split.total)])
     errors = np.array(errors) / float(split.total)
     # First-order convergence: ten times the steps, about a tenth of the error.
@@ -200,7 +204,9 @@ def test_propulsive_efficiency_equals_energy_books_of_a_short_burn():
     m0, dm = 1000.0, 1e-4
     split = dk.burn_energy(m0, m0 - dm, ve, v)
     residual = 0.5 * dm * (v - ve) ** 2
-    np.testing.assert_allclose(dk.propulsive_efficiency(v, ve), split.vehicle / (split.vehicle + residual), rtol=1e-6)
+    np.testing.assert_allclose(
+        dk.propulsive_efficiency(v, ve), split.vehicle / (split.vehicle + residual), rtol=1e-6
+    )
     assert dk.propulsive_efficiency(ve, ve) == 1.0
     assert dk.propulsive_efficiency(0.0, ve) == 0.0
 
@@ -208,8 +214,18 @@ def test_propulsive_efficiency_equals_energy_books_of_a_short_burn():
 # ---------------------------------------------------------------------- vectorisation
 CASES = {
     "exhaust_velocity": (dk.exhaust_velocity, [np.array([200.0, 310.0, 450.0])]),
-    "rocket_dv": (dk.rocket_dv, [np.array([2000.0, 3000.0, 4500.0]), np.array([900.0, 1200.0, 80.0]), np.array([500.0, 1100.0, 10.0])]),
-    "propulsive_efficiency": (dk.propulsive_efficiency, [np.array([-100.0, 0.0, 5000.0]), np.array([3000.0, 2000.0, 4000.0])]),
+    "rocket_dv": (
+        dk.rocket_dv,
+        [
+            np.array([2000.0, 3000.0, 4500.0]),
+            np.array([900.0, 1200.0, 80.0]),
+            np.array([500.0, 1100.0, 10.0]),
+        ],
+    ),
+    "propulsive_efficiency": (
+        dk.propulsive_efficiency,
+        [np.array([-100.0, 0.0, 5000.0]), np.array([3000.0, 2000.0, 4000.0])],
+    ),
 }
 
 

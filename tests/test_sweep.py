@@ -80,8 +80,10 @@ def test_nested_result_and_fixed_object():
 
 def test_plain_array_dict_and_tuple_results():
     plain = dk.sweep(dk.propellant_mass, dv=[100.0, 900.0], ve=[2900.0, 3100.0, 4400.0], m0=1500.0)
-    assert_same(plain["propellant_mass"], dk.propellant_mass(np.array([100.0, 900.0])[:, None],
-                                                             np.array([2900.0, 3100.0, 4400.0]), m0=1500.0))
+    assert_same(
+        plain["propellant_mass"],
+        dk.propellant_mass(np.array([100.0, 900.0])[:, None], np.array([2900.0, 3100.0, 4400.0]), m0=1500.0),
+    )
     assert plain["propellant_mass"].attrs["units"] == "kg"
 
     def books(dv, ve):
@@ -188,9 +190,12 @@ def test_local_cluster_run_equals_local_run():
     axes = {"nu": NU, "dv": DV, "rp": R1, "ra": np.geomspace(9500e3, 60000e3, 6)}
     local = dk.sweep(orbit_energy, mu=MU, chunks={"rp": 2}, **axes)
     expected = local["orbit_energy"].max("nu").compute(scheduler="sync")
-    with distributed.LocalCluster(
-        n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None, memory_limit="1GiB"
-    ) as cluster, distributed.Client(cluster) as client:
+    with (
+        distributed.LocalCluster(
+            n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None, memory_limit="1GiB"
+        ) as cluster,
+        distributed.Client(cluster) as client,
+    ):
         on_cluster = dk.sweep(orbit_energy, mu=MU, chunks={"rp": 2}, **axes)
         with distributed.get_task_stream(client) as stream:
             result = on_cluster["orbit_energy"].max("nu").compute()  # the active Client picks it up
@@ -247,8 +252,9 @@ def test_round_trip_keeps_values_coords_and_attrs(tmp_path):
 
 
 def test_lazy_sweep_streams_to_disk_and_reopens_lazily(tmp_path):
-    lazy = dk.sweep(orbit_energy, nu=NU, dv=DV, rp=R1, ra=np.geomspace(9500e3, 60000e3, 6), mu=MU,
-                    chunks={"rp": 3})
+    lazy = dk.sweep(
+        orbit_energy, nu=NU, dv=DV, rp=R1, ra=np.geomspace(9500e3, 60000e3, 6), mu=MU, chunks={"rp": 3}
+    )
     path = save_sweep(lazy, tmp_path / "grid.zarr")
     back = open_sweep(path, chunks={})
     assert isinstance(back["orbit_energy"].data, da.Array)
@@ -375,6 +381,8 @@ best = ds["energy_change"].max("nu").compute()
 assert best.shape == (20, 100, 500) and np.isfinite(best.values).all()
 print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024)
 """
-    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=600, check=True)
+    done = subprocess.run(
+        [sys.executable, "-c", script], capture_output=True, text=True, timeout=600, check=True
+    )
     peak = int(done.stdout.split()[-1])
     assert peak < 1024**3, f"peak RSS {peak / 1024**2:.0f} MiB for a 2 GB grid"

@@ -19,7 +19,8 @@ import deltakit as dk
 symbolic = pytest.importorskip("deltakit.symbolic")
 
 REQUIRED = {
-    "vis_viva", "orbital_period", "oberth", "inplane_burn", "ejection_energy", "burn_energy", "rocket_equation",
+    "vis_viva", "orbital_period", "oberth", "inplane_burn", "ejection_energy", "burn_energy",
+    "rocket_equation",
     "propulsive_efficiency", "apsis_change", "hohmann", "bielliptic", "plane_change",
     "combined_plane_change", "escape_burn", "capture_burn", "powered_flyby",
 }  # fmt: skip
@@ -29,7 +30,12 @@ ROOT = Path(__file__).resolve().parent.parent
 
 def _run_python(code: str) -> str:
     done = subprocess.run(
-        [sys.executable, "-c", textwrap.dedent(code)], cwd=ROOT, capture_output=True, text=True, timeout=120, check=False
+        [sys.executable, "-c", textwrap.dedent(code)],
+        cwd=ROOT,
+        capture_output=True,
+        text=True,
+        timeout=120,
+        check=False,
     )
     assert done.returncode == 0, done.stderr
     return done.stdout
@@ -276,7 +282,10 @@ def _latex_or_skip() -> str:
     if engine is None:
         if os.environ.get("DELTAKIT_REQUIRE_LATEX"):
             pytest.fail("DELTAKIT_REQUIRE_LATEX is set but pdflatex is not installed")
-        pytest.skip("pdflatex is not installed (Debian: texlive-latex-base); set DELTAKIT_REQUIRE_LATEX to make this fail")
+        pytest.skip(
+            "pdflatex is not installed (Debian: texlive-latex-base); set "
+            "DELTAKIT_REQUIRE_LATEX to make this fail"
+        )
     return engine
 
 
@@ -302,7 +311,9 @@ def _to_png(pdf: Path, png: Path, fallback_tex: str) -> Path:
     if shutil.which("pdftoppm"):
         subprocess.run(["pdftoppm", "-png", "-r", "110", "-singlefile", pdf, png.with_suffix("")], check=True)
     elif shutil.which("mutool"):
-        subprocess.run(["mutool", "draw", "-q", "-r", "110", "-o", png, pdf, "1"], check=True, capture_output=True)
+        subprocess.run(
+            ["mutool", "draw", "-q", "-r", "110", "-o", png, pdf, "1"], check=True, capture_output=True
+        )
     else:
         import matplotlib
 

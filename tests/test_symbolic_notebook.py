@@ -31,9 +31,15 @@ def executed(tmp_path_factory: pytest.TempPathFactory) -> Path:
     # the Hohmann cell first (screenshot), then every other entry (MathJax must typeset each)
     others = [nbformat.v4.new_code_cell(f"derive({name!r})") for name in catalog() if name != "hohmann"]
     nb = nbformat.v4.new_notebook(cells=[nbformat.v4.new_code_cell(CELL), *others])
-    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3 (ipykernel)", "language": "python"}
+    nb.metadata["kernelspec"] = {
+        "name": "python3",
+        "display_name": "Python 3 (ipykernel)",
+        "language": "python",
+    }
     env_cwd = Path(__file__).resolve().parent.parent
-    nbclient.NotebookClient(nb, timeout=120, kernel_name="python3", resources={"metadata": {"path": str(env_cwd)}}).execute()
+    nbclient.NotebookClient(
+        nb, timeout=120, kernel_name="python3", resources={"metadata": {"path": str(env_cwd)}}
+    ).execute()
     path = folder / "derivation.ipynb"
     nbformat.write(nb, path)
     return path

@@ -103,4 +103,6 @@ def test_powered_flyby_matches_integrated_hyperbolas():
     assert float(d.function("vinf_out")(vinf_in=vinf_in, rp=rp, dv=dv, mu=mu)) == pytest.approx(
         vinf_out_numeric, rel=1e-8
     )
-    assert float(d.function("deflection")(vinf_in=vinf_in, rp=rp, dv=dv, mu=mu)) == pytest.approx(turn, abs=5e-4)
+    assert float(d.function("deflection")(vinf_in=vinf_in, rp=rp, dv=dv, mu=mu)) == pytest.approx(
+        turn, abs=5e-4
+    )

@@ -63,7 +63,14 @@ def _inplane(rng):
     v_transverse = np.sqrt(mu / (rp * (1.0 + e))) * (1.0 + e * np.cos(nu))
     # the numeric layer gives NaN where the burn reverses the motion (documented)
     transverse = np.maximum(_u(rng, -2000.0, 2000.0), -0.9 * v_transverse)
-    return {"rp": rp, "e": e, "mu": mu, "nu": nu, "radial": _u(rng, -2000.0, 2000.0), "transverse": transverse}
+    return {
+        "rp": rp,
+        "e": e,
+        "mu": mu,
+        "nu": nu,
+        "radial": _u(rng, -2000.0, 2000.0),
+        "transverse": transverse,
+    }
 
 
 def _apsis(rng):
@@ -141,7 +148,12 @@ def _ejection(rng):
 
 def _burn_energy(rng):
     m0 = _u(rng, 10.0, 5e5)
-    return {"m0": m0, "mf": m0 * _u(rng, 0.05, 0.999), "ve": _u(rng, 300.0, 45000.0), "v0": _u(rng, -12000.0, 12000.0)}
+    return {
+        "m0": m0,
+        "mf": m0 * _u(rng, 0.05, 0.999),
+        "ve": _u(rng, 300.0, 45000.0),
+        "v0": _u(rng, -12000.0, 12000.0),
+    }
 
 
 def _efficiency(rng):
@@ -258,7 +270,9 @@ def test_function_broadcasts_like_a_ufunc():
     assert total.shape == (4,)
 
 
-@pytest.mark.parametrize("name,output,read,scale", EXTRA_OUTPUTS, ids=[f"{e[0]}-{e[1]}" for e in EXTRA_OUTPUTS])
+@pytest.mark.parametrize(
+    "name,output,read,scale", EXTRA_OUTPUTS, ids=[f"{e[0]}-{e[1]}" for e in EXTRA_OUTPUTS]
+)
 def test_named_outputs_agree_with_numeric_fields(name, output, read, scale):
     points = CASES[name][0]
     kw = points(np.random.default_rng(2 + sum(map(ord, name + output))))

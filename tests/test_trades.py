@@ -93,9 +93,7 @@ def test_break_even_curve_against_a_root_finder(break_even):
     """rb/r1 above which bi-elliptic wins, between the two thresholds."""
     curve = break_even["rb_break_even"]
     for ratio in (12.5, 13.0, 14.0, 15.0):
-        root = brentq(
-            lambda rb, r=ratio: hohmann_total(r) - bielliptic_total(r, rb), ratio * (1 + 1e-6), 1e9
-        )
+        root = brentq(lambda rb, r=ratio: hohmann_total(r) - bielliptic_total(r, rb), ratio * (1 + 1e-6), 1e9)
         assert float(curve.sel(r2_ratio=ratio)) == pytest.approx(root, rel=2e-3)
     # below the first threshold no rb wins; beyond the second, every rb above r2 does
     assert curve.sel(r2_ratio=slice(None, 11.93)).isnull().all()
@@ -165,7 +163,11 @@ def test_benefit_is_the_apsis_speed_difference_times_dv(dv):
 
 
 def test_best_burn_point_lazy_equals_eager():
-    axes = {"rp": np.linspace(6700e3, 9000e3, 9), "ra": np.linspace(8000e3, 60000e3, 11), "dv": [-50.0, 30.0, 300.0]}
+    axes = {
+        "rp": np.linspace(6700e3, 9000e3, 9),
+        "ra": np.linspace(8000e3, 60000e3, 11),
+        "dv": [-50.0, 30.0, 300.0],
+    }
     eager = best_burn_point(mu=EARTH.mu, **axes)
     lazy = best_burn_point(mu=EARTH.mu, chunks={"nu": 90, "rp": 4}, **axes)
     assert isinstance(lazy["energy_change_best"].data, da.Array)
@@ -193,9 +195,7 @@ def test_budget_and_sweep_give_the_same_propellant():
     m0s = np.array([650.0, 1200.0, 2400.0])
     ves = np.array([2200.0, 3100.0, 4400.0])
     lines = [("departure", 820.0, 0.05), ("mid-course", 35.0, 0.5), ("capture", 910.0, 0.03)]
-    grid = propellant_grid(
-        sum(dv * (1 + margin) for _, dv, margin in lines), m0s, ves
-    )
+    grid = propellant_grid(sum(dv * (1 + margin) for _, dv, margin in lines), m0s, ves)
     for m0 in m0s:
         for ve in ves:  # the test's own loop: one Budget per vehicle, the oracle
             budget = dk.Budget(m0, ve)

@@ -105,7 +105,10 @@ def _limit_bielliptic_minus_hohmann(ratio):
 def _slope_at_rb_equal_r2(ratio):
     # d(total)/d(rb) at rb = r2: negative means every rb > r2 beats Hohmann.
     step = 1e-6 * ratio
-    return float(bielliptic(1.0, ratio, ratio + step, 1.0).total - bielliptic(1.0, ratio, ratio, 1.0).total) / step
+    return (
+        float(bielliptic(1.0, ratio, ratio + step, 1.0).total - bielliptic(1.0, ratio, ratio, 1.0).total)
+        / step
+    )
 
 
 def test_break_even_ratios_found_from_our_functions():
@@ -155,7 +158,9 @@ def test_bielliptic_burns_against_vis_viva(r1, r2, extra, mu):
     for got, want in zip(t.burns, expected):
         assert got == pytest.approx(want, rel=1e-9, abs=1e-11 * scale)
     period = lambda a: 2 * math.pi * math.sqrt(a**3 / mu)  # noqa: E731
-    assert t.duration == pytest.approx(0.5 * period(0.5 * (r1 + rb)) + 0.5 * period(0.5 * (r2 + rb)), rel=1e-13)
+    assert t.duration == pytest.approx(
+        0.5 * period(0.5 * (r1 + rb)) + 0.5 * period(0.5 * (r2 + rb)), rel=1e-13
+    )
 
 
 def test_bielliptic_with_rb_at_target_is_hohmann():
@@ -192,7 +197,9 @@ def test_arrays_equal_loop_of_scalar_calls(rows):
         assert many_split[i] == pytest.approx(best_plane_change_split(r1[i], r2[i], 3.986e14, 0.3), abs=1e-9)
 
 
-@given(st.lists(st.tuples(radii, radii, turns, st.floats(0.0, 1.0), st.floats(0.0, 2e4)), min_size=1, max_size=6))
+@given(
+    st.lists(st.tuples(radii, radii, turns, st.floats(0.0, 1.0), st.floats(0.0, 2e4)), min_size=1, max_size=6)
+)
 def test_plane_changes_on_arrays_equal_loop(rows):
     r1, r2, angle, fraction, v = (np.array(c) for c in zip(*rows))
     many = hohmann_plane_change(r1, r2, 3.986e14, angle, fraction)
@@ -259,8 +266,10 @@ def test_best_split_agrees_with_scipy(r1, r2, turn_deg):
     mu, turn = 3.986004418e14, math.radians(turn_deg)
     ours = float(best_plane_change_split(r1, r2, mu, turn))
     ref = minimize_scalar(
-        lambda f: float(hohmann_plane_change(r1, r2, mu, turn, f).total), bounds=(0.0, 1.0),
-        method="bounded", options={"xatol": 1e-12},
+        lambda f: float(hohmann_plane_change(r1, r2, mu, turn, f).total),
+        bounds=(0.0, 1.0),
+        method="bounded",
+        options={"xatol": 1e-12},
     )
     best_total = float(hohmann_plane_change(r1, r2, mu, turn, ours).total)
     assert best_total <= ref.fun + 1e-9 * ref.fun
@@ -276,7 +285,9 @@ def test_best_split_edge_cases():
     f = best_plane_change_split(7000e3, 7000e3, mu, [0.5, 1.0])
     np.testing.assert_array_equal(f, [0.0, 0.0])
     v = math.sqrt(mu / 7000e3)
-    assert float(hohmann_plane_change(7000e3, 7000e3, mu, 0.5, 0.0).total) == pytest.approx(plane_change(v, 0.5))
+    assert float(hohmann_plane_change(7000e3, 7000e3, mu, 0.5, 0.0).total) == pytest.approx(
+        plane_change(v, 0.5)
+    )
     # No plane change: the split does not matter and is reported as 0.
     assert best_plane_change_split(7000e3, 42164e3, mu, 0.0) == 0.0
     assert isinstance(best_plane_change_split(7000e3, 42164e3, mu, 0.5), np.floating)
@@ -301,10 +312,16 @@ def test_best_split_edge_cases():
         (lambda: combined_plane_change(-1.0, 1.0, 0.1), r"`v1` must be >= 0"),
         (lambda: combined_plane_change(1.0, np.inf, 0.1), r"`v2` must be finite"),
         (lambda: combined_plane_change(1.0, 1.0, np.nan), r"`angle` must be finite"),
-        (lambda: hohmann_plane_change(7e6, 8e6, 3.986e14, 0.1, 1.5), r"`fraction_first` must be between 0 and 1"),
+        (
+            lambda: hohmann_plane_change(7e6, 8e6, 3.986e14, 0.1, 1.5),
+            r"`fraction_first` must be between 0 and 1",
+        ),
         (lambda: hohmann_plane_change(7e6, 8e6, 3.986e14, 4.0, 0.5), r"`angle` must be between 0 and pi"),
         (lambda: best_plane_change_split(7e6, -8e6, 3.986e14, 0.1), r"`r2` must be > 0 m"),
-        (lambda: best_plane_change_split(7e6, 8e6, 3.986e14, [0.1, 7.0]), r"`angle` must be between 0 and pi.*1 of 2"),
+        (
+            lambda: best_plane_change_split(7e6, 8e6, 3.986e14, [0.1, 7.0]),
+            r"`angle` must be between 0 and pi.*1 of 2",
+        ),
     ],
 )
 def test_bad_input_names_the_parameter(call, match):

@@ -97,10 +97,19 @@ def test_vis_viva_outside_an_ellipse_is_nan():
 
 
 CASES = {
-    "circular_speed": (dk.circular_speed, [np.array([7e6, 4e7, 1e11]), np.array([EARTH.mu, EARTH.mu, 1.3e20])]),
+    "circular_speed": (
+        dk.circular_speed,
+        [np.array([7e6, 4e7, 1e11]), np.array([EARTH.mu, EARTH.mu, 1.3e20])],
+    ),
     "escape_speed": (dk.escape_speed, [np.array([7e6, 4e7, 1e11]), np.array([EARTH.mu, 4e13, 1.3e20])]),
-    "vis_viva": (dk.vis_viva, [np.array([7e6, 4e7, 9e6]), np.array([8e6, -2e7, np.inf]), np.array([EARTH.mu] * 3)]),
-    "specific_energy": (dk.specific_energy, [np.array([7e6, 4e7, 9e6]), np.array([7e3, 0.0, 1.2e4]), np.array([EARTH.mu] * 3)]),
+    "vis_viva": (
+        dk.vis_viva,
+        [np.array([7e6, 4e7, 9e6]), np.array([8e6, -2e7, np.inf]), np.array([EARTH.mu] * 3)],
+    ),
+    "specific_energy": (
+        dk.specific_energy,
+        [np.array([7e6, 4e7, 9e6]), np.array([7e3, 0.0, 1.2e4]), np.array([EARTH.mu] * 3)],
+    ),
 }
 
 

@@ -55,7 +55,9 @@ def explorer():
 def test_explorer_default_case_is_valid_and_matches_numeric_layer(explorer):
     v = explorer.values
     body = BODIES[v["body"]]
-    orbit = dk.Conic.from_apsides(body.radius + v["periapsis_altitude"], body.radius + v["apoapsis_altitude"], body.mu)
+    orbit = dk.Conic.from_apsides(
+        body.radius + v["periapsis_altitude"], body.radius + v["apoapsis_altitude"], body.mu
+    )
     outcome = dk.burn_prograde(orbit, v["nu"], v["dv"])
     r = explorer.results
     assert explorer.error == ""
@@ -131,8 +133,14 @@ def test_explorer_invalid_input_shows_message_keeps_view(explorer, bad, words):
 
 
 def test_explorer_directions_match_rtn_components(explorer):
-    explorer.set(body="Mars", periapsis_altitude=300e3, apoapsis_altitude=10000e3, dv=200.0,
-                 nu=math.radians(57.0), direction="radial out")
+    explorer.set(
+        body="Mars",
+        periapsis_altitude=300e3,
+        apoapsis_altitude=10000e3,
+        dv=200.0,
+        nu=math.radians(57.0),
+        direction="radial out",
+    )
     orbit = dk.Conic.from_apsides(MARS.radius + 300e3, MARS.radius + 10000e3, MARS.mu)
     expected = dk.burn(orbit, math.radians(57.0), radial=200.0)
     assert explorer.results["energy_change"] == pytest.approx(float(expected.energy_change), rel=1e-9)
@@ -204,9 +212,14 @@ def test_propellant_exhaust_velocity_input(trade):
     assert trade.values["isp"] == pytest.approx(4400.0 / 9.80665, abs=0.005)  # the mirrored box shows 0.01 s
 
 
-@pytest.mark.parametrize("bad, words", [({"dry_mass": 0.0}, "dry mass"),
-                                        ({"mass_input": "mass ratio", "mass_ratio": 0.5}, "mass ratio"),
-                                        ({"isp": -3.0}, "specific impulse")])
+@pytest.mark.parametrize(
+    "bad, words",
+    [
+        ({"dry_mass": 0.0}, "dry mass"),
+        ({"mass_input": "mass ratio", "mass_ratio": 0.5}, "mass ratio"),
+        ({"isp": -3.0}, "specific impulse"),
+    ],
+)
 def test_propellant_invalid_input(trade, bad, words):
     results = trade.results
     trade.set(**bad)
@@ -228,8 +241,13 @@ def transfer():
 def test_transfer_textbook_hohmann(transfer):
     # Vallado, Fundamentals of Astrodynamics and Applications, 4th ed., Example 6-1:
     # 191.34411 km to 35 781.34857 km altitude, total 3.935224 km/s (quoted from memory).
-    transfer.set(body="Earth", r1=6378.137e3 + 191.34411e3, r2=6378.137e3 + 35781.34857e3, rb=100000e3,
-                 plane_change=0.0)
+    transfer.set(
+        body="Earth",
+        r1=6378.137e3 + 191.34411e3,
+        r2=6378.137e3 + 35781.34857e3,
+        rb=100000e3,
+        plane_change=0.0,
+    )
     assert transfer.results["hohmann_total"] == pytest.approx(3935.224, rel=2e-5)
     assert transfer.results["best_split"] == 0.0
 
@@ -248,7 +266,9 @@ def test_transfer_matches_numeric_layer_and_artists(transfer):
     assert r["best_split"] == pytest.approx(best)
     split_y = transfer._split_curve.get_ydata()
     np.testing.assert_allclose(
-        split_y, hohmann_plane_change(v["r1"], v["r2"], EARTH.mu, v["plane_change"], np.linspace(0, 1, 201)).total / 1e3
+        split_y,
+        hohmann_plane_change(v["r1"], v["r2"], EARTH.mu, v["plane_change"], np.linspace(0, 1, 201)).total
+        / 1e3,
     )
     assert transfer._ratio_now.get_xdata()[0] == pytest.approx(15.0)
     # the drawn Hohmann arc ends on the final orbit
@@ -319,15 +339,27 @@ def test_escape_flyby_curves_update_with_burn(escape):
     before = escape._gain_curves[1][1].get_ydata().copy()
     escape.set(flyby_dv=600.0)
     after = escape._gain_curves[1][1].get_ydata()
-    np.testing.assert_allclose(after, before * 0 + dk.powered_flyby(
-        escape.values["vinf"], np.geomspace(1.0, 50.0, 300) * BODIES[escape.values["body"]].radius, 600.0,
-        BODIES[escape.values["body"]].mu).gain)
+    np.testing.assert_allclose(
+        after,
+        before * 0
+        + dk.powered_flyby(
+            escape.values["vinf"],
+            np.geomspace(1.0, 50.0, 300) * BODIES[escape.values["body"]].radius,
+            600.0,
+            BODIES[escape.values["body"]].mu,
+        ).gain,
+    )
     assert (after > before).all()
 
 
-@pytest.mark.parametrize("bad, words", [({"periapsis_altitude": -10e3}, "below the surface"),
-                                        ({"apoapsis_altitude": 1e3}, "below the periapsis"),
-                                        ({"flyby_altitude": -5e3}, "flyby periapsis")])
+@pytest.mark.parametrize(
+    "bad, words",
+    [
+        ({"periapsis_altitude": -10e3}, "below the surface"),
+        ({"apoapsis_altitude": 1e3}, "below the periapsis"),
+        ({"flyby_altitude": -5e3}, "flyby periapsis"),
+    ],
+)
 def test_escape_invalid_input(escape, bad, words):
     results = escape.results
     escape.set(**bad)
@@ -347,7 +379,9 @@ def builder():
 def budget_by_hand(values):
     from deltakit.widgets._formulas import evaluate
 
-    budget = dk.Budget(values["m0"], values["isp"] * 9.80665, values["name"], dry_mass=values["dry_mass"] or None)
+    budget = dk.Budget(
+        values["m0"], values["isp"] * 9.80665, values["name"], dry_mass=values["dry_mass"] or None
+    )
     for line in values["lines"]:
         ve = None if line["isp"] is None else line["isp"] * 9.80665
         budget.add(line["label"], evaluate(line["formula"], line["params"]), ve=ve, margin=line["margin"])
@@ -368,10 +402,12 @@ def test_builder_default_matches_budget(builder):
 def test_builder_capture_line_is_capture_formula(builder):
     from deltakit.constants import MOON
 
-    line = next(l for l in builder.values["lines"] if l["formula"] == "capture_burn")
+    line = next(x for x in builder.values["lines"] if x["formula"] == "capture_burn")
     rp = MOON.radius + line["params"]["periapsis_altitude"]
     index = builder.values["lines"].index(line)
-    assert builder.budget.lines[index].dv == pytest.approx(float(dk.capture_burn(rp, line["params"]["vinf"], MOON.mu)))
+    assert builder.budget.lines[index].dv == pytest.approx(
+        float(dk.capture_burn(rp, line["params"]["vinf"], MOON.mu))
+    )
 
 
 def test_builder_editor_add_update_move_remove(builder):
@@ -396,7 +432,7 @@ def test_builder_editor_add_update_move_remove(builder):
     builder.buttons["update"].click()
     assert builder.values["lines"][n - 1]["label"] == "apoapsis raise, revised"
     builder.buttons["remove"].click()
-    assert [l["label"] for l in builder.values["lines"]] == [l["label"] for l in lines[:-1]]
+    assert [x["label"] for x in builder.values["lines"]] == [x["label"] for x in lines[:-1]]
     assert len(builder._waterfall.remaining) == n + 1
 
 
@@ -488,7 +524,7 @@ def test_sheet_shows_derivation(sheet):
         assert assumption.split("$")[0][:30] in sheet.sheet.value
     assert sheet.latex_text.value == d.latex(steps=True)
     assert sheet.markdown_text.value == d.markdown()
-    assert "download=\"hohmann.tex\"" in sheet.downloads.value
+    assert 'download="hohmann.tex"' in sheet.downloads.value
     sheet.set(steps=False)
     assert sheet.latex_text.value == d.latex(steps=False)
     assert "<ol>" not in sheet.sheet.value
@@ -592,8 +628,14 @@ def test_sticky_limits_move_only_when_needed():
 # The browser's slider (noUiSlider in ipywidgets 8) snaps any value to min + k * step
 # and sends the snapped value back (seen in tests/test_browser.py), so a panel must
 # never give a slider an off-grid value: it would change its own input once shown.
-PANEL_NAMES = ["BurnPointExplorer", "PropellantTrade", "TransferTrade", "EscapeFlyby", "BudgetBuilder",
-               "FormulaSheet"]
+PANEL_NAMES = [
+    "BurnPointExplorer",
+    "PropellantTrade",
+    "TransferTrade",
+    "EscapeFlyby",
+    "BudgetBuilder",
+    "FormulaSheet",
+]
 #: The panels that have sliders (BudgetBuilder and FormulaSheet have none).
 SLIDER_PANELS = PANEL_NAMES[:4]
 
@@ -601,7 +643,11 @@ SLIDER_PANELS = PANEL_NAMES[:4]
 def _sliders(panel):
     import ipywidgets as widgets
 
-    return {name: w for name, w in panel.controls.items() if isinstance(w, (widgets.FloatSlider, widgets.IntSlider))}
+    return {
+        name: w
+        for name, w in panel.controls.items()
+        if isinstance(w, (widgets.FloatSlider, widgets.IntSlider))
+    }
 
 
 def _on_grid(value, low, step):
@@ -683,13 +729,18 @@ def _text_boxes(fig):
         if not (axis.get_visible() and axis.axes.get_visible()):
             continue
         for tick in axis._update_ticks():  # only the ticks inside the view are drawn
-            found += [(f"tick {t.get_text()!r}", t.get_window_extent(renderer), t.get_rotation())
-                      for t in (tick.label1, tick.label2) if t.get_visible() and t.get_text().strip()]
+            found += [
+                (f"tick {t.get_text()!r}", t.get_window_extent(renderer), t.get_rotation())
+                for t in (tick.label1, tick.label2)
+                if t.get_visible() and t.get_text().strip()
+            ]
     for t in fig.findobj(Text):
         if id(t) not in skip and t.get_visible() and t.get_text().strip():
             found.append((f"text {t.get_text()!r}", t.get_window_extent(renderer), t.get_rotation()))
-    found += [(f"legend {[t.get_text() for t in legend.get_texts()][:2]}", legend.get_window_extent(renderer), 0)
-              for legend in legends]
+    found += [
+        (f"legend {[t.get_text() for t in legend.get_texts()][:2]}", legend.get_window_extent(renderer), 0)
+        for legend in legends
+    ]
     return found
 
 

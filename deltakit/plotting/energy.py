@@ -25,8 +25,9 @@ __all__ = ["energy_gain_curve", "plot_energy_gain", "update_energy_gain"]
 _OPEN_FRACTION = 0.97
 
 
-def energy_gain_curve(conic: Conic, dv: float, *, angle: float = 0.0, reference: str = "velocity",
-                      n: int = 361) -> tuple[np.ndarray, np.ndarray]:
+def energy_gain_curve(
+    conic: Conic, dv: float, *, angle: float = 0.0, reference: str = "velocity", n: int = 361
+) -> tuple[np.ndarray, np.ndarray]:
     """True anomaly (deg) and energy change (MJ/kg) of the burn at each point.
 
     Examples
@@ -45,8 +46,16 @@ def energy_gain_curve(conic: Conic, dv: float, *, angle: float = 0.0, reference:
     return np.degrees(nu), np.asarray(outcome.energy_change) / MJ_PER_KG
 
 
-def plot_energy_gain(ax: Axes, conic: Conic, dv: float, *, angle: float = 0.0, reference: str = "velocity",
-                     n: int = 361, **kwargs: Any) -> Line2D:
+def plot_energy_gain(
+    ax: Axes,
+    conic: Conic,
+    dv: float,
+    *,
+    angle: float = 0.0,
+    reference: str = "velocity",
+    n: int = 361,
+    **kwargs: Any,
+) -> Line2D:
     """Plot the energy change of a burn of ``dv`` (m/s) against its true anomaly.
 
     Parameters
@@ -90,8 +99,9 @@ def plot_energy_gain(ax: Axes, conic: Conic, dv: float, *, angle: float = 0.0, r
     return line
 
 
-def update_energy_gain(line: Line2D, conic: Conic, dv: float, *, angle: float = 0.0,
-                       reference: str = "velocity") -> Line2D:
+def update_energy_gain(
+    line: Line2D, conic: Conic, dv: float, *, angle: float = 0.0, reference: str = "velocity"
+) -> Line2D:
     """Recompute the curve of :func:`plot_energy_gain` in place."""
     line.set_data(*energy_gain_curve(conic, dv, angle=angle, reference=reference, n=len(line.get_xdata())))
     return line

@@ -111,8 +111,14 @@ def _body_disc(ax: Axes, body_radius: float | None) -> Circle | None:
     if body_radius is None:
         return None
     radius = float(positive(body_radius, "body_radius", "m"))
-    disc = Circle((0.0, 0.0), radius / KM, facecolor=COLOURS["body"], edgecolor=COLOURS["body_edge"],
-                  linewidth=0.8, zorder=1)
+    disc = Circle(
+        (0.0, 0.0),
+        radius / KM,
+        facecolor=COLOURS["body"],
+        edgecolor=COLOURS["body_edge"],
+        linewidth=0.8,
+        zorder=1,
+    )
     ax.add_patch(disc)
     return disc
 
@@ -125,8 +131,15 @@ def _plane_axes(ax: Axes) -> None:
     style_axes(ax, xlabel="x (km)", ylabel="y (km)")
 
 
-def draw_conic(ax: Axes, conic: Conic, *, body_radius: float | None = None, r_max: float | None = None,
-               n: int = 361, **kwargs: Any) -> ConicArtists:
+def draw_conic(
+    ax: Axes,
+    conic: Conic,
+    *,
+    body_radius: float | None = None,
+    r_max: float | None = None,
+    n: int = 361,
+    **kwargs: Any,
+) -> ConicArtists:
     """Draw one orbit to scale around its central body at the origin.
 
     Parameters
@@ -169,8 +182,9 @@ def draw_conic(ax: Axes, conic: Conic, *, body_radius: float | None = None, r_ma
     return ConicArtists(orbit, body)
 
 
-def update_conic(artists: ConicArtists, conic: Conic, *, body_radius: float | None = None,
-                 r_max: float | None = None) -> ConicArtists:
+def update_conic(
+    artists: ConicArtists, conic: Conic, *, body_radius: float | None = None, r_max: float | None = None
+) -> ConicArtists:
     """Move the artists of :func:`draw_conic` to another orbit, in place."""
     n = len(artists.orbit.get_xdata())
     artists.orbit.set_data(*conic_points(conic, n=n, r_max=r_max))
@@ -211,8 +225,9 @@ def burn_at_angle(conic: Conic, nu: Any, dv: Any, angle: Any = 0.0, *, reference
     return burn(conic, nu, radial=dv * np.sin(direction), transverse=dv * np.cos(direction))
 
 
-def _arrow_vector(conic: Conic, nu: float, dv: float, angle: float, length: float,
-                  reference: str = "velocity") -> tuple[float, float]:
+def _arrow_vector(
+    conic: Conic, nu: float, dv: float, angle: float, length: float, reference: str = "velocity"
+) -> tuple[float, float]:
     """Arrow (km) along the delta-v; its length grows with |dv| but is not to scale."""
     r_vec, v_vec = conic.state(nu)
     if reference == "transverse":
@@ -241,8 +256,17 @@ def _after_extent(conic: Conic, nu: float) -> float:
     return max(3.0 * r, ra if np.isfinite(ra) else 0.0)
 
 
-def draw_burn(ax: Axes, conic: Conic, nu: float, dv: float, *, angle: float = 0.0, reference: str = "velocity",
-              show_after: bool = True, **kwargs: Any) -> BurnArtists:
+def draw_burn(
+    ax: Axes,
+    conic: Conic,
+    nu: float,
+    dv: float,
+    *,
+    angle: float = 0.0,
+    reference: str = "velocity",
+    show_after: bool = True,
+    **kwargs: Any,
+) -> BurnArtists:
     """Mark a burn on an orbit, draw its delta-v arrow and the orbit after it.
 
     Parameters
@@ -290,10 +314,28 @@ def draw_burn(ax: Axes, conic: Conic, nu: float, dv: float, *, angle: float = 0.
     kwargs.setdefault("zorder", 5)
     (marker,) = ax.plot([x], [y], linestyle="none", **kwargs)
     u, v = _arrow_vector(conic, nu, dv, angle, _arrow_length(conic, nu, dv), reference)
-    arrow = ax.quiver([x], [y], [u], [v], angles="xy", scale_units="xy", scale=1.0, color=COLOURS["burn"],
-                      width=0.008, headwidth=3.5, zorder=6)
-    after_line = draw_conic(ax, _after_conic(conic, nu, dv, angle, reference), r_max=_after_extent(conic, nu),
-                            color=COLOURS["after"], linestyle="--", linewidth=1.6, zorder=4)
+    arrow = ax.quiver(
+        [x],
+        [y],
+        [u],
+        [v],
+        angles="xy",
+        scale_units="xy",
+        scale=1.0,
+        color=COLOURS["burn"],
+        width=0.008,
+        headwidth=3.5,
+        zorder=6,
+    )
+    after_line = draw_conic(
+        ax,
+        _after_conic(conic, nu, dv, angle, reference),
+        r_max=_after_extent(conic, nu),
+        color=COLOURS["after"],
+        linestyle="--",
+        linewidth=1.6,
+        zorder=4,
+    )
     after_line.orbit.set_visible(show_after)
     _plane_axes(ax)
     return BurnArtists(marker, arrow, after_line)
@@ -305,8 +347,16 @@ def _after_conic(conic: Conic, nu: float, dv: float, angle: float, reference: st
     return burn_at_angle(conic, nu, dv, angle, reference=reference).after
 
 
-def update_burn(artists: BurnArtists, conic: Conic, nu: float, dv: float, *, angle: float = 0.0,
-                reference: str = "velocity", after: Conic | None = None) -> BurnArtists:
+def update_burn(
+    artists: BurnArtists,
+    conic: Conic,
+    nu: float,
+    dv: float,
+    *,
+    angle: float = 0.0,
+    reference: str = "velocity",
+    after: Conic | None = None,
+) -> BurnArtists:
     """Move the artists of :func:`draw_burn` in place.
 
     Pass ``after`` when the caller has already computed the orbit after the
@@ -326,7 +376,9 @@ def update_burn(artists: BurnArtists, conic: Conic, nu: float, dv: float, *, ang
     return artists
 
 
-def _transfer_arcs(r1: float, r2: float, rb: float | None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+def _transfer_arcs(
+    r1: float, r2: float, rb: float | None
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """Hohmann half-ellipse and bi-elliptic pair of half-ellipses, km."""
     n = 181
     half = np.linspace(0.0, np.pi, n)
@@ -353,8 +405,15 @@ def _circle(r: float) -> tuple[np.ndarray, np.ndarray]:
     return r * np.cos(t) / KM, r * np.sin(t) / KM
 
 
-def draw_transfer(ax: Axes, r1: float, r2: float, *, rb: float | None = None, body_radius: float | None = None,
-                  **kwargs: Any) -> TransferArtists:
+def draw_transfer(
+    ax: Axes,
+    r1: float,
+    r2: float,
+    *,
+    rb: float | None = None,
+    body_radius: float | None = None,
+    **kwargs: Any,
+) -> TransferArtists:
     """Draw two coplanar circular orbits and the transfer ellipses between them.
 
     The Hohmann transfer is the half-ellipse from ``r1`` (at +x) to ``r2``;
@@ -398,15 +457,22 @@ def draw_transfer(ax: Axes, r1: float, r2: float, *, rb: float | None = None, bo
     (hohmann,) = ax.plot(hx, hy, **kwargs)
     bielliptic = None
     if rb is not None:
-        (bielliptic,) = ax.plot(bx, by, color=COLOURS["bielliptic"], linestyle="--", linewidth=1.6,
-                                label="bi-elliptic")
+        (bielliptic,) = ax.plot(
+            bx, by, color=COLOURS["bielliptic"], linestyle="--", linewidth=1.6, label="bi-elliptic"
+        )
     body = _body_disc(ax, body_radius)
     _plane_axes(ax)
     return TransferArtists(initial, final, hohmann, bielliptic, body)
 
 
-def update_transfer(artists: TransferArtists, r1: float, r2: float, *, rb: float | None = None,
-                    body_radius: float | None = None) -> TransferArtists:
+def update_transfer(
+    artists: TransferArtists,
+    r1: float,
+    r2: float,
+    *,
+    rb: float | None = None,
+    body_radius: float | None = None,
+) -> TransferArtists:
     """Move the artists of :func:`draw_transfer` in place."""
     artists.initial.set_data(*_circle(float(r1)))
     artists.final.set_data(*_circle(float(r2)))

@@ -96,22 +96,29 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
     x = np.arange(len(masses))
     kwargs.setdefault("color", COLOURS["vehicle"])
     remaining = ax.bar(x, masses, width, label="mass after the line", **kwargs)
-    spent_bars = ax.bar(x, spent, width, bottom=masses, color=COLOURS["exhaust"], alpha=0.85,
-                        label="propellant of the line")
-    ax.set_xticks(x, labels, rotation=30 if len(labels) > 4 else 0, ha="right" if len(labels) > 4 else "center")
+    spent_bars = ax.bar(
+        x, spent, width, bottom=masses, color=COLOURS["exhaust"], alpha=0.85, label="propellant of the line"
+    )
+    ax.set_xticks(
+        x, labels, rotation=30 if len(labels) > 4 else 0, ha="right" if len(labels) > 4 else "center"
+    )
     ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
     style_axes(ax, ylabel="vehicle mass (kg)")
     ax.grid(False, axis="x")
     dry = None
     dry_mass = getattr(budget, "dry_mass", None)
     if dry_mass is not None:
-        dry = ax.axhline(float(dry_mass), color=COLOURS["burn"], linestyle="--", linewidth=1.2, label="dry mass")
+        dry = ax.axhline(
+            float(dry_mass), color=COLOURS["burn"], linestyle="--", linewidth=1.2, label="dry mass"
+        )
     ax.legend(loc="upper right", fontsize="small", framealpha=0.9)
     ax.format_coord = _mass_readout(labels, masses, spent)
     return WaterfallArtists(remaining, spent_bars, dry)
 
 
-def update_budget_waterfall(ax: Axes, artists: WaterfallArtists | None, budget: Any, **kwargs: Any) -> WaterfallArtists:
+def update_budget_waterfall(
+    ax: Axes, artists: WaterfallArtists | None, budget: Any, **kwargs: Any
+) -> WaterfallArtists:
     """Redraw the waterfall after the budget changed.
 
     Heights move in place when the number of lines is the same; otherwise the
@@ -120,7 +127,7 @@ def update_budget_waterfall(ax: Axes, artists: WaterfallArtists | None, budget: 
     labels, masses = budget_masses(budget)
     if artists is not None and len(artists.remaining) == len(masses):
         before = np.concatenate([[masses[0]], masses[:-1]])
-        for bar, m, s in zip(artists.remaining, masses, before - masses):
+        for bar, m in zip(artists.remaining, masses):
             bar.set_height(m)
         for bar, m, s in zip(artists.spent, masses, before - masses):
             bar.set_y(m)

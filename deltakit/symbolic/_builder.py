@@ -30,7 +30,14 @@ class Builder:
         self.zero_ok: set[sp.Symbol] = set()
 
     def symbol(
-        self, name: str, meaning: str, unit: str, latex: str | None = None, *, zero_ok: bool = False, **assumptions: Any
+        self,
+        name: str,
+        meaning: str,
+        unit: str,
+        latex: str | None = None,
+        *,
+        zero_ok: bool = False,
+        **assumptions: Any,
     ) -> sp.Symbol:
         """A SymPy symbol named ``name`` (a Python identifier), with its meaning.
 

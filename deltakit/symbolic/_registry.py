@@ -23,7 +23,9 @@ class UnknownEntry(KeyError):
         return str(self.args[0])
 
 
-def entry(name: str, *aliases: str, title: str) -> Callable[[Callable[[], Derivation]], Callable[[], Derivation]]:
+def entry(
+    name: str, *aliases: str, title: str
+) -> Callable[[Callable[[], Derivation]], Callable[[], Derivation]]:
     """Register a builder under ``name`` (and optional aliases) with its title.
 
     The title is known without deriving, so a menu of the catalog is instant.

@@ -18,11 +18,16 @@ from .derivation import Derivation
 
 __all__: list[str] = []
 
-_TWO_BODY = "Two-body motion about the departure or arrival body only (patched conic: its sphere of influence is far)."
+_TWO_BODY = (
+    "Two-body motion about the departure or arrival body only "
+    "(patched conic: its sphere of influence is far)."
+)
 _IMPULSIVE = "Impulsive burn along the velocity at periapsis."
 
 
-def _hyperbola_periapsis_speed(b: Builder, vp: sp.Symbol, vinf: sp.Symbol, rp: sp.Symbol, mu: sp.Symbol) -> sp.Expr:
+def _hyperbola_periapsis_speed(
+    b: Builder, vp: sp.Symbol, vinf: sp.Symbol, rp: sp.Symbol, mu: sp.Symbol
+) -> sp.Expr:
     energy = sp.Eq(vp**2 / 2 - mu / rp, vinf**2 / 2)
     b.relation("Energy conservation between periapsis and far away, where the potential vanishes.", energy)
     return b.step("Solve for the periapsis speed on the hyperbola.", vp, solve_for(energy, vp)[0])
@@ -92,26 +97,30 @@ def _capture_burn() -> Derivation:
 
 @entry("escape_burn_elliptic", title="Escape burn from the periapsis of an elliptic parking orbit")
 def _escape_burn_elliptic() -> Derivation:
-    return _periapsis_entry("escape_burn_elliptic", leaving=True, elliptic=True
-    )
+    return _periapsis_entry("escape_burn_elliptic", leaving=True, elliptic=True)
 
 
 @entry("capture_burn_elliptic", title="Capture burn into an elliptic orbit at its periapsis")
 def _capture_burn_elliptic() -> Derivation:
-    return _periapsis_entry("capture_burn_elliptic", leaving=False, elliptic=True
-    )
+    return _periapsis_entry("capture_burn_elliptic", leaving=False, elliptic=True)
 
 
 @entry("powered_flyby", title="Powered flyby: what a periapsis burn buys")
 def _powered_flyby() -> Derivation:
     b = Builder("powered_flyby")
-    vinf_in = b.symbol("vinf_in", "hyperbolic excess speed on arrival", "m/s", r"v_{\infty,\mathrm{in}}", zero_ok=True)
+    vinf_in = b.symbol(
+        "vinf_in", "hyperbolic excess speed on arrival", "m/s", r"v_{\infty,\mathrm{in}}", zero_ok=True
+    )
     rp = b.symbol("rp", "periapsis radius of the flyby", "m", "r_{p}")
-    dv = b.symbol("dv", "delta-v along the velocity at periapsis (negative: braking)", "m/s", r"\Delta v", real=True)
+    dv = b.symbol(
+        "dv", "delta-v along the velocity at periapsis (negative: braking)", "m/s", r"\Delta v", real=True
+    )
     mu = b.symbol("mu", "gravitational parameter of the flyby body", "m^3/s^2", r"\mu")
     vp = b.symbol("vp", "periapsis speed before the burn", "m/s", "v_{p}")
     vinf_out = b.symbol("vinf_out", "hyperbolic excess speed on leaving", "m/s", r"v_{\infty,\mathrm{out}}")
-    gain = b.symbol("gain", "excess speed gained beyond the burn itself", "m/s", r"\delta v_{\infty}", real=True)
+    gain = b.symbol(
+        "gain", "excess speed gained beyond the burn itself", "m/s", r"\delta v_{\infty}", real=True
+    )
     e = b.symbol("e", "eccentricity of a flyby hyperbola", "1")
     vinf = b.symbol("vinf", "hyperbolic excess speed of one leg", "m/s", r"v_{\infty}")
     nu_inf = b.symbol("nu_inf", "true anomaly of the asymptote", "rad", r"\nu_{\infty}")
@@ -138,14 +147,18 @@ def _powered_flyby() -> Derivation:
     b.relation("Conic equation at periapsis for a leg with excess speed $v_\\infty$.", conic)
     vp_leg = sp.sqrt(vinf**2 + 2 * mu / rp)
     e_value = sp.expand(solve_for(conic.subs(h, rp * vp_leg), e)[0])
-    b.step("With $h = r_p v_p$ and $v_p^2 = v_\\infty^2 + 2\\mu/r_p$, solve for the eccentricity.", e, e_value)
+    b.step(
+        "With $h = r_p v_p$ and $v_p^2 = v_\\infty^2 + 2\\mu/r_p$, solve for the eccentricity.", e, e_value
+    )
     nu_value = solve_for(sp.Eq(1 + e * sp.cos(nu_inf), 0), nu_inf)
     # two roots, +-nu_inf; the outgoing asymptote is the one in (pi/2, pi)
     nu_value = min(nu_value, key=lambda root: float(root.subs(e, 2)))
     b.step("The radius becomes infinite where $1 + e\\cos\\nu = 0$: the asymptote.", nu_inf, nu_value)
     turn_value = nu_value.rewrite(sp.asin) - sp.pi / 2
     b.step("Each leg turns the excess velocity by the asymptote angle less a right angle.", turn, turn_value)
-    deflection_value = turn_value.subs(e, e_value.subs(vinf, vinf_in)) + turn_value.subs(e, e_value.subs(vinf, vinf_out))
+    deflection_value = turn_value.subs(e, e_value.subs(vinf, vinf_in)) + turn_value.subs(
+        e, e_value.subs(vinf, vinf_out)
+    )
     b.step("Add the turn of the arriving and the leaving leg.", deflection, deflection_value)
     deflection_value = deflection_value.subs(vinf_out, vinf_out_value)
     return b.build(
@@ -157,7 +170,8 @@ def _powered_flyby() -> Derivation:
         assumptions=[
             _TWO_BODY,
             _IMPULSIVE,
-            "The burn leaves the vehicle unbound ($v_{\\infty,\\mathrm{out}}$ real) and keeps it moving forward.",
+            "The burn leaves the vehicle unbound "
+            "($v_{\\infty,\\mathrm{out}}$ real) and keeps it moving forward.",
         ],
         references=["Common practice: energy conservation on the arriving and leaving hyperbolas"],
     )

@@ -286,7 +286,9 @@ class Derivation:
             elif output in self.outputs:
                 expr = self.outputs[output]
             else:
-                raise KeyError(f"derivation {self.name!r} has no output {output!r}; choose from {sorted(self.outputs)}")
+                raise KeyError(
+                    f"derivation {self.name!r} has no output {output!r}; choose from {sorted(self.outputs)}"
+                )
             label = self.name + (f"_{output}" if output else "")
             rules = [(self.domain.get(str(p), "finite"), self.symbols[p].unit) for p in self.parameters]
             self._functions[key] = _numpy_callable(self.parameters, expr, label, rules)
@@ -335,7 +337,9 @@ def _numpy_callable(
         values = dict(zip(names, args))
         for key, value in kwargs.items():
             if key not in names:
-                raise TypeError(f"{name}() got an unexpected keyword {key!r}; its arguments are {', '.join(names)}")
+                raise TypeError(
+                    f"{name}() got an unexpected keyword {key!r}; its arguments are {', '.join(names)}"
+                )
             if key in values:
                 raise TypeError(f"{name}() got two values for {key!r}")
             values[key] = value

@@ -41,7 +41,9 @@ def _vis_viva() -> Derivation:
         sp.Eq(vp**2 / 2 - mu / rp, va**2 / 2 - mu / ra),
     )
     momentum = sp.Eq(rp * vp, ra * va)
-    b.relation("Angular momentum conservation: at the apsides the velocity is perpendicular to the radius.", momentum)
+    b.relation(
+        "Angular momentum conservation: at the apsides the velocity is perpendicular to the radius.", momentum
+    )
     va_of_vp = solve_for(momentum, va)[0]
     vp_value = solve_for(conserve_energy.subs(va, va_of_vp), vp)[0]
     b.step("Eliminate the apoapsis speed and solve for the periapsis speed.", vp, vp_value)
@@ -79,11 +81,20 @@ def _orbital_period() -> Derivation:
     minor = b.symbol("b", "semi-minor axis", "m", "b")
     period = b.symbol("period", "orbital period", "s", "T")
 
-    rate = b.step("The radius sweeps a thin triangle: the area rate is $r^2\\dot\\nu/2$.", area_rate, r**2 * nu_rate / 2)
-    rate = b.step("Angular momentum is $h = r^2 \\dot\\nu$, so the area rate is constant (Kepler's second law).", area_rate, rate.subs(nu_rate, h / r**2))
+    rate = b.step(
+        "The radius sweeps a thin triangle: the area rate is $r^2\\dot\\nu/2$.", area_rate, r**2 * nu_rate / 2
+    )
+    rate = b.step(
+        "Angular momentum is $h = r^2 \\dot\\nu$, so the area rate is constant (Kepler's second law).",
+        area_rate,
+        rate.subs(nu_rate, h / r**2),
+    )
     b.step("Area of the ellipse, with $b = a\\sqrt{1 - e^2}$.", area, sp.pi * a * minor)
     ellipse_area = sp.pi * a * a * sp.sqrt(1 - e**2)
-    conic = b.relation("Periapsis from the conic equation ($\\nu = 0$) and from the geometry ($a(1 - e)$).", sp.Eq(h**2 / (mu * (1 + e)), a * (1 - e)))
+    conic = b.relation(
+        "Periapsis from the conic equation ($\\nu = 0$) and from the geometry ($a(1 - e)$).",
+        sp.Eq(h**2 / (mu * (1 + e)), a * (1 - e)),
+    )
     h_value = b.step("Solve for the angular momentum.", h, solve_for(conic, h)[0])
     value = sp.powsimp(tidy(ellipse_area / rate.subs(h, h_value)), force=True)
     b.step("The period is the whole area divided by the constant area rate: e cancels.", period, value)
@@ -116,10 +127,22 @@ def _oberth() -> Derivation:
     dv = b.symbol("dv", "delta-v along the velocity (negative: retrograde)", "m/s", r"\Delta v", real=True)
     r = b.symbol("r", "radius where the burn happens", "m")
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
-    e_before = b.symbol("energy_before", "specific orbital energy before the burn", "J/kg", r"\varepsilon_{0}", real=True)
-    e_after = b.symbol("energy_after", "specific orbital energy after the burn", "J/kg", r"\varepsilon_{1}", real=True)
-    gain = b.symbol("energy_change", "change of specific orbital energy", "J/kg", r"\Delta\varepsilon", real=True)
-    slope = b.symbol("slope", "extra gain per unit of speed at the burn point", "m/s", r"\frac{\partial \Delta\varepsilon}{\partial v}", real=True)
+    e_before = b.symbol(
+        "energy_before", "specific orbital energy before the burn", "J/kg", r"\varepsilon_{0}", real=True
+    )
+    e_after = b.symbol(
+        "energy_after", "specific orbital energy after the burn", "J/kg", r"\varepsilon_{1}", real=True
+    )
+    gain = b.symbol(
+        "energy_change", "change of specific orbital energy", "J/kg", r"\Delta\varepsilon", real=True
+    )
+    slope = b.symbol(
+        "slope",
+        "extra gain per unit of speed at the burn point",
+        "m/s",
+        r"\frac{\partial \Delta\varepsilon}{\partial v}",
+        real=True,
+    )
 
     before = b.step("Specific energy before the burn.", e_before, v**2 / 2 - mu / r)
     after = b.step(
@@ -130,7 +153,8 @@ def _oberth() -> Derivation:
     change = sp.expand(after - before)
     b.step("Subtract: the potential energy cancels.", gain, change)
     b.step(
-        "The same $\\Delta v$ gives more energy the faster the vehicle moves: deep in the well, at periapsis.",
+        "The same $\\Delta v$ gives more energy the faster the vehicle "
+        "moves: deep in the well, at periapsis.",
         slope,
         sp.diff(change, v),
     )
@@ -151,13 +175,23 @@ def _inplane_burn() -> Derivation:
     e = b.symbol("e", "eccentricity before the burn", "1", "e", nonnegative=True, real=True)
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
     nu = b.symbol("nu", "true anomaly of the burn point", "rad", r"\nu", real=True)
-    radial = b.symbol("radial", "delta-v component along the outward radius", "m/s", r"\Delta v_{r}", real=True)
-    transverse = b.symbol("transverse", "delta-v component along the motion, perpendicular to the radius", "m/s", r"\Delta v_{t}", real=True)
+    radial = b.symbol(
+        "radial", "delta-v component along the outward radius", "m/s", r"\Delta v_{r}", real=True
+    )
+    transverse = b.symbol(
+        "transverse",
+        "delta-v component along the motion, perpendicular to the radius",
+        "m/s",
+        r"\Delta v_{t}",
+        real=True,
+    )
     h = b.symbol("h", "specific angular momentum", "m^2/s")
     r = b.symbol("r", "radius at the burn point", "m")
     v_r = b.symbol("v_radial", "radial velocity before the burn", "m/s", "v_{r}", real=True)
     v_t = b.symbol("v_transverse", "transverse velocity before the burn", "m/s", "v_{t}", real=True)
-    gain = b.symbol("energy_change", "change of specific orbital energy", "J/kg", r"\Delta\varepsilon", real=True)
+    gain = b.symbol(
+        "energy_change", "change of specific orbital energy", "J/kg", r"\Delta\varepsilon", real=True
+    )
     t = sp.Symbol("t", real=True)
 
     change_components = sp.expand(((v_r + radial) ** 2 + (v_t + transverse) ** 2 - v_r**2 - v_t**2) / 2)
@@ -166,13 +200,19 @@ def _inplane_burn() -> Derivation:
         gain,
         change_components,
     )
-    radius = b.step("The conic equation, with h the specific angular momentum.", r, h**2 / (mu * (1 + e * sp.cos(nu))))
+    radius = b.step(
+        "The conic equation, with h the specific angular momentum.", r, h**2 / (mu * (1 + e * sp.cos(nu)))
+    )
     h_value = solve_for(sp.Eq(radius.subs(nu, 0), rp), h)[0]
     b.step("At periapsis ($\\nu = 0$) the radius is $r_p$.", h, h_value)
     b.step("Angular momentum is r times the transverse velocity.", v_t, tidy(h / radius))
     nu_t = sp.Function("nu")(t)
     radial_rate = sp.diff(radius.subs(nu, nu_t), t).subs(sp.Derivative(nu_t, t), h / radius**2).subs(nu_t, nu)
-    b.step("Radial velocity: differentiate the conic equation in time, with $\\dot\\nu = h/r^2$.", v_r, tidy(radial_rate))
+    b.step(
+        "Radial velocity: differentiate the conic equation in time, with $\\dot\\nu = h/r^2$.",
+        v_r,
+        tidy(radial_rate),
+    )
     velocities = {v_r: tidy(radial_rate), v_t: tidy(h / radius)}
     change = sp.expand(change_components.subs(velocities).subs(h, h_value))
     b.step("Substitute the velocity components before the burn.", gain, change)
@@ -187,7 +227,9 @@ def _inplane_burn() -> Derivation:
             "The delta-v lies in the orbit plane (radial and transverse parts).",
             "The transverse speed after the burn stays positive (the motion is not reversed).",
         ],
-        references=["Common practice: specific energy of the velocity after the burn, conic velocity components"],
+        references=[
+            "Common practice: specific energy of the velocity after the burn, conic velocity components"
+        ],
         twin_adapter=_burn_twin,
     )
 
@@ -204,7 +246,9 @@ def _apsis_change() -> Derivation:
     rp = b.symbol("rp", "periapsis radius (where the burn happens)", "m", "r_{p}")
     ra = b.symbol("ra", "apoapsis radius before the burn", "m", "r_{a}")
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
-    dv = b.symbol("dv", "delta-v along the velocity at periapsis (negative: retrograde)", "m/s", r"\Delta v", real=True)
+    dv = b.symbol(
+        "dv", "delta-v along the velocity at periapsis (negative: retrograde)", "m/s", r"\Delta v", real=True
+    )
     vp = b.symbol("vp", "periapsis speed before the burn", "m/s", "v_{p}")
     w = b.symbol("w", "periapsis speed after the burn", "m/s", "w_{p}")
     r_new = b.symbol("ra_new", "apoapsis radius after the burn", "m", r"r_{a}'")
@@ -225,7 +269,9 @@ def _apsis_change() -> Derivation:
     other = [root for root in roots if tidy(root - rp) != 0]
     (apoapsis_w,) = other
     apoapsis_w = sp.factor(apoapsis_w)
-    b.step("Solve for the radius: one root is $r_p$ itself, the other is the new apoapsis.", r_new, apoapsis_w)
+    b.step(
+        "Solve for the radius: one root is $r_p$ itself, the other is the new apoapsis.", r_new, apoapsis_w
+    )
     apoapsis = apoapsis_w.subs(w, vp_value + dv)
     b.step("Substitute the speed after the burn.", r_new, apoapsis)
     return b.build(

@@ -38,7 +38,9 @@ def _half_period(a: sp.Expr, mu: sp.Expr) -> sp.Expr:
 def _circular_speed(b: Builder, r: sp.Symbol, mu: sp.Symbol) -> sp.Expr:
     """Record gravity = centripetal acceleration, solve it, return the speed."""
     v = b.symbol("v_circle", "speed on a circular orbit of radius r", "m/s", r"v_{c}")
-    balance = b.relation("On a circular orbit gravity supplies the centripetal acceleration.", sp.Eq(mu / r**2, v**2 / r))
+    balance = b.relation(
+        "On a circular orbit gravity supplies the centripetal acceleration.", sp.Eq(mu / r**2, v**2 / r)
+    )
     return b.step("Solve for the circular speed.", v, solve_for(balance, v)[0])
 
 
@@ -61,15 +63,25 @@ def _hohmann() -> Derivation:
     circle = _circular_speed(b, r, mu)
     speed1 = b.step("Initial orbit.", v1, circle.subs(r, r1))
     speed2 = b.step("Final orbit.", v2, circle.subs(r, r2))
-    a_value = b.step("The transfer ellipse touches both orbits: its apsides are $r_1$ and $r_2$.", a_t, (r1 + r2) / 2)
+    a_value = b.step(
+        "The transfer ellipse touches both orbits: its apsides are $r_1$ and $r_2$.", a_t, (r1 + r2) / 2
+    )
     depart = b.step("Vis-viva on the transfer ellipse at $r_1$.", v_depart, _vis_viva(r1, a_value, mu))
     arrive = b.step("Vis-viva on the transfer ellipse at $r_2$.", v_arrive, _vis_viva(r2, a_value, mu))
-    first = b.step("First burn: from the circular speed to the ellipse speed at $r_1$.", burn1, sp.Abs(depart - speed1))
-    second = b.step("Second burn: from the ellipse speed to the circular speed at $r_2$.", burn2, sp.Abs(speed2 - arrive))
+    first = b.step(
+        "First burn: from the circular speed to the ellipse speed at $r_1$.", burn1, sp.Abs(depart - speed1)
+    )
+    second = b.step(
+        "Second burn: from the ellipse speed to the circular speed at $r_2$.", burn2, sp.Abs(speed2 - arrive)
+    )
     b.step("The total is the sum of the two burn magnitudes.", total, burn1 + burn2)
     whole = first + second
     duration = b.symbol("duration", "time from the first burn to the second", "s", "t_{t}")
-    coast = b.step("The coast is half the period of the transfer ellipse (Kepler's third law).", duration, _half_period(a_t, mu))
+    coast = b.step(
+        "The coast is half the period of the transfer ellipse (Kepler's third law).",
+        duration,
+        _half_period(a_t, mu),
+    )
     coast = coast.subs(a_t, a_value)
     return b.build(
         result=whole,
@@ -77,7 +89,12 @@ def _hohmann() -> Derivation:
         parameters=(r1, r2, mu),
         twin="deltakit.hohmann:total",
         outputs={"burn1": first, "burn2": second, "total": whole, "duration": coast},
-        assumptions=[_TWO_BODY, _IMPULSIVE, _COPLANAR, "The transfer is half an ellipse tangent to both orbits."],
+        assumptions=[
+            _TWO_BODY,
+            _IMPULSIVE,
+            _COPLANAR,
+            "The transfer is half an ellipse tangent to both orbits.",
+        ],
         references=[
             "Curtis, Orbital Mechanics for Engineering Students, Hohmann transfer (Ch. 6)",
             "Vallado, Fundamentals of Astrodynamics and Applications, Hohmann transfer (Ch. 6)",
@@ -150,14 +167,20 @@ def _bielliptic() -> Derivation:
 def _plane_change() -> Derivation:
     b = Builder("plane_change")
     v = b.symbol("v", "speed, the same before and after", "m/s", zero_ok=True)
-    angle = b.symbol("angle", "angle between the old and the new velocity, in [0, pi]", "rad", r"\theta", zero_ok=True)
+    angle = b.symbol(
+        "angle", "angle between the old and the new velocity, in [0, pi]", "rad", r"\theta", zero_ok=True
+    )
     dv = b.symbol("dv", "delta-v of the turn", "m/s", r"\Delta v")
     dv2 = b.symbol("dv_squared", "square of the delta-v", "m^2/s^2", r"\Delta v^{2}")
 
     before = sp.Matrix([v, 0])
     after = sp.Matrix([v * sp.cos(angle), v * sp.sin(angle)])
     difference = after - before
-    b.step("Velocity change, in the plane of the two velocities (old one along the first axis).", dv2, difference.dot(difference))
+    b.step(
+        "Velocity change, in the plane of the two velocities (old one along the first axis).",
+        dv2,
+        difference.dot(difference),
+    )
     squared = sp.factor(sp.trigsimp(sp.expand(difference.dot(difference))))
     b.step("Expand with $\\sin^2 + \\cos^2 = 1$.", dv2, squared)
     phi = sp.Symbol("phi", positive=True)  # half the turn angle
@@ -192,7 +215,11 @@ def _combined_plane_change() -> Derivation:
     before = sp.Matrix([v1, 0])
     after = sp.Matrix([v2 * sp.cos(angle), v2 * sp.sin(angle)])
     difference = after - before
-    b.step("Velocity change, in the plane of the two velocities (old one along the first axis).", dv2, difference.dot(difference))
+    b.step(
+        "Velocity change, in the plane of the two velocities (old one along the first axis).",
+        dv2,
+        difference.dot(difference),
+    )
     squared = sp.expand(sp.trigsimp(sp.expand(difference.dot(difference))))
     b.step("Expand with $\\sin^2 + \\cos^2 = 1$: the law of cosines.", dv2, squared)
     value = sp.sqrt(squared)

@@ -253,12 +253,15 @@ class Panel(widgets.VBox):
         self.readouts = widgets.HTML(value="")
         self.readouts.add_class("deltakit-readout")
         self.caution = widgets.HTML(
-            value=f'<div style="font-size:0.8em;color:#555;line-height:1.3">{html.escape(CAUTION, quote=False)}</div>'
+            value='<div style="font-size:0.8em;color:#555;line-height:1.3">'
+            f"{html.escape(CAUTION, quote=False)}</div>"
         )
         self.caution.add_class("deltakit-caution")
 
     # ------------------------------------------------------------------ building
-    def _control(self, name: str, widget: widgets.ValueWidget, scale: float | None = None) -> widgets.ValueWidget:
+    def _control(
+        self, name: str, widget: widgets.ValueWidget, scale: float | None = None
+    ) -> widgets.ValueWidget:
         """Register a control. ``scale`` is SI units per display unit (1e3 for km); None for non-numbers."""
         widget.style = {"description_width": "initial"}
         widget.add_class(f"deltakit-control-{name.replace('_', '-')}")
@@ -276,8 +279,10 @@ class Panel(widgets.VBox):
     def _finish(self, title: str, rows: list[list[str]], extra: list[widgets.Widget] | None = None) -> None:
         """Lay out the panel, wire every control to one update, draw the first view."""
         heading = widgets.HTML(value=f"<b>{html.escape(title)}</b>")
-        boxes = [widgets.HBox([self.controls[name] for name in row], layout=widgets.Layout(flex_flow="row wrap"))
-                 for row in rows]
+        boxes = [
+            widgets.HBox([self.controls[name] for name in row], layout=widgets.Layout(flex_flow="row wrap"))
+            for row in rows
+        ]
         children: list[widgets.Widget] = [heading, *boxes, *(extra or []), self.message]
         if self.view is not None:
             children.append(self.view.widget)
@@ -318,7 +323,8 @@ class Panel(widgets.VBox):
         unknown = sorted(set(values) - set(self.controls))
         if unknown:
             raise TypeError(
-                f"{type(self).__name__}.set() got unknown names {unknown}; expected some of {sorted(self.controls)}"
+                f"{type(self).__name__}.set() got unknown names {unknown}; "
+                f"expected some of {sorted(self.controls)}"
             )
         self._adjusted = {}
         self._holding = True
@@ -334,7 +340,9 @@ class Panel(widgets.VBox):
         widget = self.controls[name]
         scale = self._scales[name]
         if scale is None:
-            if isinstance(widget, (widgets.Dropdown, widgets.ToggleButtons, widgets.RadioButtons, widgets.Select)):
+            if isinstance(
+                widget, (widgets.Dropdown, widgets.ToggleButtons, widgets.RadioButtons, widgets.Select)
+            ):
                 options = [o[1] if isinstance(o, tuple) else o for o in widget.options]
                 if value not in options:
                     raise DomainError(f"`{name}` must be one of {options}, not {value!r}")
@@ -365,11 +373,13 @@ class Panel(widgets.VBox):
         """
         step = float(widget.step)
         if shown > widget.max:
-            widget.max = on_slider_grid(widget.min + math.ceil((shown - widget.min) / step - 1e-9) * step,
-                                        widget.min, step)
+            widget.max = on_slider_grid(
+                widget.min + math.ceil((shown - widget.min) / step - 1e-9) * step, widget.min, step
+            )
         if shown < widget.min:
-            widget.min = on_slider_grid(widget.min - math.ceil((widget.min - shown) / step - 1e-9) * step,
-                                        widget.min, step)
+            widget.min = on_slider_grid(
+                widget.min - math.ceil((widget.min - shown) / step - 1e-9) * step, widget.min, step
+            )
         snapped = min(max(on_slider_grid(shown, widget.min, step), widget.min), widget.max)
         if abs(snapped - shown) > 1e-6 * step:
             self._adjusted[name] = (
@@ -401,8 +411,11 @@ class Panel(widgets.VBox):
         if self._holding:
             return
         widget = change["owner"]
-        if _is_slider(widget) and isinstance(change.get("old"), (int, float)) and \
-                abs(change["new"] - change["old"]) <= 1e-9 * float(widget.step):
+        if (
+            _is_slider(widget)
+            and isinstance(change.get("old"), (int, float))
+            and abs(change["new"] - change["old"]) <= 1e-9 * float(widget.step)
+        ):
             return  # the browser echoing our own value in its float arithmetic: nothing moved
         self._adjusted.pop(name, None)
         self._refresh({name} if name else set(self.controls))
@@ -439,8 +452,11 @@ class Panel(widgets.VBox):
         return self._error
 
     def _show_readouts(self, results: dict[str, Any], notes: list[str] | None = None) -> None:
-        rows = [(key, label, fmt(results[key], scale, unit)) for key, (label, scale, unit) in self.readout_spec.items()
-                if key in results]
+        rows = [
+            (key, label, fmt(results[key], scale, unit))
+            for key, (label, scale, unit) in self.readout_spec.items()
+            if key in results
+        ]
         body = html_table(rows)
         notes = [*self._adjusted.values(), *(notes or [])]
         if notes:
@@ -451,8 +467,9 @@ class Panel(widgets.VBox):
         raise NotImplementedError
 
 
-def sticky_limits(ax: Any, low: float, high: float, *, axis: str = "y", include_zero: bool = True,
-                  force: bool = False) -> bool:
+def sticky_limits(
+    ax: Any, low: float, high: float, *, axis: str = "y", include_zero: bool = True, force: bool = False
+) -> bool:
     """Set the limits of ``axis`` for data in [low, high] only when needed; True if they changed.
 
     Limits stay put while the data stay inside them and fill at least 60 %
@@ -476,13 +493,28 @@ def sticky_limits(ax: Any, low: float, high: float, *, axis: str = "y", include_
     return True
 
 
-def slider(description: str, value: float, low: float, high: float, step: float, *, readout_format: str = ".1f",
-           continuous: bool = True) -> widgets.FloatSlider:
+def slider(
+    description: str,
+    value: float,
+    low: float,
+    high: float,
+    step: float,
+    *,
+    readout_format: str = ".1f",
+    continuous: bool = True,
+) -> widgets.FloatSlider:
     """A float slider with the project's look; its right end lies on the step grid too."""
     high = on_slider_grid(low + math.ceil((high - low) / step - 1e-9) * step, low, step)
-    return widgets.FloatSlider(value=min(max(value, low), high), min=low, max=high, step=step,
-                               description=description, readout_format=readout_format,
-                               continuous_update=continuous, layout=widgets.Layout(width="520px"))
+    return widgets.FloatSlider(
+        value=min(max(value, low), high),
+        min=low,
+        max=high,
+        step=step,
+        description=description,
+        readout_format=readout_format,
+        continuous_update=continuous,
+        layout=widgets.Layout(width="520px"),
+    )
 
 
 #: Room for the digits of a number box (about 12 characters) beside its label.
@@ -500,15 +532,23 @@ def number_width(description: str) -> str:
     return f"{round(len(description) * _LABEL_CHAR_PX + _INPUT_PX)}px"
 
 
-def number(description: str, value: float, *, step: float | None = None, width: str | None = None) -> widgets.FloatText:
+def number(
+    description: str, value: float, *, step: float | None = None, width: str | None = None
+) -> widgets.FloatText:
     """A float text box with the project's look, as wide as its label needs (or ``width``)."""
-    return widgets.FloatText(value=value, description=description, step=step,
-                             layout=widgets.Layout(width=width or number_width(description)))
+    return widgets.FloatText(
+        value=value,
+        description=description,
+        step=step,
+        layout=widgets.Layout(width=width or number_width(description)),
+    )
 
 
 def choice(description: str, options: list[Any], value: Any, *, width: str = "250px") -> widgets.Dropdown:
     """A drop-down with the project's look."""
-    return widgets.Dropdown(options=options, value=value, description=description, layout=widgets.Layout(width=width))
+    return widgets.Dropdown(
+        options=options, value=value, description=description, layout=widgets.Layout(width=width)
+    )
 
 
 Callback = Callable[[dict[str, Any]], None]

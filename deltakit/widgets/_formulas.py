@@ -73,19 +73,26 @@ def _departure(function: Callable) -> Callable[[dict[str, Any]], Any]:
 _BODY = Parameter("body", "central body", None, EARTH.name)
 
 FORMULAS: dict[str, Formula] = {
-    "number": Formula("delta-v typed in", (Parameter("dv", "delta-v (m/s)", 1.0, 100.0),),
-                      lambda p: float(p["dv"])),
+    "number": Formula(
+        "delta-v typed in", (Parameter("dv", "delta-v (m/s)", 1.0, 100.0),), lambda p: float(p["dv"])
+    ),
     "hohmann": Formula(
         "Hohmann transfer",
-        (_BODY, Parameter("r1", "initial radius (km)", KM, EARTH.radius + 400e3),
-         Parameter("r2", "final radius (km)", KM, 42_164e3)),
+        (
+            _BODY,
+            Parameter("r1", "initial radius (km)", KM, EARTH.radius + 400e3),
+            Parameter("r2", "final radius (km)", KM, 42_164e3),
+        ),
         lambda p: hohmann(p["r1"], p["r2"], _body(p).mu),
     ),
     "bielliptic": Formula(
         "bi-elliptic transfer",
-        (_BODY, Parameter("r1", "initial radius (km)", KM, EARTH.radius + 400e3),
-         Parameter("r2", "final radius (km)", KM, 120_000e3),
-         Parameter("rb", "intermediate radius (km)", KM, 240_000e3)),
+        (
+            _BODY,
+            Parameter("r1", "initial radius (km)", KM, EARTH.radius + 400e3),
+            Parameter("r2", "final radius (km)", KM, 120_000e3),
+            Parameter("rb", "intermediate radius (km)", KM, 240_000e3),
+        ),
         lambda p: bielliptic(p["r1"], p["r2"], p["rb"], _body(p).mu),
     ),
     "plane_change": Formula(
@@ -95,16 +102,22 @@ FORMULAS: dict[str, Formula] = {
     ),
     "escape_burn": Formula(
         "escape from a parking orbit",
-        (_BODY, Parameter("periapsis_altitude", "parking periapsis altitude (km)", KM, 400e3),
-         Parameter("apoapsis_altitude", "parking apoapsis altitude (km)", KM, 400e3),
-         Parameter("vinf", "excess speed (km/s)", KM, 3_000.0)),
+        (
+            _BODY,
+            Parameter("periapsis_altitude", "parking periapsis altitude (km)", KM, 400e3),
+            Parameter("apoapsis_altitude", "parking apoapsis altitude (km)", KM, 400e3),
+            Parameter("vinf", "excess speed (km/s)", KM, 3_000.0),
+        ),
         _departure(escape_burn),
     ),
     "capture_burn": Formula(
         "capture into a parking orbit",
-        (_BODY, Parameter("periapsis_altitude", "parking periapsis altitude (km)", KM, 300e3),
-         Parameter("apoapsis_altitude", "parking apoapsis altitude (km)", KM, 300e3),
-         Parameter("vinf", "arrival excess speed (km/s)", KM, 2_650.0)),
+        (
+            _BODY,
+            Parameter("periapsis_altitude", "parking periapsis altitude (km)", KM, 300e3),
+            Parameter("apoapsis_altitude", "parking apoapsis altitude (km)", KM, 300e3),
+            Parameter("vinf", "arrival excess speed (km/s)", KM, 2_650.0),
+        ),
         _departure(capture_burn),
     ),
 }

@@ -44,16 +44,39 @@ def default_lines() -> list[dict[str, Any]]:
     injection = float(hohmann(leo, MOON_DISTANCE, EARTH.mu).burns[0])
     low_lunar = MOON.radius + LUNAR_ORBIT_ALTITUDE
     return [
-        {"label": "trans-lunar injection", "formula": "number", "params": {"dv": round(injection, 1)},
-         "margin": 0.02, "isp": None},
-        {"label": "course corrections", "formula": "number", "params": {"dv": 40.0}, "margin": 0.0, "isp": None},
-        {"label": "lunar orbit insertion", "formula": "capture_burn",
-         "params": {"body": MOON.name, "periapsis_altitude": LUNAR_ORBIT_ALTITUDE,
-                    "apoapsis_altitude": LUNAR_ORBIT_ALTITUDE, "vinf": 800.0},
-         "margin": 0.05, "isp": None},
-        {"label": "plane trim at the Moon", "formula": "plane_change",
-         "params": {"v": round(float(circular_speed(low_lunar, MOON.mu)), 1), "angle": 3 * DEG},
-         "margin": 0.0, "isp": None},
+        {
+            "label": "trans-lunar injection",
+            "formula": "number",
+            "params": {"dv": round(injection, 1)},
+            "margin": 0.02,
+            "isp": None,
+        },
+        {
+            "label": "course corrections",
+            "formula": "number",
+            "params": {"dv": 40.0},
+            "margin": 0.0,
+            "isp": None,
+        },
+        {
+            "label": "lunar orbit insertion",
+            "formula": "capture_burn",
+            "params": {
+                "body": MOON.name,
+                "periapsis_altitude": LUNAR_ORBIT_ALTITUDE,
+                "apoapsis_altitude": LUNAR_ORBIT_ALTITUDE,
+                "vinf": 800.0,
+            },
+            "margin": 0.05,
+            "isp": None,
+        },
+        {
+            "label": "plane trim at the Moon",
+            "formula": "plane_change",
+            "params": {"v": round(float(circular_speed(low_lunar, MOON.mu)), 1), "angle": 3 * DEG},
+            "margin": 0.0,
+            "isp": None,
+        },
     ]
 
 
@@ -112,19 +135,33 @@ class BudgetBuilder(Panel):
         "propellant_left": ("usable propellant left", 1.0, "kg"),
     }
 
-    def __init__(self, *, name: str = "Halyard: Earth orbit to low lunar orbit", m0: float = float(HALYARD.vehicle.wet_mass),
-                 isp: float = HALYARD.vehicle.isp, dry_mass: float = HALYARD.vehicle.dry_mass,
-                 lines: list[dict[str, Any]] | None = None, path: str = "budget.json") -> None:
+    def __init__(
+        self,
+        *,
+        name: str = "Halyard: Earth orbit to low lunar orbit",
+        m0: float = float(HALYARD.vehicle.wet_mass),
+        isp: float = HALYARD.vehicle.isp,
+        dry_mass: float = HALYARD.vehicle.dry_mass,
+        lines: list[dict[str, Any]] | None = None,
+        path: str = "budget.json",
+    ) -> None:
         super().__init__()
-        self._lines: list[dict[str, Any]] = [_clean_line(line, i) for i, line in
-                                              enumerate(default_lines() if lines is None else lines)]
-        self._control("name", widgets.Text(value=name, description="budget name", layout=widgets.Layout(width="420px")))
+        self._lines: list[dict[str, Any]] = [
+            _clean_line(line, i) for i, line in enumerate(default_lines() if lines is None else lines)
+        ]
+        self._control(
+            "name", widgets.Text(value=name, description="budget name", layout=widgets.Layout(width="420px"))
+        )
         self._control("m0", number("starting mass (kg)", m0), 1.0)
         self._control("isp", number("specific impulse (s)", isp), 1.0)
         self._control("dry_mass", number("dry mass (kg, 0: not given)", dry_mass), 1.0)
-        self._control("lines", widgets.Select(options=[], rows=6, description="lines",
-                                              layout=widgets.Layout(width="640px")))
-        self._control("path", widgets.Text(value=path, description="file", layout=widgets.Layout(width="420px")))
+        self._control(
+            "lines",
+            widgets.Select(options=[], rows=6, description="lines", layout=widgets.Layout(width="640px")),
+        )
+        self._control(
+            "path", widgets.Text(value=path, description="file", layout=widgets.Layout(width="420px"))
+        )
         self.budget: Budget | None = None
         self._waterfall = None
         self._build_editor()
@@ -165,12 +202,24 @@ class BudgetBuilder(Panel):
         style = {"description_width": "initial"}
         self.form: dict[str, widgets.Widget] = {
             "label": widgets.Text(value="new line", description="label", style=style),
-            "formula": widgets.Dropdown(options=[(f.title, key) for key, f in FORMULAS.items()], value="number",
-                                        description="from", style=style),
-            "margin": widgets.FloatText(value=0.0, description="margin (%)", style=style,
-                                        layout=widgets.Layout(width=number_width("margin (%)"))),
-            "isp": widgets.FloatText(value=0.0, description="own Isp (s, 0: budget's)", style=style,
-                                     layout=widgets.Layout(width=number_width("own Isp (s, 0: budget's)"))),
+            "formula": widgets.Dropdown(
+                options=[(f.title, key) for key, f in FORMULAS.items()],
+                value="number",
+                description="from",
+                style=style,
+            ),
+            "margin": widgets.FloatText(
+                value=0.0,
+                description="margin (%)",
+                style=style,
+                layout=widgets.Layout(width=number_width("margin (%)")),
+            ),
+            "isp": widgets.FloatText(
+                value=0.0,
+                description="own Isp (s, 0: budget's)",
+                style=style,
+                layout=widgets.Layout(width=number_width("own Isp (s, 0: budget's)")),
+            ),
         }
         self._param_widgets: dict[str, dict[str, widgets.Widget]] = {}
         boxes = []
@@ -178,11 +227,20 @@ class BudgetBuilder(Panel):
             fields = {}
             for p in formula.parameters:
                 if p.scale is None:
-                    fields[p.key] = widgets.Dropdown(options=list(BODIES), value=p.default, description=p.label,
-                                                     style=style, layout=widgets.Layout(width="220px"))
+                    fields[p.key] = widgets.Dropdown(
+                        options=list(BODIES),
+                        value=p.default,
+                        description=p.label,
+                        style=style,
+                        layout=widgets.Layout(width="220px"),
+                    )
                 else:
-                    fields[p.key] = widgets.FloatText(value=round(p.default / p.scale, 6), description=p.label,
-                                                      style=style, layout=widgets.Layout(width=number_width(p.label)))
+                    fields[p.key] = widgets.FloatText(
+                        value=round(p.default / p.scale, 6),
+                        description=p.label,
+                        style=style,
+                        layout=widgets.Layout(width=number_width(p.label)),
+                    )
             self._param_widgets[key] = fields
             boxes.append(widgets.HBox(list(fields.values()), layout=widgets.Layout(flex_flow="row wrap")))
         self._param_boxes = dict(zip(FORMULAS, boxes))
@@ -197,13 +255,16 @@ class BudgetBuilder(Panel):
         for key, button in self.buttons.items():
             button.add_class(f"deltakit-budget-{key}")
             button.on_click(lambda _, key=key: self._edit(key))
-        self._editor_box = widgets.VBox([
-            widgets.HTML("<b>Line editor</b> (select a line above to edit it)"),
-            widgets.HBox([self.form["label"], self.form["formula"]]),
-            *boxes,
-            widgets.HBox([self.form["margin"], self.form["isp"]]),
-            widgets.HBox(list(self.buttons.values()), layout=widgets.Layout(flex_flow="row wrap")),
-        ], layout=widgets.Layout(border="1px solid #d0d7de", padding="4px", margin="4px 0"))
+        self._editor_box = widgets.VBox(
+            [
+                widgets.HTML("<b>Line editor</b> (select a line above to edit it)"),
+                widgets.HBox([self.form["label"], self.form["formula"]]),
+                *boxes,
+                widgets.HBox([self.form["margin"], self.form["isp"]]),
+                widgets.HBox(list(self.buttons.values()), layout=widgets.Layout(flex_flow="row wrap")),
+            ],
+            layout=widgets.Layout(border="1px solid #d0d7de", padding="4px", margin="4px 0"),
+        )
         self._show_params("number")
 
     def _show_params(self, formula: str) -> None:
@@ -221,9 +282,19 @@ class BudgetBuilder(Panel):
             raise DomainError(f"margin must be >= 0 % (got {margin * 100:g} %)")
         isp = float(self.form["isp"].value)
         if isp < 0.0:
-            raise DomainError(f"a line's own specific impulse must be > 0 s, or 0 for the budget's (got {isp:g} s)")
-        line = _clean_line({"label": self.form["label"].value, "formula": formula, "params": params,
-                            "margin": margin, "isp": isp or None}, len(self._lines))
+            raise DomainError(
+                f"a line's own specific impulse must be > 0 s, or 0 for the budget's (got {isp:g} s)"
+            )
+        line = _clean_line(
+            {
+                "label": self.form["label"].value,
+                "formula": formula,
+                "params": params,
+                "margin": margin,
+                "isp": isp or None,
+            },
+            len(self._lines),
+        )
         evaluate(formula, line["params"])  # refuse a line with no solution before it enters the budget
         return line
 
@@ -235,7 +306,9 @@ class BudgetBuilder(Panel):
         self.form["formula"].value = line["formula"]
         for p in FORMULAS[line["formula"]].parameters:
             value = line["params"][p.key]
-            self._param_widgets[line["formula"]][p.key].value = value if p.scale is None else round(value / p.scale, 9)
+            self._param_widgets[line["formula"]][p.key].value = (
+                value if p.scale is None else round(value / p.scale, 9)
+            )
         self.form["margin"].value = round(line["margin"] * 100.0, 9)
         self.form["isp"].value = line["isp"] or 0.0
 
@@ -272,15 +345,18 @@ class BudgetBuilder(Panel):
 
     # ------------------------------------------------------------------ files and exports
     def _build_exports(self) -> None:
-        self.file_buttons = {"save": widgets.Button(description="Save", icon="save"),
-                             "load": widgets.Button(description="Load", icon="folder-open")}
+        self.file_buttons = {
+            "save": widgets.Button(description="Save", icon="save"),
+            "load": widgets.Button(description="Load", icon="folder-open"),
+        }
         for key, button in self.file_buttons.items():
             button.add_class(f"deltakit-budget-{key}")
             button.on_click(lambda _, key=key: self._file(key))
         self.file_status = widgets.HTML("")
         self._file_box = widgets.HBox([self.controls["path"], *self.file_buttons.values(), self.file_status])
-        self.export_format = widgets.ToggleButtons(options=["Markdown", "LaTeX", "CSV"], value="Markdown",
-                                                   description="export")
+        self.export_format = widgets.ToggleButtons(
+            options=["Markdown", "LaTeX", "CSV"], value="Markdown", description="export"
+        )
         self.export_text = widgets.Textarea(value="", layout=widgets.Layout(width="100%", height="150px"))
         self.export_text.add_class("deltakit-export-text")
         self.export_link = widgets.HTML("")
@@ -300,12 +376,20 @@ class BudgetBuilder(Panel):
         kind = self.export_format.value
         text = self.exports()[kind]
         self.export_text.value = text
-        suffix, mime = {"Markdown": ("md", "text/markdown"), "LaTeX": ("tex", "application/x-tex"),
-                        "CSV": ("csv", "text/csv")}[kind]
-        stem = "".join(c if c.isalnum() or c in "-_" else "-" for c in self.controls["name"].value).strip("-") or "budget"
+        suffix, mime = {
+            "Markdown": ("md", "text/markdown"),
+            "LaTeX": ("tex", "application/x-tex"),
+            "CSV": ("csv", "text/csv"),
+        }[kind]
+        stem = (
+            "".join(c if c.isalnum() or c in "-_" else "-" for c in self.controls["name"].value).strip("-")
+            or "budget"
+        )
         data = base64.b64encode(text.encode("utf-8")).decode("ascii")
-        self.export_link.value = (f'<a download="{html.escape(stem)}.{suffix}" href="data:{mime};base64,{data}">'
-                                  f"Download {kind} ({stem}.{suffix})</a>")
+        self.export_link.value = (
+            f'<a download="{html.escape(stem)}.{suffix}" href="data:{mime};base64,{data}">'
+            f"Download {kind} ({stem}.{suffix})</a>"
+        )
 
     def _file(self, action: str) -> None:
         path = Path(self.controls["path"].value).expanduser()
@@ -316,8 +400,12 @@ class BudgetBuilder(Panel):
                 data = self.budget.to_dict()
                 for entry, line in zip(data["lines"], self._lines):
                     # keep the formula and its parameters with the line, so a load can edit them again
-                    entry["source"] = dict(entry["source"], formula=line["formula"], params=json_ready(line["params"]),
-                                           isp=line["isp"])
+                    entry["source"] = dict(
+                        entry["source"],
+                        formula=line["formula"],
+                        params=json_ready(line["params"]),
+                        isp=line["isp"],
+                    )
                 Budget.from_dict(data).save(path)
                 self.file_status.value = f"saved {html.escape(str(path))}"
             else:
@@ -326,14 +414,25 @@ class BudgetBuilder(Panel):
                 for line in budget.lines:
                     source = line.source
                     if "formula" in source and source["formula"] in FORMULAS:
-                        recipe = {"formula": source["formula"], "params": source.get("params", {}),
-                                  "isp": source.get("isp")}
+                        recipe = {
+                            "formula": source["formula"],
+                            "params": source.get("params", {}),
+                            "isp": source.get("isp"),
+                        }
                     else:
-                        recipe = {"formula": "number", "params": {"dv": line.dv},
-                                  "isp": None if line.ve is None else line.ve / G0}
+                        recipe = {
+                            "formula": "number",
+                            "params": {"dv": line.dv},
+                            "isp": None if line.ve is None else line.ve / G0,
+                        }
                     lines.append({"label": line.label, "margin": line.margin, **recipe})
-                self.set(name=budget.name, m0=budget.m0, isp=budget.ve / G0, dry_mass=budget.dry_mass or 0.0,
-                         lines=lines)
+                self.set(
+                    name=budget.name,
+                    m0=budget.m0,
+                    isp=budget.ve / G0,
+                    dry_mass=budget.dry_mass or 0.0,
+                    lines=lines,
+                )
                 self.file_status.value = f"loaded {html.escape(str(path))}"
         except (DomainError, ValueError, OSError) as err:
             self.file_status.value = ""
@@ -353,7 +452,9 @@ class BudgetBuilder(Panel):
             raise DomainError(f"specific impulse must be > 0 s (got {v['isp']:g} s).")
         dry = v["dry_mass"]
         if dry < 0.0 or (dry and dry >= v["m0"]):
-            raise DomainError(f"dry mass must be between 0 and the starting mass {v['m0']:g} kg (got {dry:g} kg).")
+            raise DomainError(
+                f"dry mass must be between 0 and the starting mass {v['m0']:g} kg (got {dry:g} kg)."
+            )
         budget = Budget(v["m0"], v["isp"] * G0, v["name"], dry_mass=dry or None)
         for index, line in enumerate(self._lines):
             try:
@@ -387,8 +488,10 @@ class BudgetBuilder(Panel):
         }
         notes = []
         if budget.first_infeasible is not None:
-            notes.append(f"Line {budget.first_infeasible + 1} ({budget.lines[budget.first_infeasible].label}) "
-                         "needs more propellant than is left above the dry mass: the budget does not close.")
+            notes.append(
+                f"Line {budget.first_infeasible + 1} ({budget.lines[budget.first_infeasible].label}) "
+                "needs more propellant than is left above the dry mass: the budget does not close."
+            )
         self._show_readouts(self._results, notes)
         self._show_export()
 

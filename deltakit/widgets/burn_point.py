@@ -86,9 +86,17 @@ class BurnPointExplorer(Panel):
         "gain_ratio": ("energy change / that at apoapsis", 1.0, ""),
     }
 
-    def __init__(self, *, body: str = RUSTLINE.body.name, periapsis_altitude: float = RUSTLINE.periapsis_altitude,
-                 apoapsis_altitude: float = RUSTLINE.apoapsis_altitude, dv: float = 100.0,
-                 direction: str = "prograde", angle: float = 0.0, nu: float = 30 * DEG) -> None:
+    def __init__(
+        self,
+        *,
+        body: str = RUSTLINE.body.name,
+        periapsis_altitude: float = RUSTLINE.periapsis_altitude,
+        apoapsis_altitude: float = RUSTLINE.apoapsis_altitude,
+        dv: float = 100.0,
+        direction: str = "prograde",
+        angle: float = 0.0,
+        nu: float = 30 * DEG,
+    ) -> None:
         super().__init__()
         self._control("body", choice("central body", list(BODIES), body, width="220px"))
         self._control("periapsis_altitude", number("periapsis altitude (km)", periapsis_altitude / KM), KM)
@@ -110,20 +118,45 @@ class BurnPointExplorer(Panel):
         fig = self._figure(7.6, 4.0)
         self.orbit_axes, self.energy_axes = fig.subplots(1, 2, gridspec_kw={"width_ratios": [1.0, 1.15]})
         placeholder = Conic.circular(RUSTLINE.body.radius * 2, RUSTLINE.body.mu)
-        before = draw_conic(self.orbit_axes, placeholder, body_radius=RUSTLINE.body.radius, label="before the burn")
+        before = draw_conic(
+            self.orbit_axes, placeholder, body_radius=RUSTLINE.body.radius, label="before the burn"
+        )
         burn = draw_burn(self.orbit_axes, placeholder, 0.0, 1.0)
         burn.after.orbit.set_label("after the burn")
         curve = plot_energy_gain(self.energy_axes, placeholder, 1.0, label="this burn, at each point")
-        (current,) = self.energy_axes.plot([0.0], [0.0], "o", color=COLOURS["burn"], markersize=7,
-                                           label="this burn point", zorder=5, clip_on=False)
-        (apo,) = self.energy_axes.plot([180.0], [0.0], "s", color=COLOURS["before"], markersize=6,
-                                       label="at apoapsis", zorder=5, clip_on=False)
+        (current,) = self.energy_axes.plot(
+            [0.0],
+            [0.0],
+            "o",
+            color=COLOURS["burn"],
+            markersize=7,
+            label="this burn point",
+            zorder=5,
+            clip_on=False,
+        )
+        (apo,) = self.energy_axes.plot(
+            [180.0],
+            [0.0],
+            "s",
+            color=COLOURS["before"],
+            markersize=6,
+            label="at apoapsis",
+            zorder=5,
+            clip_on=False,
+        )
         self.orbit_axes.set_aspect("equal", adjustable="box")
         self.orbit_axes.set_title("orbit in its plane", fontsize="medium")
         self.orbit_axes.legend(loc="upper left", fontsize="small", framealpha=0.85)
         # above the axes, where no curve can run under it
-        self.energy_axes.legend(loc="lower center", bbox_to_anchor=(0.5, 1.0), ncol=2, fontsize="small",
-                                frameon=False, columnspacing=1.0, handlelength=1.6)
+        self.energy_axes.legend(
+            loc="lower center",
+            bbox_to_anchor=(0.5, 1.0),
+            ncol=2,
+            fontsize="small",
+            frameon=False,
+            columnspacing=1.0,
+            handlelength=1.6,
+        )
         fig.subplots_adjust(left=0.125, right=0.975, bottom=0.13, top=0.86, wspace=0.32)
         self._artists = {"before": before, "burn": burn, "curve": curve, "current": current, "apoapsis": apo}
         # what a new burn point moves: redrawn alone over the rest of the figure
@@ -134,9 +167,13 @@ class BurnPointExplorer(Panel):
         body = BODIES[v["body"]]
         hp, ha = v["periapsis_altitude"], v["apoapsis_altitude"]
         if hp < 0.0:
-            raise DomainError(f"periapsis altitude {hp / KM:g} km is below the surface of {body.name} (must be >= 0 km).")
+            raise DomainError(
+                f"periapsis altitude {hp / KM:g} km is below the surface of {body.name} (must be >= 0 km)."
+            )
         if ha < hp:
-            raise DomainError(f"apoapsis altitude {ha / KM:g} km is below the periapsis altitude {hp / KM:g} km.")
+            raise DomainError(
+                f"apoapsis altitude {ha / KM:g} km is below the periapsis altitude {hp / KM:g} km."
+            )
         return Conic.from_apsides(body.radius + hp, body.radius + ha, body.mu), body
 
     @staticmethod
@@ -147,19 +184,24 @@ class BurnPointExplorer(Panel):
     def _update(self, changed: set[str]) -> None:
         v = self.values
         if v["dv"] < 0.0:
-            raise DomainError(f"delta-v must be >= 0 m/s (got {v['dv']:g}); choose the direction for its sense.")
+            raise DomainError(
+                f"delta-v must be >= 0 m/s (got {v['dv']:g}); choose the direction for its sense."
+            )
         self.controls["angle"].disabled = DIRECTIONS[v["direction"]][0] is not None
         conic, body = self._orbit(v)
         angle, reference = self._direction(v)
         nu, dv = v["nu"], v["dv"]
         outcome = burn_at_angle(conic, nu, dv, angle, reference=reference)
         if np.isnan(float(outcome.energy_change)):
-            raise DomainError(f"a {dv:g} m/s burn in this direction reverses the motion here: no orbit after it.")
+            raise DomainError(
+                f"a {dv:g} m/s burn in this direction reverses the motion here: no orbit after it."
+            )
         at_apoapsis = burn_at_angle(conic, math.pi, dv, angle, reference=reference)
         curve = None
         if changed & (_ORBIT_INPUTS | _BURN_INPUTS) or self._conic is None:
-            curve = energy_gain_curve(conic, dv, angle=angle, reference=reference,
-                                      n=len(self._artists["curve"].get_xdata()))
+            curve = energy_gain_curve(
+                conic, dv, angle=angle, reference=reference, n=len(self._artists["curve"].get_xdata())
+            )
         # everything computed: now move the artists
         after = outcome.after
         art = self._artists
@@ -177,8 +219,9 @@ class BurnPointExplorer(Panel):
             low, high = (float(finite_y.min()), float(finite_y.max())) if finite_y.size else (0.0, 1.0)
             limits_changed = sticky_limits(self.energy_axes, low, high, force=first)
             art["apoapsis"].set_data([180.0], [float(at_apoapsis.energy_change) / MJ_PER_KG])
-        art["current"].set_data([math.degrees(math.remainder(nu, 2 * math.pi))],
-                                [float(outcome.energy_change) / MJ_PER_KG])
+        art["current"].set_data(
+            [math.degrees(math.remainder(nu, 2 * math.pi))], [float(outcome.energy_change) / MJ_PER_KG]
+        )
         self._conic = conic
         self._fast = not (orbit_changed or limits_changed)
         # readouts
@@ -199,10 +242,15 @@ class BurnPointExplorer(Panel):
         }
         notes = []
         if float(after.e) >= 1.0:
-            notes.append(f"After the burn the orbit is open: the vehicle escapes {body.name} "
-                         f"with an excess speed of {float(after.vinf) / 1e3:.3f} km/s.")
+            notes.append(
+                f"After the burn the orbit is open: the vehicle escapes {body.name} "
+                f"with an excess speed of {float(after.vinf) / 1e3:.3f} km/s."
+            )
         if rp_after < body.radius:
-            notes.append(f"After the burn the periapsis lies below the surface of {body.name}: the orbit intersects the body.")
+            notes.append(
+                "After the burn the periapsis lies below the surface of "
+                f"{body.name}: the orbit intersects the body."
+            )
         self._show_readouts(self._results, notes)
 
     def _fit_orbit_axes(self, conic: Conic) -> None:

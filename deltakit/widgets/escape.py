@@ -65,19 +65,31 @@ class EscapeFlyby(Panel):
         "deflection": ("flyby: turn of the excess velocity", DEG, "deg"),
     }
 
-    def __init__(self, *, body: str = CINDERWREN.body.name,
-                 periapsis_altitude: float = CINDERWREN.periapsis_altitude,
-                 apoapsis_altitude: float = CINDERWREN.apoapsis_altitude, vinf: float = CINDERWREN.vinf,
-                 flyby_altitude: float = CINDERWREN.periapsis_altitude, flyby_dv: float = 300.0) -> None:
+    def __init__(
+        self,
+        *,
+        body: str = CINDERWREN.body.name,
+        periapsis_altitude: float = CINDERWREN.periapsis_altitude,
+        apoapsis_altitude: float = CINDERWREN.apoapsis_altitude,
+        vinf: float = CINDERWREN.vinf,
+        flyby_altitude: float = CINDERWREN.periapsis_altitude,
+        flyby_dv: float = 300.0,
+    ) -> None:
         super().__init__()
         self._control("body", choice("central body", list(BODIES), body, width="220px"))
-        self._control("periapsis_altitude", number("parking periapsis altitude (km)", periapsis_altitude / KM), KM)
-        self._control("apoapsis_altitude", number("parking apoapsis altitude (km)", apoapsis_altitude / KM), KM)
-        self._control("vinf", slider("excess speed v∞ (km/s)", vinf / 1e3, 0.0, 20.0, 0.05, readout_format=".2f"),
-                      1e3)
+        self._control(
+            "periapsis_altitude", number("parking periapsis altitude (km)", periapsis_altitude / KM), KM
+        )
+        self._control(
+            "apoapsis_altitude", number("parking apoapsis altitude (km)", apoapsis_altitude / KM), KM
+        )
+        self._control(
+            "vinf", slider("excess speed v∞ (km/s)", vinf / 1e3, 0.0, 20.0, 0.05, readout_format=".2f"), 1e3
+        )
         self._control("flyby_altitude", number("flyby periapsis altitude (km)", flyby_altitude / KM), KM)
-        self._control("flyby_dv", slider("flyby burn (m/s)", flyby_dv, 0.0, 3000.0, 10.0, readout_format=".0f"),
-                      1.0)
+        self._control(
+            "flyby_dv", slider("flyby burn (m/s)", flyby_dv, 0.0, 3000.0, 10.0, readout_format=".0f"), 1.0
+        )
         self._gains_key: tuple | None = None
         self._departure_key: tuple | None = None
         self._speed_top = 1000.0
@@ -91,37 +103,61 @@ class EscapeFlyby(Panel):
         fig = self._figure(7.6, 3.8)
         self.departure_axes, self.flyby_axes = fig.subplots(1, 2)
         ax = self.departure_axes
-        (self._at_periapsis,) = ax.plot([], [], color=COLOURS["hohmann"], linewidth=1.8, label="burn at periapsis")
-        (self._far,) = ax.plot([], [], color=COLOURS["reference"], linestyle="--", linewidth=1.6,
-                               label="escape, then burn far away")
-        (self._now,) = ax.plot([0.0, 0.0], [0.0, 0.0], "o", color=COLOURS["burn"], markersize=6,
-                               label="this v∞")
+        (self._at_periapsis,) = ax.plot(
+            [], [], color=COLOURS["hohmann"], linewidth=1.8, label="burn at periapsis"
+        )
+        (self._far,) = ax.plot(
+            [],
+            [],
+            color=COLOURS["reference"],
+            linestyle="--",
+            linewidth=1.6,
+            label="escape, then burn far away",
+        )
+        (self._now,) = ax.plot(
+            [0.0, 0.0], [0.0, 0.0], "o", color=COLOURS["burn"], markersize=6, label="this v∞"
+        )
         style_axes(ax, xlabel="excess speed v∞ (km/s)", ylabel="delta-v needed (km/s)", title="departure")
         ax.legend(loc="upper left", fontsize="small", framealpha=0.85)
         ax = self.flyby_axes
         self._gain_curves = []
         for factor, style, width in ((0.5, ":", 1.3), (1.0, "-", 1.9), (2.0, "--", 1.3)):
-            (line,) = ax.plot(_RADII, np.zeros_like(_RADII), color=COLOURS["burn"], linestyle=style, linewidth=width)
+            (line,) = ax.plot(
+                _RADII, np.zeros_like(_RADII), color=COLOURS["burn"], linestyle=style, linewidth=width
+            )
             self._gain_curves.append((factor, line))
-        (self._flyby_now,) = ax.plot([1.0], [0.0], "o", color=COLOURS["before"], markersize=7, label="this flyby",
-                                     zorder=5)
+        (self._flyby_now,) = ax.plot(
+            [1.0], [0.0], "o", color=COLOURS["before"], markersize=7, label="this flyby", zorder=5
+        )
         ax.set_xscale("log")
         ax.set_xlim(1.0, 50.0)
-        style_axes(ax, xlabel="flyby periapsis radius (body radii)", ylabel="gain beyond v∞ + dv (m/s)",
-                   title="powered flyby")
+        style_axes(
+            ax,
+            xlabel="flyby periapsis radius (body radii)",
+            ylabel="gain beyond v∞ + dv (m/s)",
+            title="powered flyby",
+        )
         fig.subplots_adjust(left=0.08, right=0.985, bottom=0.14, top=0.91, wspace=0.28)
-        self.view.animate(self._at_periapsis, self._far, self._now, *(line for _, line in self._gain_curves),
-                          self._flyby_now)
+        self.view.animate(
+            self._at_periapsis,
+            self._far,
+            self._now,
+            *(line for _, line in self._gain_curves),
+            self._flyby_now,
+        )
 
     def _update(self, changed: set[str]) -> None:
         v = self.values
         body = BODIES[v["body"]]
         hp, ha, hf = v["periapsis_altitude"], v["apoapsis_altitude"], v["flyby_altitude"]
         if hp < 0.0:
-            raise DomainError(f"parking periapsis altitude {hp / KM:g} km is below the surface of {body.name}.")
+            raise DomainError(
+                f"parking periapsis altitude {hp / KM:g} km is below the surface of {body.name}."
+            )
         if ha < hp:
-            raise DomainError(f"parking apoapsis altitude {ha / KM:g} km is below the periapsis altitude "
-                              f"{hp / KM:g} km.")
+            raise DomainError(
+                f"parking apoapsis altitude {ha / KM:g} km is below the periapsis altitude {hp / KM:g} km."
+            )
         if hf < 0.0:
             raise DomainError(f"flyby periapsis altitude {hf / KM:g} km is below the surface of {body.name}.")
         if v["vinf"] < 0.0 or v["flyby_dv"] < 0.0:
@@ -144,8 +180,10 @@ class EscapeFlyby(Panel):
         gains = None
         gains_key = (body.name, vinf, dv)
         if gains_key != self._gains_key:
-            gains = [np.asarray(powered_flyby(vinf, _RADII * body.radius, f * dv, body.mu).gain)
-                     for f, _ in self._gain_curves]
+            gains = [
+                np.asarray(powered_flyby(vinf, _RADII * body.radius, f * dv, body.mu).gain)
+                for f, _ in self._gain_curves
+            ]
         # computed: move the artists
         full = first or bool(changed & {"body", "flyby_dv"})
         if departure_curve is not None:

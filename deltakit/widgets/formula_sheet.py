@@ -48,13 +48,18 @@ def sheet_html(derivation: Any, *, steps: bool = True) -> str:
     parts.append(f"<b>Result</b>$$\\boxed{{{html.escape(d.result_tex(), quote=False)}}}$$")
     parts.append("<b>Symbols</b><table>")
     for info in d.symbols.values():
-        parts.append(f"<tr><td style='padding:0 10px 0 0'>${html.escape(info.latex, quote=False)}$</td>"
-                     f"<td style='padding:0 10px 0 0'>{html.escape(info.meaning, quote=False)}</td>"
-                     f"<td>{_unit(info.unit)}</td></tr>")
+        parts.append(
+            f"<tr><td style='padding:0 10px 0 0'>${html.escape(info.latex, quote=False)}$</td>"
+            f"<td style='padding:0 10px 0 0'>{html.escape(info.meaning, quote=False)}</td>"
+            f"<td>{_unit(info.unit)}</td></tr>"
+        )
     parts.append("</table>")
     if d.references:
-        parts.append("<p style='font-size:0.9em'><b>Literature:</b> "
-                     + html.escape("; ".join(d.references), quote=False) + ".</p>")
+        parts.append(
+            "<p style='font-size:0.9em'><b>Literature:</b> "
+            + html.escape("; ".join(d.references), quote=False)
+            + ".</p>"
+        )
     parts.append(f"<p style='font-size:0.9em'>Numeric twin: <code>{html.escape(d.twin)}</code></p>")
     return "".join(parts)
 
@@ -100,20 +105,33 @@ class FormulaSheet(Panel):
         self._derive = derive
         # titles are registered with the entries: the menu costs no derivation
         options = [(title, name) for name, title in titles().items()]
-        self._control("derivation", widgets.Dropdown(options=options, value=derivation, description="derivation",
-                                                     layout=widgets.Layout(width="420px")))
+        self._control(
+            "derivation",
+            widgets.Dropdown(
+                options=options,
+                value=derivation,
+                description="derivation",
+                layout=widgets.Layout(width="420px"),
+            ),
+        )
         self._control("steps", widgets.Checkbox(value=steps, description="show the steps"))
         self.sheet = widgets.HTMLMath(value="")
         self.sheet.add_class("deltakit-formula")
-        self.latex_text = widgets.Textarea(value="", description="LaTeX", layout=widgets.Layout(width="100%", height="120px"))
-        self.markdown_text = widgets.Textarea(value="", description="Markdown",
-                                              layout=widgets.Layout(width="100%", height="120px"))
+        self.latex_text = widgets.Textarea(
+            value="", description="LaTeX", layout=widgets.Layout(width="100%", height="120px")
+        )
+        self.markdown_text = widgets.Textarea(
+            value="", description="Markdown", layout=widgets.Layout(width="100%", height="120px")
+        )
         self.downloads = widgets.HTML("")
         self.downloads.add_class("deltakit-download")
         copy = widgets.Accordion(children=[widgets.VBox([self.latex_text, self.markdown_text])])
         copy.set_title(0, "LaTeX and Markdown to copy")
-        self._finish("Formula sheet: the derivation behind each number",
-                     [["derivation", "steps"]], extra=[self.sheet, copy, self.downloads])
+        self._finish(
+            "Formula sheet: the derivation behind each number",
+            [["derivation", "steps"]],
+            extra=[self.sheet, copy, self.downloads],
+        )
 
     def _update(self, changed: set[str]) -> None:
         v = self.values
@@ -125,9 +143,19 @@ class FormulaSheet(Panel):
         self.sheet.value = sheet
         self.latex_text.value = latex
         self.markdown_text.value = markdown
-        self.downloads.value = (_download(latex, f"{name}.tex", "application/x-tex", "Download LaTeX")
-                                + " &nbsp; " + _download(markdown, f"{name}.md", "text/markdown", "Download Markdown"))
-        self._results = {"name": name, "title": d.title, "result_latex": d.result_tex(), "latex": latex,
-                         "markdown": markdown}
-        self.readouts.value = (f"<div>Showing <b>{html.escape(d.title)}</b> (<code>{html.escape(name)}</code>), "
-                               f"{len(d.steps)} steps; numeric twin <code>{html.escape(d.twin)}</code>.</div>")
+        self.downloads.value = (
+            _download(latex, f"{name}.tex", "application/x-tex", "Download LaTeX")
+            + " &nbsp; "
+            + _download(markdown, f"{name}.md", "text/markdown", "Download Markdown")
+        )
+        self._results = {
+            "name": name,
+            "title": d.title,
+            "result_latex": d.result_tex(),
+            "latex": latex,
+            "markdown": markdown,
+        }
+        self.readouts.value = (
+            f"<div>Showing <b>{html.escape(d.title)}</b> (<code>{html.escape(name)}</code>), "
+            f"{len(d.steps)} steps; numeric twin <code>{html.escape(d.twin)}</code>.</div>"
+        )

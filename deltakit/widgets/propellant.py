@@ -35,7 +35,9 @@ GJ = 1.0e9
 #: Slider step of the speed, km/s (10 m/s).
 _SPEED_STEP = 0.01
 #: The circular speed of a 400 km Earth orbit (7668.6 m/s) on the slider's step: 7.67 km/s.
-_DEFAULT_SPEED = round(float(circular_speed(EARTH.radius + 400e3, EARTH.mu)) / 1e3 / _SPEED_STEP) * _SPEED_STEP * 1e3
+_DEFAULT_SPEED = (
+    round(float(circular_speed(EARTH.radius + 400e3, EARTH.mu)) / 1e3 / _SPEED_STEP) * _SPEED_STEP * 1e3
+)
 _RATIOS = np.linspace(0.0, 5.0, 501)
 
 
@@ -84,66 +86,125 @@ class PropellantTrade(Panel):
         "efficiency_end": ("propulsive efficiency at the end", 0.01, "%"),
     }
 
-    def __init__(self, *, dry_mass: float = HALYARD.vehicle.dry_mass,
-                 propellant_mass: float = HALYARD.vehicle.propellant_mass, mass_ratio: float | None = None,
-                 mass_input: str = "propellant mass", isp: float = HALYARD.vehicle.isp,
-                 exhaust_velocity: float | None = None, exhaust_input: str = "specific impulse",
-                 speed: float = _DEFAULT_SPEED) -> None:
+    def __init__(
+        self,
+        *,
+        dry_mass: float = HALYARD.vehicle.dry_mass,
+        propellant_mass: float = HALYARD.vehicle.propellant_mass,
+        mass_ratio: float | None = None,
+        mass_input: str = "propellant mass",
+        isp: float = HALYARD.vehicle.isp,
+        exhaust_velocity: float | None = None,
+        exhaust_input: str = "specific impulse",
+        speed: float = _DEFAULT_SPEED,
+    ) -> None:
         super().__init__()
         if mass_ratio is None:
             mass_ratio = (dry_mass + propellant_mass) / dry_mass if dry_mass > 0 else 1.0
         if exhaust_velocity is None:
             exhaust_velocity = isp * G0
         self._control("dry_mass", number("dry mass (kg)", dry_mass), 1.0)
-        self._control("mass_input", widgets.ToggleButtons(options=["propellant mass", "mass ratio"],
-                                                          value=mass_input, description="give"))
+        self._control(
+            "mass_input",
+            widgets.ToggleButtons(
+                options=["propellant mass", "mass ratio"], value=mass_input, description="give"
+            ),
+        )
         self._control("propellant_mass", number("propellant (kg)", propellant_mass), 1.0)
         self._control("mass_ratio", number("mass ratio m0/mf", mass_ratio, step=0.05), 1.0)
-        self._control("exhaust_input", widgets.ToggleButtons(options=["specific impulse", "exhaust velocity"],
-                                                             value=exhaust_input, description="give"))
+        self._control(
+            "exhaust_input",
+            widgets.ToggleButtons(
+                options=["specific impulse", "exhaust velocity"], value=exhaust_input, description="give"
+            ),
+        )
         self._control("isp", number("specific impulse (s)", isp), 1.0)
-        self._control("exhaust_velocity", number("exhaust velocity (km/s)", exhaust_velocity / 1e3, step=0.01), 1e3)
-        self._control("speed", slider("speed at the burn (km/s)", speed / 1e3, 0.0, 20.0, _SPEED_STEP,
-                                      readout_format=".2f"), 1e3)
+        self._control(
+            "exhaust_velocity", number("exhaust velocity (km/s)", exhaust_velocity / 1e3, step=0.01), 1e3
+        )
+        self._control(
+            "speed",
+            slider("speed at the burn (km/s)", speed / 1e3, 0.0, 20.0, _SPEED_STEP, readout_format=".2f"),
+            1e3,
+        )
         for toggle in ("mass_input", "exhaust_input"):
             self.controls[toggle].style = {"button_width": "130px", "description_width": "initial"}
         self._build_figure()
         self._finish(
             "Propellant trade: delta-v of a propellant load, and who gets its energy",
-            [["dry_mass"], ["mass_input"], ["propellant_mass", "mass_ratio"],
-             ["exhaust_input"], ["isp", "exhaust_velocity"], ["speed"]],
+            [
+                ["dry_mass"],
+                ["mass_input"],
+                ["propellant_mass", "mass_ratio"],
+                ["exhaust_input"],
+                ["isp", "exhaust_velocity"],
+                ["speed"],
+            ],
         )
 
     def _build_figure(self) -> None:
         fig = self._figure(7.6, 4.2)
         self.energy_axes, self.efficiency_axes = fig.subplots(1, 2, gridspec_kw={"width_ratios": [1.0, 1.2]})
         names = ["vehicle", "exhaust", "total"]
-        self._bars = self.energy_axes.barh(names, [0.0, 0.0, 0.0], color=[COLOURS[n] for n in names], height=0.6)
+        self._bars = self.energy_axes.barh(
+            names, [0.0, 0.0, 0.0], color=[COLOURS[n] for n in names], height=0.6
+        )
         self.energy_axes.axvline(0.0, color="#333333", linewidth=0.8)
         self.energy_axes.invert_yaxis()
         style_axes(self.energy_axes, xlabel="kinetic energy gained (GJ)", title="energy of the burn")
         self.energy_axes.grid(False, axis="y")
         ax = self.efficiency_axes
-        (self._efficiency,) = ax.plot(_RATIOS, propulsive_efficiency(_RATIOS, 1.0), color=COLOURS["before"],
-                                      linewidth=1.8, label="propulsive efficiency")
+        (self._efficiency,) = ax.plot(
+            _RATIOS,
+            propulsive_efficiency(_RATIOS, 1.0),
+            color=COLOURS["before"],
+            linewidth=1.8,
+            label="propulsive efficiency",
+        )
         self.share_axes = ax.twinx()
-        (self._share,) = self.share_axes.plot(_RATIOS, np.zeros_like(_RATIOS), color=COLOURS["after"],
-                                              linewidth=1.8, linestyle="--",
-                                              label="vehicle's gain / energy released (right)")
-        self.share_axes.set_ylabel("vehicle's gain / energy released\n(ratio)", color=COLOURS["after"],
-                                   fontsize="small")
+        (self._share,) = self.share_axes.plot(
+            _RATIOS,
+            np.zeros_like(_RATIOS),
+            color=COLOURS["after"],
+            linewidth=1.8,
+            linestyle="--",
+            label="vehicle's gain / energy released (right)",
+        )
+        self.share_axes.set_ylabel(
+            "vehicle's gain / energy released\n(ratio)", color=COLOURS["after"], fontsize="small"
+        )
         self.share_axes.tick_params(axis="y", colors=COLOURS["after"])
-        (self._span,) = ax.plot([0.0, 0.0], [0.0, 0.0], color=COLOURS["burn"], linewidth=5, alpha=0.35,
-                                solid_capstyle="butt", label="during this burn")
-        (self._now,) = ax.plot([0.0], [0.0], "o", color=COLOURS["burn"], markersize=7, label="this burn (start)")
+        (self._span,) = ax.plot(
+            [0.0, 0.0],
+            [0.0, 0.0],
+            color=COLOURS["burn"],
+            linewidth=5,
+            alpha=0.35,
+            solid_capstyle="butt",
+            label="during this burn",
+        )
+        (self._now,) = ax.plot(
+            [0.0], [0.0], "o", color=COLOURS["burn"], markersize=7, label="this burn (start)"
+        )
         (self._share_now,) = self.share_axes.plot([0.0], [0.0], "s", color=COLOURS["after"], markersize=6)
-        style_axes(ax, xlabel="speed at the start / exhaust velocity, v/ve", ylabel="propulsive efficiency",
-                   title="efficiency against speed")
+        style_axes(
+            ax,
+            xlabel="speed at the start / exhaust velocity, v/ve",
+            ylabel="propulsive efficiency",
+            title="efficiency against speed",
+        )
         ax.set_ylim(0.0, 1.05)
         handles = [self._efficiency, self._share, self._span, self._now]
         # below both plots, where it covers no curve whatever the speed
-        fig.legend(handles, [h.get_label() for h in handles], loc="lower center", bbox_to_anchor=(0.5, 0.0),
-                   ncol=2, fontsize="small", frameon=False)
+        fig.legend(
+            handles,
+            [h.get_label() for h in handles],
+            loc="lower center",
+            bbox_to_anchor=(0.5, 0.0),
+            ncol=2,
+            fontsize="small",
+            frameon=False,
+        )
         fig.subplots_adjust(left=0.12, right=0.86, bottom=0.26, top=0.92, wspace=0.36)
         self.view.animate(*self._bars.patches, self._span, self._now, self._share_now)
 
@@ -218,10 +279,14 @@ class PropellantTrade(Panel):
         }
         notes = []
         if ratio_end > _RATIOS[-1]:
-            notes.append(f"The burn ends beyond v/ve = {_RATIOS[-1]:g}, off the right edge of the efficiency plot.")
+            notes.append(
+                f"The burn ends beyond v/ve = {_RATIOS[-1]:g}, off the right edge of the efficiency plot."
+            )
         if float(split.ejecta) < 0.0:
-            notes.append("The exhaust ends with less kinetic energy than it had in the tank: the vehicle "
-                         "gains more than the propellant's chemical energy alone (Oberth effect).")
+            notes.append(
+                "The exhaust ends with less kinetic energy than it had in the tank: the vehicle "
+                "gains more than the propellant's chemical energy alone (Oberth effect)."
+            )
         self._show_readouts(self._results, notes)
 
     def _mirror(self, ratio: float, propellant: float, ve: float) -> None:

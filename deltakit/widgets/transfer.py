@@ -80,8 +80,15 @@ class TransferTrade(Panel):
         "plane_change_all_second": ("... all of the turn at burn 2", 1e3, "km/s"),
     }
 
-    def __init__(self, *, body: str = EARTH.name, r1: float = EARTH.radius + 400e3, r2: float = 120_000e3,
-                 rb: float = 240_000e3, plane_change: float = 28.5 * DEG) -> None:
+    def __init__(
+        self,
+        *,
+        body: str = EARTH.name,
+        r1: float = EARTH.radius + 400e3,
+        r2: float = 120_000e3,
+        rb: float = 240_000e3,
+        plane_change: float = 28.5 * DEG,
+    ) -> None:
         super().__init__()
         self._control("body", choice("central body", list(BODIES), body, width="220px"))
         self._control("r1", number("initial radius (km)", r1 / KM), KM)
@@ -104,58 +111,110 @@ class TransferTrade(Panel):
         self._transfer = draw_transfer(self.orbit_axes, 7000e3, 20000e3, rb=30000e3, body_radius=EARTH.radius)
         self.orbit_axes.set_aspect("equal", adjustable="box")
         self.orbit_axes.set_title("transfers to scale", fontsize="medium")
-        self.orbit_axes.legend(loc="upper center", bbox_to_anchor=(0.5, -0.17), ncol=2, fontsize="small",
-                               frameon=False)
+        self.orbit_axes.legend(
+            loc="upper center", bbox_to_anchor=(0.5, -0.17), ncol=2, fontsize="small", frameon=False
+        )
 
         ax = self.ratio_axes
-        (self._hohmann_curve,) = ax.plot(_RATIOS, np.zeros_like(_RATIOS), color=COLOURS["hohmann"], linewidth=1.8,
-                                         label="Hohmann")
-        (self._bielliptic_curve,) = ax.plot(_RATIOS, np.zeros_like(_RATIOS), color=COLOURS["bielliptic"],
-                                            linestyle="--", linewidth=1.6, label="bi-elliptic, this rb/r1")
-        (self._limit_curve,) = ax.plot(_RATIOS, np.zeros_like(_RATIOS), color=COLOURS["bielliptic"], linestyle=":",
-                                       linewidth=1.4, label="bi-elliptic, rb far away")
-        for ratio, style, label in ((BIELLIPTIC_BREAK_EVEN_RATIO, "-.", "break-even, rb far away"),
-                                    (BIELLIPTIC_ALWAYS_BETTER_RATIO, ":", "bi-elliptic wins for any rb > r2")):
+        (self._hohmann_curve,) = ax.plot(
+            _RATIOS, np.zeros_like(_RATIOS), color=COLOURS["hohmann"], linewidth=1.8, label="Hohmann"
+        )
+        (self._bielliptic_curve,) = ax.plot(
+            _RATIOS,
+            np.zeros_like(_RATIOS),
+            color=COLOURS["bielliptic"],
+            linestyle="--",
+            linewidth=1.6,
+            label="bi-elliptic, this rb/r1",
+        )
+        (self._limit_curve,) = ax.plot(
+            _RATIOS,
+            np.zeros_like(_RATIOS),
+            color=COLOURS["bielliptic"],
+            linestyle=":",
+            linewidth=1.4,
+            label="bi-elliptic, rb far away",
+        )
+        for ratio, style, label in (
+            (BIELLIPTIC_BREAK_EVEN_RATIO, "-.", "break-even, rb far away"),
+            (BIELLIPTIC_ALWAYS_BETTER_RATIO, ":", "bi-elliptic wins for any rb > r2"),
+        ):
             ax.axvline(ratio, color=COLOURS["reference"], linewidth=0.9, linestyle=style, label=label)
         # the values sit just above the frame, where the moving "this r2/r1" line (clipped to the axes)
         # can never cross them, one left and one right of its line so they never overlap each other
-        for ratio, align in ((BIELLIPTIC_BREAK_EVEN_RATIO, "right"), (BIELLIPTIC_ALWAYS_BETTER_RATIO, "left")):
-            ax.text(ratio, 1.01, f"{ratio:.4g}", transform=ax.get_xaxis_transform(), ha=align, va="bottom",
-                    fontsize="x-small", color=COLOURS["reference"])
+        for ratio, align in (
+            (BIELLIPTIC_BREAK_EVEN_RATIO, "right"),
+            (BIELLIPTIC_ALWAYS_BETTER_RATIO, "left"),
+        ):
+            ax.text(
+                ratio,
+                1.01,
+                f"{ratio:.4g}",
+                transform=ax.get_xaxis_transform(),
+                ha=align,
+                va="bottom",
+                fontsize="x-small",
+                color=COLOURS["reference"],
+            )
         self._ratio_now = ax.axvline(1.0, color=COLOURS["burn"], linewidth=1.4, label="this r2/r1")
         ax.set_xscale("log")
         ax.set_xlim(1.0, 100.0)
-        style_axes(ax, xlabel="radius ratio r2/r1", ylabel="total delta-v / initial speed",
-                   title="total delta-v against radius ratio")
+        style_axes(
+            ax,
+            xlabel="radius ratio r2/r1",
+            ylabel="total delta-v / initial speed",
+            title="total delta-v against radius ratio",
+        )
         ax.set_title(ax.get_title(), fontsize="medium", pad=12)  # room for the break-even values
         self._ratio_legend()
 
         ax = self.split_axes
-        (self._split_curve,) = ax.plot(_FRACTIONS * 100, np.zeros_like(_FRACTIONS), color=COLOURS["hohmann"],
-                                       linewidth=1.8, label="Hohmann + plane change")
-        (self._split_best,) = ax.plot([0.0], [0.0], "o", color=COLOURS["burn"], markersize=7, label="best split",
-                                      clip_on=False)
+        (self._split_curve,) = ax.plot(
+            _FRACTIONS * 100,
+            np.zeros_like(_FRACTIONS),
+            color=COLOURS["hohmann"],
+            linewidth=1.8,
+            label="Hohmann + plane change",
+        )
+        (self._split_best,) = ax.plot(
+            [0.0], [0.0], "o", color=COLOURS["burn"], markersize=7, label="best split", clip_on=False
+        )
         ax.set_xlim(0.0, 100.0)
-        style_axes(ax, xlabel="share of the plane change made at burn 1 (%)", ylabel="total delta-v (km/s)",
-                   title="splitting the plane change")
+        style_axes(
+            ax,
+            xlabel="share of the plane change made at burn 1 (%)",
+            ylabel="total delta-v (km/s)",
+            title="splitting the plane change",
+        )
         ax.legend(loc="upper left", fontsize="x-small", framealpha=0.85)
         self.view.animate(self._split_curve, self._split_best)
         fig.subplots_adjust(left=0.14, right=0.97, bottom=0.08, top=0.92, wspace=0.34, hspace=0.5)
 
     def _ratio_legend(self) -> None:
-        """The radius-ratio plot's legend, under the orbit drawing: inside its own axes it would cover curves."""
-        self.ratio_axes.legend(loc="upper center", bbox_to_anchor=(0.42, -0.37), bbox_transform=self.orbit_axes.transAxes,
-                               ncol=2, fontsize="x-small", frameon=False, title="total delta-v plot",
-                               title_fontsize="x-small")
+        """The radius-ratio plot's legend, under the orbit drawing.
+
+        Inside its own axes it would cover curves.
+        """
+        self.ratio_axes.legend(
+            loc="upper center",
+            bbox_to_anchor=(0.42, -0.37),
+            bbox_transform=self.orbit_axes.transAxes,
+            ncol=2,
+            fontsize="x-small",
+            frameon=False,
+            title="total delta-v plot",
+            title_fontsize="x-small",
+        )
 
     def _update(self, changed: set[str]) -> None:
         v = self.values
         body = BODIES[v["body"]]
         r1, r2, rb, angle = v["r1"], v["r2"], v["rb"], v["plane_change"]
-        for name, label, r in (("r1", "initial", r1), ("r2", "final", r2)):
+        for label, r in (("initial", r1), ("final", r2)):
             if r <= body.radius:
-                raise DomainError(f"{label} radius {r / KM:g} km is inside {body.name} "
-                                  f"(radius {body.radius / KM:g} km).")
+                raise DomainError(
+                    f"{label} radius {r / KM:g} km is inside {body.name} (radius {body.radius / KM:g} km)."
+                )
         if rb <= body.radius:
             raise DomainError(f"intermediate radius {rb / KM:g} km is inside {body.name}.")
         if not 0.0 <= angle <= math.pi:
@@ -167,8 +226,11 @@ class TransferTrade(Panel):
         key = (round(rb / r1, 12),)
         if key != self._curve_key:
             with np.errstate(invalid="ignore"):
-                curves = (hohmann(1.0, _RATIOS, 1.0).total, bielliptic(1.0, _RATIOS, rb / r1, 1.0).total,
-                          bielliptic(1.0, _RATIOS, _FAR, 1.0).total)
+                curves = (
+                    hohmann(1.0, _RATIOS, 1.0).total,
+                    bielliptic(1.0, _RATIOS, rb / r1, 1.0).total,
+                    bielliptic(1.0, _RATIOS, _FAR, 1.0).total,
+                )
         split_totals = hohmann_plane_change(r1, r2, body.mu, angle, _FRACTIONS).total
         best = float(best_plane_change_split(r1, r2, body.mu, angle))
         best_total = float(hohmann_plane_change(r1, r2, body.mu, angle, best).total)
@@ -214,9 +276,13 @@ class TransferTrade(Panel):
         }
         notes = []
         if rb < max(r1, r2):
-            notes.append("No bi-elliptic transfer: the intermediate radius must be at least the larger of "
-                         "the two orbit radii.")
+            notes.append(
+                "No bi-elliptic transfer: the intermediate radius must be at least the larger of "
+                "the two orbit radii."
+            )
         if r2 < r1:
-            notes.append("The final orbit is below the initial one: the ratio plot uses the larger over the "
-                         "smaller radius (the totals are the same both ways).")
+            notes.append(
+                "The final orbit is below the initial one: the ratio plot uses the larger over the "
+                "smaller radius (the totals are the same both ways)."
+            )
         self._show_readouts(self._results, notes)
