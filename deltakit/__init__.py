@@ -40,6 +40,7 @@ _NAMES: dict[str, str] = {
     # impulsive burns
     "burn": "burns",
     "burn_prograde": "burns",
+    "burn_at_angle": "burns",
     "energy_gain": "burns",
     "BurnOutcome": "burns",
     # transfers and plane changes

@@ -41,11 +41,12 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import finite, nonnegative, scalar_or_array
+from ._checks import finite, instance_of, nonnegative, scalar_or_array
 from ._results import Result, quantity
 from .conic import Conic
+from .errors import DomainError
 
-__all__ = ["BurnOutcome", "burn", "burn_prograde", "energy_gain"]
+__all__ = ["BurnOutcome", "burn", "burn_at_angle", "burn_prograde", "energy_gain"]
 
 
 @dataclass(frozen=True, repr=False, eq=False)
@@ -237,8 +238,7 @@ def _outcome(
 
 
 def _elements(conic: Conic) -> tuple[np.ndarray, ...]:
-    if not isinstance(conic, Conic):
-        raise TypeError(f"`conic` must be a deltakit.Conic, not {type(conic).__name__}")
+    instance_of(conic, Conic, "conic")
     return tuple(np.asarray(getattr(conic, name), dtype=float) for name in ("rp", "e", "mu", "argp"))
 
 
@@ -375,3 +375,33 @@ def energy_gain(v: ArrayLike, dv: ArrayLike) -> Any:
     v = nonnegative(v, "v", "m/s")
     dv = finite(dv, "dv", "m/s")
     return scalar_or_array(dv * (v + 0.5 * dv))
+
+
+def burn_at_angle(conic: Conic, nu: Any, dv: Any, angle: Any = 0.0, *, reference: str = "velocity"):
+    """An impulsive in-plane burn of size ``dv`` turned ``angle`` from a reference.
+
+    With ``reference="velocity"`` (default) ``angle`` (rad) is measured from
+    the velocity towards the outward side: 0 prograde, pi retrograde, pi/2
+    perpendicular to the velocity, outwards. In the radial/transverse frame the
+    burn then points at ``angle + gamma`` from the transverse direction, gamma
+    being the flight-path angle. With ``reference="transverse"`` the angle is
+    measured from the transverse direction towards the radial one (pi/2 is a
+    purely radial, outward burn). Thin wrapper over :func:`burn`;
+    broadcasts.
+
+    Examples
+    --------
+    >>> from deltakit import Conic, burn_at_angle
+    >>> out = burn_at_angle(Conic.circular(7000e3, 3.986e14), 0.0, 100.0)
+    >>> round(float(out.after.ra) / 1e3)
+    7384
+    """
+    dv = finite(dv, "dv", "m/s")
+    angle = finite(angle, "angle", "rad")
+    if reference == "velocity":
+        direction = angle + np.asarray(conic.flight_path_angle(nu))
+    elif reference == "transverse":
+        direction = angle
+    else:
+        raise DomainError(f"`reference` must be 'velocity' or 'transverse', not {reference!r}")
+    return burn(conic, nu, radial=dv * np.sin(direction), transverse=dv * np.cos(direction))

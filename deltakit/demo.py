@@ -35,6 +35,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ._text import CAUTION as _CAUTION
 from .constants import EARTH, G0, JUPITER, MARS, CentralBody
 
 __all__ = [
@@ -55,11 +56,7 @@ __all__ = [
 MOON_DISTANCE: float = 384_400e3
 
 #: The caution every notebook and panel shows near the top.
-CAUTION: str = (
-    "Preliminary analysis only, not for flight operations. The missions and "
-    "vehicles here are invented for demonstration; defer to the mission's "
-    "verified tools, local rules and licensed practice."
-)
+CAUTION: str = f"The missions and vehicles here are invented for demonstration. {_CAUTION}"
 
 
 @dataclass(frozen=True)

@@ -27,5 +27,5 @@ class DomainError(ValueError):
     ...     dk.circular_speed(-1.0, 3.986e14)
     ... except dk.DomainError as err:
     ...     print(err)
-    `r` must be > 0 m, got -1.0
+    `r` must be > 0 m, got -1.0 m
     """

@@ -37,7 +37,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import finite, nonnegative, positive, require, scalar_or_array
+from ._checks import finite, instance_of, nonnegative, positive, require, scalar_or_array
 from ._results import Result, quantity
 from ._rk853 import integrate
 from .conic import Conic, elements_from_state
@@ -226,8 +226,7 @@ def thrust_arc(
     >>> 50 < float(out.loss) < 120  # m/s lost to the long arc
     True
     """
-    if not isinstance(conic, Conic):
-        raise DomainError(f"`conic` must be a deltakit.Conic, got {type(conic).__name__}")
+    instance_of(conic, Conic, "conic")
     thrust = positive(thrust, "thrust", "N")
     ve = positive(ve, "ve", "m/s")
     m0 = positive(m0, "m0", "kg")
@@ -371,8 +370,7 @@ def loss_table(
     """
     import pandas as pd
 
-    if not isinstance(conic, Conic):
-        raise DomainError(f"`conic` must be a deltakit.Conic, got {type(conic).__name__}")
+    instance_of(conic, Conic, "conic")
     if conic.shape != ():
         raise DomainError(f"`conic` must be one orbit for a table, got element shape {conic.shape}")
     ratio = positive(np.atleast_1d(thrust_to_weight), "thrust_to_weight")

@@ -27,9 +27,8 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import finite, nonnegative, require, scalar_or_array
+from ._checks import finite, instance_of, nonnegative, require, scalar_or_array
 from .conic import Conic
-from .errors import DomainError
 
 __all__ = [
     "mean_to_eccentric",
@@ -286,8 +285,7 @@ def _solve(x, M, e, residual, lower, upper):
 
 # ---------------------------------------------------------------------- on a conic
 def _conic(conic: Any) -> Conic:
-    if not isinstance(conic, Conic):
-        raise DomainError(f"`conic` must be a deltakit.Conic, got {type(conic).__name__}")
+    instance_of(conic, Conic, "conic")
     return conic
 
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import as_float, nonnegative, positive, require, scalar_or_array
+from ._checks import nonnegative, nonzero, positive, scalar_or_array
 
 __all__ = ["circular_speed", "escape_speed", "vis_viva", "specific_energy"]
 
@@ -80,8 +80,7 @@ def vis_viva(r: ArrayLike, a: ArrayLike, mu: ArrayLike) -> np.floating | np.ndar
     7546.053
     """
     r = positive(r, "r", "m")
-    a = as_float(a, "a")
-    require(a, np.isnan(a) | (a == 0.0), "a", "non-zero and not NaN", "m")
+    a = nonzero(a, "a", "m")
     mu = positive(mu, "mu", "m^3/s^2")
     with np.errstate(invalid="ignore"):
         speed_squared = mu * (2.0 / r - 1.0 / a)

@@ -99,7 +99,7 @@ def _message(call) -> str:
 
 def test_message_gives_units_and_first_bad_element():
     message = _message(lambda: dk.circular_speed([[7e6, 8e6], [9e6, -5.0]], MU))
-    assert message == "`r` must be > 0 m: 1 of 4 elements break this rule (first at index (1, 1): -5.0)"
+    assert message == "`r` must be > 0 m: 1 of 4 elements break this rule (first at index (1, 1): -5.0 m)"
 
 
 def test_infeasible_elements_are_nan_and_the_rest_untouched():

@@ -350,7 +350,6 @@ def test_broadcasting_scalars_and_repr():
         (dict(steering="radial"), r"`steering` must be one of 'prograde', 'inertial', not 'radial'"),
         (dict(splits=0), r"`splits` must be a whole number >= 1"),
         (dict(splits=1.5), r"`splits` must be a whole number >= 1"),
-        (dict(conic=(7000e3, 0.1)), r"`conic` must be a deltakit.Conic"),
     ],
 )
 def test_bad_input_names_the_parameter(kwargs, match):
@@ -358,6 +357,12 @@ def test_bad_input_names_the_parameter(kwargs, match):
     arguments.update(kwargs)
     with pytest.raises(DomainError, match=match):
         thrust_arc(**arguments)
+
+
+def test_a_conic_of_the_wrong_type_is_a_type_error():
+    # One Conic type check for every function that takes one: a TypeError naming `conic`.
+    with pytest.raises(TypeError, match=r"`conic` must be a deltakit.Conic, not tuple"):
+        thrust_arc((7000e3, 0.1), thrust=100.0, ve=3000.0, m0=500.0, dv=100.0)
 
 
 def test_loss_table():

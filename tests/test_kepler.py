@@ -275,7 +275,6 @@ def test_broadcasting_and_scalars():
         (lambda: mean_to_eccentric(1.0, -0.1), r"`e` must be >= 0"),
         (lambda: mean_to_hyperbolic(1.0, 1.0), r"`e` must be > 1"),
         (lambda: hyperbolic_to_mean(np.inf, 2.0), r"`H` must be finite"),
-        (lambda: mean_anomaly("not a conic", 1.0), r"`conic` must be a deltakit.Conic"),
         (lambda: propagate(Conic(7000e3, 0.1, 3.986e14), 0.0, np.nan), r"`dt` must be finite"),
         (lambda: time_of_flight(Conic(7000e3, 0.1, 3.986e14), np.inf, 0.0), r"`nu1` must be finite"),
     ],
@@ -283,6 +282,11 @@ def test_broadcasting_and_scalars():
 def test_bad_input_names_the_parameter(call, match):
     with pytest.raises(DomainError, match=match):
         call()
+
+
+def test_a_conic_of_the_wrong_type_is_a_type_error():
+    with pytest.raises(TypeError, match=r"`conic` must be a deltakit.Conic, not str"):
+        mean_anomaly("not a conic", 1.0)
 
 
 @pytest.mark.parametrize("E", [1e-6, 1e-3, 0.05, 0.5, 0.99, 1.01, 2.0])

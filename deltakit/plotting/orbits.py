@@ -19,7 +19,8 @@ from matplotlib.patches import Circle
 from matplotlib.quiver import Quiver
 from matplotlib.ticker import MaxNLocator
 
-from .._checks import finite, positive
+from .._checks import instance_of, positive
+from ..burns import burn_at_angle
 from ..conic import Conic
 from ..errors import DomainError
 from ._style import COLOURS, KM, style_axes
@@ -69,8 +70,7 @@ class TransferArtists(NamedTuple):
 
 
 def _one(conic: Conic, name: str = "conic") -> Conic:
-    if not isinstance(conic, Conic):
-        raise DomainError(f"`{name}` must be a deltakit.Conic, not {type(conic).__name__}")
+    instance_of(conic, Conic, name)
     if conic.shape != ():
         raise DomainError(f"`{name}` must be a single orbit to draw, got elements of shape {conic.shape}")
     return conic
@@ -191,38 +191,6 @@ def update_conic(
     if artists.body is not None and body_radius is not None:
         artists.body.set_radius(float(body_radius) / KM)
     return artists
-
-
-def burn_at_angle(conic: Conic, nu: Any, dv: Any, angle: Any = 0.0, *, reference: str = "velocity"):
-    """An impulsive in-plane burn of size ``dv`` turned ``angle`` from a reference.
-
-    With ``reference="velocity"`` (default) ``angle`` (rad) is measured from
-    the velocity towards the outward side: 0 prograde, pi retrograde, pi/2
-    perpendicular to the velocity, outwards. In the radial/transverse frame the
-    burn then points at ``angle + gamma`` from the transverse direction, gamma
-    being the flight-path angle. With ``reference="transverse"`` the angle is
-    measured from the transverse direction towards the radial one (pi/2 is a
-    purely radial, outward burn). Thin wrapper over :func:`deltakit.burn`;
-    broadcasts.
-
-    Examples
-    --------
-    >>> from deltakit import Conic
-    >>> out = burn_at_angle(Conic.circular(7000e3, 3.986e14), 0.0, 100.0)
-    >>> round(float(out.after.ra) / 1e3)
-    7384
-    """
-    from ..burns import burn
-
-    dv = finite(dv, "dv", "m/s")
-    angle = finite(angle, "angle", "rad")
-    if reference == "velocity":
-        direction = angle + np.asarray(conic.flight_path_angle(nu))
-    elif reference == "transverse":
-        direction = angle
-    else:
-        raise DomainError(f"`reference` must be 'velocity' or 'transverse', not {reference!r}")
-    return burn(conic, nu, radial=dv * np.sin(direction), transverse=dv * np.cos(direction))
 
 
 def _arrow_vector(

@@ -17,7 +17,7 @@ from typing import Any, NamedTuple
 import numpy as np
 import sympy as sp
 
-from .._checks import as_float, finite, nonnegative, positive, require, scalar_or_array
+from .._checks import finite, nonnegative, nonzero, positive, scalar_or_array
 
 __all__ = ["Derivation", "Meaning"]
 
@@ -313,15 +313,7 @@ class Derivation:
         return twin
 
 
-def _nonzero(value: Any, name: str, unit: str = "") -> np.ndarray:
-    array = as_float(value, name)
-    bad = np.isnan(array) | (array == 0.0)
-    if bad.any():
-        require(array, bad, name, "non-zero and not NaN", unit)
-    return array
-
-
-_CHECKS = {"> 0": positive, ">= 0": nonnegative, "finite": finite, "non-zero": _nonzero}
+_CHECKS = {"> 0": positive, ">= 0": nonnegative, "finite": finite, "non-zero": nonzero}
 
 
 def _numpy_callable(

@@ -7,15 +7,13 @@ import tempfile
 from collections.abc import Iterable
 from pathlib import Path
 
+from .._text import CAUTION
 from ._registry import derive
 from .derivation import escape_text, text_tex, unit_tex
 
 __all__ = ["report"]
 
-DISCLAIMER = (
-    "Results are for preliminary analysis, not for flight operations; defer to the "
-    "mission's verified tools, local rules and licensed practice."
-)
+DISCLAIMER = CAUTION
 
 _PREAMBLE = r"""\documentclass[11pt]{article}
 \usepackage{amsmath,amssymb}

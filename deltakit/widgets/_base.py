@@ -22,15 +22,11 @@ import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
+from .._text import CAUTION
 from ..errors import DomainError
 
 __all__ = ["CAUTION", "FigureView", "Panel", "figure_mode", "json_ready", "on_slider_grid"]
 
-#: The small print every panel shows.
-CAUTION = (
-    "Results are for preliminary analysis, not for flight operations; defer to the "
-    "mission's verified tools, local rules and licensed practice."
-)
 
 #: Significant digits kept when a display value is turned back into SI, so that
 #: ``set(**values)`` followed by ``values`` gives the same numbers.
