@@ -1,4 +1,4 @@
-"""Colours, line styles and unit scales shared by deltakit's figures.
+"""Colours and the axes style shared by deltakit's figures (display units live in :mod:`deltakit.units`).
 
 Our own palette: a deep slate for the orbit as it is, a warm amber for the
 orbit after a burn, a raspberry for burn points and delta-v, a pine green and a
@@ -9,7 +9,7 @@ meaning alone: lines also differ in style).
 
 from __future__ import annotations
 
-__all__ = ["COLOURS", "KM", "MJ_PER_KG", "style_axes"]
+__all__ = ["COLOURS", "style_axes"]
 
 #: Named colours used across the plots (hex sRGB).
 COLOURS: dict[str, str] = {
@@ -26,11 +26,6 @@ COLOURS: dict[str, str] = {
     "total": "#4d4d4d",
     "grid": "#e4e8ec",
 }
-
-#: Metres per kilometre: plots show km, the numeric layer speaks m.
-KM = 1.0e3
-#: J/kg per MJ/kg: energies are plotted in MJ/kg.
-MJ_PER_KG = 1.0e6
 
 
 def style_axes(ax, *, xlabel: str | None = None, ylabel: str | None = None, title: str | None = None) -> None:
