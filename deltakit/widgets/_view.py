@@ -138,9 +138,10 @@ class FigureView:
         #: Number of full draws so far (tests and benchmarks read it).
         self.full_draws = 0
         if self.mode == "live":
-            from ipympl.backend_nbagg import FigureManager
-
             canvas = _live_canvas_class()(figure)
+            with _backend_kept():
+                from ipympl.backend_nbagg import FigureManager
+
             FigureManager(canvas, id(figure))
             canvas.header_visible = False
             # ipympl lays its toolbar over the figure wherever it is placed (over the y-axis label and

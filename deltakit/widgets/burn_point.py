@@ -50,6 +50,8 @@ VIEW_RADII = 4.0
 
 _ORBIT_INPUTS = {"body", "periapsis_altitude", "apoapsis_altitude"}
 _CURVE_POINTS = 361
+#: The energy axis holds at least the energy change of a burn this large at periapsis, m/s.
+_ENERGY_FLOOR_DV = 50.0
 _CIRCLE = np.linspace(0.0, 2.0 * np.pi, 241)
 
 
@@ -200,6 +202,17 @@ class BurnPointExplorer(Panel):
                 "the orbit intersects the body."
             )
         curve = energy_gain_curve(conic, dv, angle=angle, reference=reference, n=_CURVE_POINTS)
+        if fixed is None:
+            # any angle: the energy axis holds what every direction can give (dE = v dv cos + dv^2 / 2,
+            # largest at periapsis), so turning the burn never moves it
+            reach = float(conic.speed(0.0)) * dv / MJ_per_kg
+            energy_range = (-reach + 0.5 * dv**2 / MJ_per_kg, reach + 0.5 * dv**2 / MJ_per_kg)
+        else:
+            # at least what a 50 m/s burn at periapsis gives: small burns show small, not magnified
+            floor = float(conic.speed(0.0)) * _ENERGY_FLOOR_DV / MJ_per_kg
+            finite = curve[1][np.isfinite(curve[1])]
+            low, high = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 0.0)
+            energy_range = (min(low, 0.0 if low >= 0.0 else -floor), max(high, floor if high > 0.0 else 0.0))
         drawing = {
             "body": body,
             "conic": conic,
@@ -212,6 +225,7 @@ class BurnPointExplorer(Panel):
             "view_radius": view_radius,
             "clipped": clipped,
             "curve": curve,
+            "energy_range": energy_range,
         }
         return Computed(results, tuple(notes), drawing)
 
@@ -283,13 +297,15 @@ class BurnPointExplorer(Panel):
         radius = d["view_radius"] / km
         art["clip"].set_data(radius * np.cos(_CIRCLE), radius * np.sin(_CIRCLE))
         art["clip"].set_visible(d["clipped"])
-        if follow_square(self.orbit_axes, *self._orbit_extent(), force=new_orbit):
+        (x0, y0), (x1, y1) = (
+            np.nanmin(art["before"].orbit.get_xydata(), axis=0),
+            np.nanmax(art["before"].orbit.get_xydata(), axis=0),
+        )
+        centre, base = (0.5 * (x0 + x1), 0.5 * (y0 + y1)), 0.56 * max(x1 - x0, y1 - y0)
+        if follow_square(self.orbit_axes, self._orbit_extent(), centre=centre, base=base, force=new_orbit):
             self.view.invalidate()
-        x, y = d["curve"]
-        art["curve"].set_data(x, y)
-        finite = y[np.isfinite(y)]
-        low, high = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 1.0)
-        if follow_limits(self.energy_axes, low, high, force=new_orbit):
+        art["curve"].set_data(*d["curve"])
+        if follow_limits(self.energy_axes, *d["energy_range"], force=new_orbit):
             self.view.invalidate()
         art["apoapsis"].set_data([180.0], [r["energy_change_at_apoapsis"] / MJ_per_kg])
         shown_nu = math.degrees(math.remainder(nu, 2 * math.pi))

@@ -268,7 +268,6 @@ class PropellantTrade(Panel):
             "share_curve": share_curve,
             "during": (during, propulsive_efficiency(during, 1.0)),
             "now": (ratio_now, results["efficiency_start"], share),
-            "ratio_end": ratio_end,
         }
         return Computed(results, tuple(notes), drawing)
 
@@ -325,6 +324,7 @@ class PropellantTrade(Panel):
             title="efficiency against speed",
         )
         ax.set_ylim(0.0, 1.05)
+        ax.set_xlim(0.0, _RATIOS[-1])  # the whole curve, always: a speed step never moves this axis
         handles = [self._efficiency, self._share, self._span, self._now]
         # below both plots, where it covers no curve whatever the speed
         fig.legend(
@@ -357,11 +357,6 @@ class PropellantTrade(Panel):
         ratio_now, efficiency, share_now = d["now"]
         self._now.set_data([ratio_now], [efficiency])
         self._share_now.set_data([ratio_now], [share_now])
-        right = self.efficiency_axes.get_xlim()[1]
-        wanted = float(np.clip(1.3 * d["ratio_end"], 3.0, _RATIOS[-1]))
-        if first or not (d["ratio_end"] <= right and wanted >= 0.6 * right):  # move the edge only if needed
-            self.efficiency_axes.set_xlim(0.0, wanted)
-            self.view.invalidate()
         self._mirror(r["mass_ratio"], r["wet_mass"] - self.values["dry_mass"], r["exhaust_velocity"])
 
     def _mirror(self, ratio: float, propellant: float, ve: float) -> None:

@@ -382,7 +382,5 @@ class TransferTrade(Panel):
         split = d["split"]
         self._split_curve.set_ydata(split)
         self._split_best.set_data([r["best_split"] * 100], [r["plane_change_total"] / km_per_s])
-        if follow_limits(
-            self.split_axes, float(split.min()), float(split.max()), include_zero=False, force=new_case
-        ):
+        if follow_limits(self.split_axes, float(split.min()), float(split.max()), force=new_case):
             self.view.invalidate()
