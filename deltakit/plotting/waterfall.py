@@ -116,7 +116,8 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
         dry = ax.axhline(
             float(dry_mass), color=COLOURS["burn"], linestyle="--", linewidth=1.2, label="dry mass"
         )
-    ax.legend(loc="upper right", fontsize="small", framealpha=0.9)
+    # above the axes, where no bar can stand under it
+    ax.legend(loc="lower center", bbox_to_anchor=(0.5, 1.0), ncol=3, fontsize="small", frameon=False)
     ax.format_coord = _mass_readout(labels, masses, spent)
     return WaterfallArtists(remaining, spent_bars, dry)
 

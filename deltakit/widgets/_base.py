@@ -441,9 +441,10 @@ class Panel(widgets.VBox):
             self._show_message(f"unexpected {type(err).__name__}: {one_line(err)}")
 
     def _beyond_range(self, values: Mapping[str, Any], touched: set[str]) -> str:
+        numbers = {name for name in touched if self._scales.get(name) is not None}
         shown = []
         for name in self.controls:
-            if name in touched:
+            if name in (numbers or touched):
                 widget = self.controls[name]
                 scale = self._scales[name]
                 value = values[name] / scale if scale else values[name]

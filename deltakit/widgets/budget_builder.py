@@ -566,5 +566,5 @@ class BudgetBuilder(Panel):
     def _build_figure(self) -> None:
         fig = self._figure(7.6, 3.6)
         self.axes = fig.add_subplot()
-        self.axes.set_title("vehicle mass, line by line", fontsize="medium")
-        fig.subplots_adjust(left=0.09, right=0.985, bottom=0.3, top=0.9)
+        self.axes.set_title("vehicle mass, line by line", fontsize="medium", pad=22)  # above the legend
+        fig.subplots_adjust(left=0.09, right=0.985, bottom=0.3, top=0.84)

@@ -90,8 +90,11 @@ class BurnPointExplorer(Panel):
     delta-v must be >= 0 m/s, got -1097 m/s: choose the direction (retrograde, radial in) for its sense.
     """
 
-    #: an open orbit has no apoapsis; a burn that adds nothing at apoapsis has no ratio to it
-    may_be_nonfinite: ClassVar[frozenset[str]] = frozenset({"apoapsis_altitude_after", "gain_ratio"})
+    #: an open orbit has no apoapsis; a burn that adds nothing at apoapsis has no ratio to it, and one
+    #: that would reverse the motion there has no outcome there
+    may_be_nonfinite: ClassVar[frozenset[str]] = frozenset(
+        {"apoapsis_altitude_after", "gain_ratio", "energy_change_at_apoapsis", "gain_over_apoapsis"}
+    )
     readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
         "speed": ("speed at the burn", km_per_s, "km/s"),
         "energy_change": ("energy change", MJ_per_kg, "MJ/kg"),
@@ -189,6 +192,10 @@ class BurnPointExplorer(Panel):
             notes.append(
                 f"After the burn the orbit is open: the vehicle escapes {body.name} "
                 f"with an excess speed of {float(after.vinf) / km_per_s:.3f} km/s."
+            )
+        if math.isnan(energy_apo):
+            notes.append(
+                "The same burn at apoapsis would reverse the motion there: no comparison with burning there."
             )
         clipped = not ra_after <= view_radius
         if clipped:

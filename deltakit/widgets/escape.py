@@ -33,6 +33,16 @@ _SPEED_FRACTIONS = np.linspace(0.0, 1.0, 201)
 #: The flyby burns drawn, as multiples of the chosen one, with their line styles.
 _BURN_FACTORS = ((0.5, ":", 1.3), (1.0, "-", 1.9), (2.0, "--", 1.3))
 _DEPARTURE_INPUTS = {"body", "periapsis_altitude", "apoapsis_altitude"}
+#: Legends sit above their axes, where no curve runs under them.
+_LEGEND_ABOVE = {
+    "loc": "lower center",
+    "bbox_to_anchor": (0.5, 1.0),
+    "ncol": 2,
+    "fontsize": "small",
+    "frameon": False,
+    "columnspacing": 1.0,
+    "handlelength": 1.8,
+}
 
 
 def speed_axis_top(vinf: float) -> float:
@@ -196,8 +206,9 @@ class EscapeFlyby(Panel):
         (self._now,) = ax.plot(
             [0.0, 0.0], [0.0, 0.0], "o", color=COLOURS["burn"], markersize=6, label="this v∞"
         )
-        style_axes(ax, xlabel="excess speed v∞ (km/s)", ylabel="delta-v needed (km/s)", title="departure")
-        ax.legend(loc="upper left", fontsize="small", framealpha=0.85)
+        style_axes(ax, xlabel="excess speed v∞ (km/s)", ylabel="delta-v needed (km/s)")
+        ax.set_title("departure", fontsize="medium", pad=34)  # above its legend
+        ax.legend(**_LEGEND_ABOVE)
         ax = self.flyby_axes
         self._gain_curves = []
         for factor, style, width in _BURN_FACTORS:
@@ -215,21 +226,12 @@ class EscapeFlyby(Panel):
         )
         ax.set_xscale("log")
         ax.set_xlim(1.0, 50.0)
-        style_axes(
-            ax,
-            xlabel="flyby periapsis radius (body radii)",
-            ylabel="gain beyond v∞ + dv (m/s)",
-            title="powered flyby",
-        )
+        style_axes(ax, xlabel="flyby periapsis radius (body radii)", ylabel="gain beyond v∞ + dv (m/s)")
+        ax.set_title("powered flyby", fontsize="medium", pad=34)
         # the legend names the burns in m/s, so it changes with the burn slider: drawn with the curves
-        # (blitted) instead of with the axes, and kept in the upper right, where the gains are smallest
-        self._flyby_legend = ax.legend(
-            handles=[line for _, line in self._gain_curves],
-            loc="upper right",
-            fontsize="small",
-            framealpha=0.85,
-        )
-        fig.subplots_adjust(left=0.08, right=0.985, bottom=0.14, top=0.91, wspace=0.28)
+        # (blitted) instead of with the axes
+        self._flyby_legend = ax.legend(handles=[line for _, line in self._gain_curves], **_LEGEND_ABOVE)
+        fig.subplots_adjust(left=0.08, right=0.985, bottom=0.14, top=0.8, wspace=0.28)
         self.view.animate(
             self._at_periapsis,
             self._far,

@@ -240,6 +240,7 @@ class PropellantTrade(Panel):
         with np.errstate(invalid="ignore", divide="ignore"):
             share_curve = np.where(curve.total > 0, curve.vehicle / curve.total, np.nan)
         ratio_now, ratio_end = speed / ve, (speed + dv) / ve
+        edge = _RATIOS[-1]  # the efficiency plot ends at v/ve = 5: what lies beyond is not drawn
         results = {
             "wet_mass": m0,
             "mass_ratio": m0 / dry,
@@ -253,21 +254,22 @@ class PropellantTrade(Panel):
             "efficiency_end": float(propulsive_efficiency(speed + dv, ve)),
         }
         notes = []
-        if ratio_end > _RATIOS[-1]:
+        if ratio_end > edge:
+            when = "starts" if ratio_now > edge else "ends"
             notes.append(
-                f"The burn ends beyond v/ve = {_RATIOS[-1]:g}, off the right edge of the efficiency plot."
+                f"The burn {when} beyond v/ve = {edge:g}, off the right edge of the efficiency plot."
             )
         if ejecta < 0.0:
             notes.append(
                 "The exhaust ends with less kinetic energy than it had in the tank: the vehicle "
                 "gains more than the propellant's chemical energy alone (Oberth effect)."
             )
-        during = np.linspace(ratio_now, ratio_end, 50)
+        during = np.linspace(ratio_now, min(ratio_end, edge), 50) if ratio_now <= edge else np.empty(0)
         drawing = {
             "bars": (vehicle / GJ, ejecta / GJ, total / GJ),
             "share_curve": share_curve,
             "during": (during, propulsive_efficiency(during, 1.0)),
-            "now": (ratio_now, results["efficiency_start"], share),
+            "now": (ratio_now if ratio_now <= edge else np.nan, results["efficiency_start"], share),
         }
         return Computed(results, tuple(notes), drawing)
 
@@ -350,7 +352,7 @@ class PropellantTrade(Panel):
         if first or changed - {"speed"}:  # a new vehicle or engine: the share curve and its axis
             share = d["share_curve"]
             self._share.set_ydata(share)
-            top = float(np.nanmax(share[_RATIOS <= 3.0])) if np.isfinite(share).any() else 1.0
+            top = float(np.nanmax(share)) if np.isfinite(share).any() else 1.0
             self.share_axes.set_ylim(0.0, 1.05 * max(top, 1.0))
             self.view.invalidate()
         self._span.set_data(*d["during"])
