@@ -103,13 +103,20 @@ def test_blitted_picture_equals_a_full_redraw(panel_name, slider, setup, monkeyp
     assert blitted >= 3, f"{panel_name}.{slider}: most small steps should blit, {blitted} of 5 did"
 
 
-def test_a_new_orbit_redraws_everything(explorer_static):
-    draws = explorer_static.view.full_draws
+def test_a_new_orbit_moves_the_axes_and_a_step_does_not(explorer_static):
+    view = explorer_static.view
+    draws = view.full_draws, view.cell_draws
     explorer_static.set(nu=0.5)  # a burn-point step: blit only
     explorer_static.set(nu=0.6)
-    assert explorer_static.view.full_draws == draws
-    explorer_static.set(periapsis_altitude=600e3)  # a new orbit: one full redraw
-    assert explorer_static.view.full_draws == draws + 1
+    assert (view.full_draws, view.cell_draws) == draws
+    limits = explorer_static.orbit_axes.get_xlim()
+    explorer_static.set(body="Earth", periapsis_altitude=600e3, apoapsis_altitude=900e3)  # a new orbit
+    assert explorer_static.orbit_axes.get_xlim() != limits
+    assert view.full_draws + view.cell_draws > sum(draws)  # its axes drawn again (cells or all)
+    picture = decode(view.widget.value)
+    view.invalidate()
+    view.refresh()
+    np.testing.assert_array_equal(picture, decode(view.widget.value))
 
 
 @pytest.mark.parametrize("panel_name, slider, setup", SLIDERS, ids=[f"{p}-{s}" for p, s, _ in SLIDERS])
@@ -123,11 +130,13 @@ def test_slider_sweeps_seldom_redraw_the_whole_figure(panel_name, slider, setup,
     start = round((widget.value - widget.min) / widget.step)
     # from the default to the right end, to the left end, and back: as a hand on the keyboard would
     path = [*range(start, count + 1, stride), *range(count, -1, -stride), *range(0, start + 1, stride)]
-    draws = panel.view.full_draws
+    draws = panel.view.full_draws + panel.view.cell_draws
     for k in path:
         widget.value = widget.min + k * widget.step
-    full = panel.view.full_draws - draws
-    assert full <= 0.08 * len(path), f"{panel_name}.{slider}: {full} full redraws in {len(path)} steps"
+    redrawn = panel.view.full_draws + panel.view.cell_draws - draws
+    assert redrawn <= 0.08 * len(path), (
+        f"{panel_name}.{slider}: axes redrawn {redrawn} times in {len(path)} steps"
+    )
 
 
 # ---------------------------------------------------------------------- the live canvas
@@ -222,3 +231,36 @@ def test_panels_leave_a_kernels_inline_figures_alone(tmp_path):
     shown = [o for o in nb.cells[3].outputs if o.output_type == "display_data"]
     assert shown and "image/png" in shown[0].data
     assert "application/vnd.jupyter.widget-view+json" not in shown[0].data  # a picture, not an ipympl widget
+
+
+# ---------------------------------------------------------------------- cells
+def _cell_cases():
+    cases = []
+    for name in SLIDER_PANELS:
+        panel = getattr(dk.widgets, name)()
+        cases += [(name, i) for i, ax in enumerate(panel.figure.axes) if id(ax) in panel.view._blitter.cells]
+        panel.close()
+    return cases
+
+
+CELLS = _cell_cases()
+
+
+@pytest.mark.parametrize("panel_name, index", CELLS, ids=[f"{p}-axes{i}" for p, i in CELLS])
+def test_a_cell_redraw_equals_a_full_redraw(panel_name, index, monkeypatch):
+    """New limits of one plot redraw only its cell: the same pixels as drawing the whole figure."""
+    monkeypatch.setenv("DELTAKIT_FIGURES", "static")
+    panel = getattr(dk.widgets, panel_name)()
+    ax = panel.figure.axes[index]
+    for get, put in ((ax.get_xlim, ax.set_xlim), (ax.get_ylim, ax.set_ylim)):
+        if ax.get_xscale() == "linear" or get is ax.get_ylim:
+            low, high = get()
+            put(low, high + 0.37 * (high - low))  # new ticks and tick labels (both axes: equal aspect stays)
+    full, cells = panel.view.full_draws, panel.view.cell_draws
+    panel.view.invalidate(ax)
+    panel.view.refresh()
+    assert (panel.view.full_draws, panel.view.cell_draws) == (full, cells + 1)
+    picture = decode(panel.view.widget.value)
+    panel.view.invalidate()
+    panel.view.refresh()
+    np.testing.assert_array_equal(picture, decode(panel.view.widget.value))

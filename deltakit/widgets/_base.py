@@ -8,7 +8,9 @@ A panel is a thin shell around two methods its subclass writes:
   the control when an input makes no sense. Tests call it without widgets.
 * ``draw(computed, changed)``, which moves the figure's artists to a computed
   case (``changed`` names the controls that moved since the last view) and
-  calls ``self.view.invalidate()`` when something not animated changed.
+  calls ``self.view.invalidate(ax)`` when the limits of ``ax`` changed (its
+  cell is drawn again), ``self.view.invalidate()`` when anything else not
+  animated changed (a full draw).
 
 The base holds the controls (display units, SI values), one update path for
 the browser, the constructor and :meth:`Panel.set` (everything checked before
@@ -191,6 +193,19 @@ class Panel(widgets.VBox):
         self.figure = Figure(figsize=(width, height), dpi=100, **kwargs)
         self.view = FigureView(self.figure)
         return self.figure
+
+    def _columns(self, *columns: list[Any], room: float = 0.02) -> None:
+        """Give side-by-side axes their cells: figure columns split ``room`` right of each column.
+
+        The gap between two plots holds the right one's tick labels and
+        y-axis label, so the split lies just right of the left plot (``room``,
+        figure fraction, is for its last tick label); see :meth:`FigureView.cell`.
+        """
+        rights = [max(ax.get_position().x1 for ax in column) + room for column in columns[:-1]]
+        edges = [0.0, *rights, 1.0]
+        for column, x0, x1 in zip(columns, edges[:-1], edges[1:]):
+            for ax in column:
+                self.view.cell(ax, (x0, 0.0, x1, 1.0))
 
     def _finish(
         self,

@@ -128,7 +128,8 @@ def follow_square(
     The view is a square around ``centre`` whose half-width is ``base``
     times a power of ``ratio``: the smallest that holds the data box
     ``extent = (x_low, x_high, y_low, y_high)``, and it stays one rung
-    larger until the smaller one would hold the data with room to spare.
+    larger until the smaller one would hold the data with room to spare
+    (``force``: the smallest rung now, for a case typed anew).
 
     Examples
     --------
@@ -152,8 +153,8 @@ def follow_square(
         if needed > SPARE * current / ratio or math.isclose(current, base):
             return False
     half = base * ratio**rung
-    if not force and math.isclose(half, current) and math.isclose(0.5 * (x0 + x1), cx):
-        return False
+    if math.isclose(half, current) and math.isclose(0.5 * (x0 + x1), cx):
+        return False  # already there (``force`` only lifts the hysteresis)
     ax.set_xlim(cx - half, cx + half)
     ax.set_ylim(cy - half, cy + half)
     return True

@@ -31,6 +31,7 @@ import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
+from ._blit import Blitter
 from ._png import encode_png
 
 __all__ = ["FigureView", "figure_mode"]
@@ -124,19 +125,20 @@ class FigureView:
     """A matplotlib Figure and the widget that shows it.
 
     Call :meth:`refresh` after moving artists. Artists registered with
-    :meth:`animate` are the ones slider steps move; a refresh draws them over
-    a saved background (blitting) unless :meth:`invalidate` asked for a full
-    draw since the last one.
+    :meth:`animate` are the ones slider steps move; a refresh redraws those
+    that changed over the saved background (:class:`~deltakit.widgets._blit.Blitter`)
+    unless :meth:`invalidate` asked for a full draw since the last one.
     """
 
     def __init__(self, figure: Figure, mode: str | None = None) -> None:
         self.figure = figure
         self.mode = mode or figure_mode()
-        self._animated: list[Any] = []
-        self._background: Any = None
+        self._blitter = Blitter(figure)
         self._stale = True
-        #: Number of full draws so far (tests and benchmarks read it).
+        self._stale_axes: list[Any] = []
+        #: Full draws and cell redraws so far (tests and benchmarks read them).
         self.full_draws = 0
+        self.cell_draws = 0
         if self.mode == "live":
             canvas = _live_canvas_class()(figure)
             with _backend_kept():
@@ -158,51 +160,66 @@ class FigureView:
         figure.canvas.mpl_connect("draw_event", self._after_full_draw)
 
     def animate(self, *artists: Any) -> None:
-        """Mark artists that fast updates move; they are blitted over a saved background.
+        """Mark artists that slider steps move; they are redrawn alone over a saved background.
 
         After every full draw (ours, a resize, a request from the browser) the
         background is saved again and the animated artists drawn on top, so
         they are never missing from the picture.
         """
-        self._animated.extend(artists)
-        for artist in artists:
-            artist.set_animated(True)
+        self._blitter.add(*artists)
 
-    def invalidate(self) -> None:
-        """Ask for a full draw at the next :meth:`refresh` (something not animated changed)."""
-        self._stale = True
+    def cell(self, axes: Any, *rects: tuple[float, float, float, float]) -> None:
+        """Say which part of the figure (rectangles in figure fractions) holds all of ``axes``' furniture.
+
+        Its frame, ticks, tick labels, axis labels, title and legend must lie
+        inside; then a change of its limits redraws only that part.
+        """
+        self._blitter.cells[id(axes)] = (axes, list(rects))
+
+    def invalidate(self, *axes: Any) -> None:
+        """Ask for a redraw at the next :meth:`refresh`: of these axes' cells, or of everything.
+
+        Call it when something not animated changed: axis limits (name the
+        axes), a label or a legend (no axes: a full draw).
+        """
+        if axes:
+            self._stale_axes += [ax for ax in axes if ax not in self._stale_axes]
+        else:
+            self._stale = True
+
+    @property
+    def stale(self) -> bool:
+        """True when the next refresh draws the whole figure."""
+        return self._stale or not self._blitter.ready
 
     def _after_full_draw(self, event: Any) -> None:
-        canvas = self.figure.canvas
-        if canvas.is_saving():  # savefig draws animated artists itself; its picture is no background
-            self._background = None
+        if (
+            self.figure.canvas.is_saving()
+        ):  # savefig draws animated artists itself; its picture is no background
+            self._blitter.forget()
             return
         self.full_draws += 1
-        self._background = canvas.copy_from_bbox(self.figure.bbox)
-        self._draw_animated()
-
-    def _draw_animated(self) -> None:
-        for artist in self._animated:
-            if artist.get_visible():
-                (artist.axes or self.figure).draw_artist(artist)
+        self._blitter.save()
 
     def refresh(self) -> None:
-        """Show the figure's current artists: blit the animated ones, or draw all when needed."""
+        """Show the figure's current artists: the animated ones that changed, or all when needed."""
         canvas = self.figure.canvas
-        blit = not self._stale and self._background is not None
-        self._stale = False
-        if blit:
-            canvas.restore_region(self._background)
-            self._draw_animated()
+        full = self.stale
+        axes, self._stale, self._stale_axes = self._stale_axes, False, []
+        if not full and axes:
+            full = not self._blitter.redraw(axes)
+            self.cell_draws += not full
+        elif not full and not self._blitter.update():
+            return  # nothing moved: nothing to draw or send
         if self.mode == "live":
-            if blit:
+            if not full:
                 canvas.blit(self.figure.bbox)
             elif canvas.shown:
                 canvas.draw()  # draws and sends the frame at once: no round trip through the browser
             else:
                 canvas.draw_idle()  # the browser asks for the first frame when it shows the canvas
             return
-        if not blit:
+        if full:
             canvas.draw()  # the draw_event hook saves the background and adds the animated artists
         self.widget.value = self.png()
 
@@ -217,5 +234,5 @@ class FigureView:
         for widget in (self.widget, toolbar):
             if isinstance(widget, widgets.Widget):
                 widget.close()
-        self._animated.clear()
-        self._background = None
+        self._blitter.artists.clear()
+        self._blitter.forget()

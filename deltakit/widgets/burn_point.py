@@ -271,6 +271,7 @@ class BurnPointExplorer(Panel):
                 handlelength=1.6,
             )
         fig.subplots_adjust(left=0.125, right=0.975, bottom=0.12, top=0.86, wspace=0.32)
+        self._columns([self.orbit_axes], [self.energy_axes])
         self._artists = {
             "before": before,
             "burn": burn,
@@ -279,8 +280,11 @@ class BurnPointExplorer(Panel):
             "current": current,
             "apoapsis": apo,
         }
-        # what a slider step moves: redrawn alone over the rest of the figure
-        self.view.animate(burn.after.orbit, clip, burn.arrow, burn.marker, curve, apo, current)
+        # what slider steps and a new orbit move: redrawn alone over the rest of the figure
+        # (in the order of their zorder, as a full draw stacks them)
+        self.view.animate(
+            before.body, clip, before.orbit, burn.after.orbit, burn.marker, burn.arrow, curve, apo, current
+        )
 
     def draw(self, computed: Computed, changed: set[str]) -> None:
         d, r = computed.drawing, computed.results
@@ -290,7 +294,6 @@ class BurnPointExplorer(Panel):
         new_orbit = bool(changed & _ORBIT_INPUTS)
         if new_orbit:
             update_conic(art["before"], d["conic"], body_radius=d["body"].radius)
-            self.view.invalidate()
         update_burn(
             art["burn"],
             d["conic"],
@@ -310,10 +313,10 @@ class BurnPointExplorer(Panel):
         )
         centre, base = (0.5 * (x0 + x1), 0.5 * (y0 + y1)), 0.56 * max(x1 - x0, y1 - y0)
         if follow_square(self.orbit_axes, self._orbit_extent(), centre=centre, base=base, force=new_orbit):
-            self.view.invalidate()
+            self.view.invalidate(self.orbit_axes)
         art["curve"].set_data(*d["curve"])
         if follow_limits(self.energy_axes, *d["energy_range"], force=new_orbit):
-            self.view.invalidate()
+            self.view.invalidate(self.energy_axes)
         art["apoapsis"].set_data([180.0], [r["energy_change_at_apoapsis"] / MJ_per_kg])
         shown_nu = math.degrees(math.remainder(nu, 2 * math.pi))
         art["current"].set_data([shown_nu], [r["energy_change"] / MJ_per_kg])

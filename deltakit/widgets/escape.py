@@ -4,7 +4,8 @@ Departure: from a parking orbit, the delta-v that leaves with a chosen
 hyperbolic excess speed when burned at periapsis, against escaping first and
 adding the excess speed far from the body. Flyby: the excess speed a prograde
 burn at the periapsis of a flyby buys beyond its own delta-v, against the
-periapsis radius, for the chosen burn and for half and twice that burn.
+periapsis radius, for the chosen burn and for half and twice that burn (the
+legend names them so, and stays put while the burn slider moves).
 
 Default case: the invented Cinderwren probe (:mod:`deltakit.demo`) at Jupiter
 (cited constants): a 5.6 km/s excess speed, a 300 m/s burn, periapsis at
@@ -30,8 +31,13 @@ __all__ = ["EscapeFlyby"]
 
 _RADII = np.geomspace(1.0, 50.0, 300)  # flyby periapsis radius in body radii
 _SPEED_FRACTIONS = np.linspace(0.0, 1.0, 201)
-#: The flyby burns drawn, as multiples of the chosen one, with their line styles.
-_BURN_FACTORS = ((0.5, ":", 1.3), (1.0, "-", 1.9), (2.0, "--", 1.3))
+#: The flyby burns drawn, as multiples of the chosen one, with their line styles and legend names
+#: (names that do not change with the burn slider: the legend stays in the background).
+_BURN_FACTORS = (
+    (0.5, ":", 1.3, "half this burn"),
+    (1.0, "-", 1.9, "this burn"),
+    (2.0, "--", 1.3, "twice this burn"),
+)
 _DEPARTURE_INPUTS = {"body", "periapsis_altitude", "apoapsis_altitude"}
 #: Legends sit above their axes, where no curve runs under them.
 _LEGEND_ABOVE = {
@@ -162,7 +168,7 @@ class EscapeFlyby(Panel):
         flyby = powered_flyby(vinf, rf, dv, body.mu)
         gains = [
             np.asarray(powered_flyby(vinf, _RADII * body.radius, factor * dv, body.mu).gain)
-            for factor, _, _ in _BURN_FACTORS
+            for factor, _, _, _ in _BURN_FACTORS
         ]
         results = {
             "dv_periapsis": dv_periapsis,
@@ -183,7 +189,6 @@ class EscapeFlyby(Panel):
             "gains": gains,
             "flyby_radius": rf / body.radius,
             "vinf": vinf,
-            "flyby_dv": dv,
         }
         return Computed(results, tuple(notes), drawing)
 
@@ -207,18 +212,18 @@ class EscapeFlyby(Panel):
             [0.0, 0.0], [0.0, 0.0], "o", color=COLOURS["burn"], markersize=6, label="this v∞"
         )
         style_axes(ax, xlabel="excess speed v∞ (km/s)", ylabel="delta-v needed (km/s)")
-        ax.set_title("departure", fontsize="medium", pad=34)  # above its legend
+        ax.set_title("departure", fontsize="medium", pad=38)  # above its legend
         ax.legend(**_LEGEND_ABOVE)
         ax = self.flyby_axes
         self._gain_curves = []
-        for factor, style, width in _BURN_FACTORS:
+        for factor, style, width, label in _BURN_FACTORS:
             (line,) = ax.plot(
                 _RADII,
                 np.zeros_like(_RADII),
                 color=COLOURS["burn"],
                 linestyle=style,
                 linewidth=width,
-                label=f"burn {factor:g} x",
+                label=label,
             )
             self._gain_curves.append((factor, line))
         (self._flyby_now,) = ax.plot(
@@ -227,18 +232,16 @@ class EscapeFlyby(Panel):
         ax.set_xscale("log")
         ax.set_xlim(1.0, 50.0)
         style_axes(ax, xlabel="flyby periapsis radius (body radii)", ylabel="gain beyond v∞ + dv (m/s)")
-        ax.set_title("powered flyby", fontsize="medium", pad=34)
-        # the legend names the burns in m/s, so it changes with the burn slider: drawn with the curves
-        # (blitted) instead of with the axes
+        ax.set_title("powered flyby", fontsize="medium", pad=38)
         self._flyby_legend = ax.legend(handles=[line for _, line in self._gain_curves], **_LEGEND_ABOVE)
         fig.subplots_adjust(left=0.08, right=0.985, bottom=0.14, top=0.8, wspace=0.28)
+        self._columns([self.departure_axes], [self.flyby_axes])
         self.view.animate(
             self._at_periapsis,
             self._far,
             self._now,
             *(line for _, line in self._gain_curves),
             self._flyby_now,
-            self._flyby_legend,
         )
 
     def draw(self, computed: Computed, changed: set[str]) -> None:
@@ -246,17 +249,19 @@ class EscapeFlyby(Panel):
         speeds = d["speeds"] / km_per_s
         self._at_periapsis.set_data(speeds, d["at_periapsis"] / km_per_s)
         self._far.set_data(speeds, d["far"] / km_per_s)
-        if changed & _DEPARTURE_INPUTS or self.departure_axes.get_xlim()[1] != speeds[-1]:
+        if self.departure_axes.get_xlim()[1] != speeds[-1]:  # the speed axis: powers of two (speed_axis_top)
             self.departure_axes.set_xlim(0.0, speeds[-1])
-            self.departure_axes.set_ylim(0.0, 1.05 * d["far"][-1] / km_per_s)
-            self.view.invalidate()
-        vinf, dv = d["vinf"], d["flyby_dv"]
+            self.view.invalidate(self.departure_axes)
+        if follow_limits(
+            self.departure_axes, 0.0, d["far"][-1] / km_per_s, force=bool(changed & _DEPARTURE_INPUTS)
+        ):
+            self.view.invalidate(self.departure_axes)
+        vinf = d["vinf"]
         self._now.set_data([vinf / km_per_s] * 2, [r["dv_periapsis"] / km_per_s, r["dv_far"] / km_per_s])
-        for (factor, line), gain, text in zip(self._gain_curves, d["gains"], self._flyby_legend.get_texts()):
+        for (_, line), gain in zip(self._gain_curves, d["gains"]):
             line.set_ydata(gain)
-            text.set_text(f"burn {factor * dv:.0f} m/s")
         finite = np.concatenate([g[np.isfinite(g)] for g in d["gains"]])
         high = float(finite.max()) if finite.size else 1.0
         if follow_limits(self.flyby_axes, 0.0, max(high, 1.0), force="body" in changed):
-            self.view.invalidate()
+            self.view.invalidate(self.flyby_axes)
         self._flyby_now.set_data([d["flyby_radius"]], [r["gain"]])

@@ -339,7 +339,8 @@ class PropellantTrade(Panel):
             frameon=False,
         )
         fig.subplots_adjust(left=0.12, right=0.86, bottom=0.26, top=0.92, wspace=0.36)
-        self.view.animate(*self._bars.patches, self._span, self._now, self._share_now)
+        self._columns([self.energy_axes], [self.efficiency_axes, self.share_axes])
+        self.view.animate(*self._bars.patches, self._share, self._span, self._now, self._share_now)
 
     def draw(self, computed: Computed, changed: set[str]) -> None:
         d, r = computed.drawing, computed.results
@@ -348,13 +349,13 @@ class PropellantTrade(Panel):
         for bar, width in zip(self._bars, widths):
             bar.set_width(width)
         if follow_limits(self.energy_axes, min(widths), max(widths), axis="x", force=first):
-            self.view.invalidate()
-        if first or changed - {"speed"}:  # a new vehicle or engine: the share curve and its axis
+            self.view.invalidate(self.energy_axes)
+        if first or changed - {"speed"}:  # a new vehicle or engine: the share curve (animated) and its axis
             share = d["share_curve"]
             self._share.set_ydata(share)
             top = float(np.nanmax(share)) if np.isfinite(share).any() else 1.0
-            self.share_axes.set_ylim(0.0, 1.05 * max(top, 1.0))
-            self.view.invalidate()
+            if follow_limits(self.share_axes, 0.0, max(top, 1.0), force=first):
+                self.view.invalidate(self.share_axes)
         self._span.set_data(*d["during"])
         ratio_now, efficiency, share_now = d["now"]
         self._now.set_data([ratio_now], [efficiency])

@@ -40,7 +40,7 @@ from ..transfers import (
 )
 from ..twobody import circular_speed
 from ..units import deg, hour, km, km_per_s, percent
-from ._base import Computed, InputError, Panel, choice, follow_limits, number, slider
+from ._base import Computed, InputError, Panel, choice, follow_limits, follow_square, number, slider
 
 __all__ = ["TransferTrade"]
 
@@ -98,6 +98,7 @@ class TransferTrade(Panel):
     )
     readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
         "radius_ratio": ("radius ratio r2/r1", 1.0, ""),
+        "apoapsis_ratio": ("bi-elliptic apoapsis radius / r1", 1.0, ""),
         "hohmann_total": ("Hohmann total", km_per_s, "km/s"),
         "hohmann_duration": ("Hohmann time of flight", hour, "h"),
         "bielliptic_total": ("bi-elliptic total", km_per_s, "km/s"),
@@ -204,11 +205,7 @@ class TransferTrade(Panel):
         h = hohmann(r1, r2, body.mu)
         b = bielliptic(r1, r2, rb, body.mu)
         with np.errstate(invalid="ignore"):
-            curves = (
-                hohmann(1.0, _RATIOS, 1.0).total,
-                bielliptic(1.0, _RATIOS, rb / r1, 1.0).total,
-                bielliptic(1.0, _RATIOS, _FAR, 1.0).total,
-            )
+            bielliptic_curve = np.asarray(bielliptic(1.0, _RATIOS, rb / r1, 1.0).total)
         split_totals = np.asarray(hohmann_plane_change(r1, r2, body.mu, angle, _FRACTIONS).total)
         best = float(best_plane_change_split(r1, r2, body.mu, angle))
         best_total = float(hohmann_plane_change(r1, r2, body.mu, angle, best).total)
@@ -219,6 +216,7 @@ class TransferTrade(Panel):
             "final_radius": r2,
             "intermediate_radius": rb,
             "radius_ratio": ratio,
+            "apoapsis_ratio": rb / r1,
             "hohmann_total": float(h.total),
             "hohmann_burn1": float(h.burns[0]),
             "hohmann_burn2": float(h.burns[1]),
@@ -243,7 +241,12 @@ class TransferTrade(Panel):
                 "The final orbit is below the initial one: the ratio plot uses the larger over the "
                 "smaller radius (the totals are the same both ways)."
             )
-        drawing = {"body": body, "radii": (r1, r2, rb), "curves": curves, "split": split_totals / km_per_s}
+        drawing = {
+            "body": body,
+            "radii": (r1, r2, rb),
+            "bielliptic_curve": bielliptic_curve,
+            "split": split_totals / km_per_s,
+        }
         return Computed(results, tuple(notes), drawing)
 
     # ------------------------------------------------------------------ the figure
@@ -261,8 +264,13 @@ class TransferTrade(Panel):
         )
 
         ax = self.ratio_axes
+        # in units of the initial speed the Hohmann total and the far-apoapsis limit depend on the ratio
+        # alone: drawn once; the bi-elliptic curve of this apoapsis and the ratio line move (animated)
+        hohmann_curve = np.asarray(hohmann(1.0, _RATIOS, 1.0).total)
+        with np.errstate(invalid="ignore"):
+            limit_curve = np.asarray(bielliptic(1.0, _RATIOS, _FAR, 1.0).total)
         (self._hohmann_curve,) = ax.plot(
-            _RATIOS, np.zeros_like(_RATIOS), color=COLOURS["hohmann"], linewidth=1.8, label="Hohmann"
+            _RATIOS, hohmann_curve, color=COLOURS["hohmann"], linewidth=1.8, label="Hohmann"
         )
         (self._bielliptic_curve,) = ax.plot(
             _RATIOS,
@@ -274,7 +282,7 @@ class TransferTrade(Panel):
         )
         (self._limit_curve,) = ax.plot(
             _RATIOS,
-            np.zeros_like(_RATIOS),
+            limit_curve,
             color=COLOURS["bielliptic"],
             linestyle=":",
             linewidth=1.4,
@@ -304,6 +312,7 @@ class TransferTrade(Panel):
         self._ratio_now = ax.axvline(1.0, color=COLOURS["burn"], linewidth=1.4, label="this r2/r1")
         ax.set_xscale("log")
         ax.set_xlim(1.0, 100.0)
+        ax.set_ylim(0.0, 1.1 * float(np.nanmax(np.concatenate([hohmann_curve, limit_curve]))))
         style_axes(
             ax,
             xlabel="radius ratio r2/r1",
@@ -311,7 +320,17 @@ class TransferTrade(Panel):
             title="total delta-v against radius ratio",
         )
         ax.set_title(ax.get_title(), fontsize="medium", pad=12)  # room for the break-even values
-        self._ratio_legend()
+        # the legend goes under the orbit drawing: inside its own axes it would cover curves
+        ax.legend(
+            loc="upper center",
+            bbox_to_anchor=(0.42, -0.37),
+            bbox_transform=self.orbit_axes.transAxes,
+            ncol=2,
+            fontsize="x-small",
+            frameon=False,
+            title="total delta-v plot",
+            title_fontsize="x-small",
+        )
 
         ax = self.split_axes
         (self._split_curve,) = ax.plot(
@@ -334,24 +353,25 @@ class TransferTrade(Panel):
         # above the curve's highest point: the total is largest with all of the turn at one burn
         ax.legend(loc="lower center", bbox_to_anchor=(0.5, 1.0), ncol=2, fontsize="x-small", frameon=False)
         ax.set_title(ax.get_title(), fontsize="medium", pad=22)
-        self.view.animate(self._split_curve, self._split_best)
-        fig.subplots_adjust(left=0.14, right=0.97, bottom=0.08, top=0.92, wspace=0.34, hspace=0.6)
-
-    def _ratio_legend(self) -> None:
-        """The radius-ratio plot's legend, under the orbit drawing.
-
-        Inside its own axes it would cover curves.
-        """
-        self.ratio_axes.legend(
-            loc="upper center",
-            bbox_to_anchor=(0.42, -0.37),
-            bbox_transform=self.orbit_axes.transAxes,
-            ncol=2,
-            fontsize="x-small",
-            frameon=False,
-            title="total delta-v plot",
-            title_fontsize="x-small",
+        # what a case typed anew or a plane-change step moves: redrawn alone over the rest
+        transfer = self._transfer
+        self.view.animate(
+            transfer.body,
+            transfer.initial,
+            transfer.final,
+            transfer.hohmann,
+            transfer.bielliptic,
+            self._bielliptic_curve,
+            self._ratio_now,
+            self._split_curve,
+            self._split_best,
         )
+        fig.subplots_adjust(left=0.14, right=0.97, bottom=0.08, top=0.92, wspace=0.34, hspace=0.6)
+        # cells (figure fractions) holding each plot's furniture: the right column splits at mid-height;
+        # the ratio plot's legend sits under the orbit drawing, below the orbit legend
+        self.view.cell(self.orbit_axes, (0.0, 0.147, 0.51, 1.0))
+        self.view.cell(self.ratio_axes, (0.51, 0.5, 1.0, 1.0), (0.0, 0.0, 0.51, 0.147))
+        self.view.cell(self.split_axes, (0.51, 0.0, 1.0, 0.5))
 
     def draw(self, computed: Computed, changed: set[str]) -> None:
         d, r = computed.drawing, computed.results
@@ -366,21 +386,19 @@ class TransferTrade(Panel):
             )
             if not bielliptic_drawn:
                 self._transfer.bielliptic.set_data([], [])
-            extent = 1.08 * max(r1, r2, rb if bielliptic_drawn else 0.0) / km
-            self.orbit_axes.set_xlim(-extent, extent)
-            self.orbit_axes.set_ylim(-extent, extent)
-            hohmann_curve, bielliptic_curve, limit_curve = d["curves"]
-            self._hohmann_curve.set_ydata(hohmann_curve)
-            self._bielliptic_curve.set_ydata(bielliptic_curve)
-            self._limit_curve.set_ydata(limit_curve)
-            self._bielliptic_curve.set_label(f"bi-elliptic, rb = {rb / r1:.3g} r1")
-            self._ratio_legend()
-            top = float(np.nanmax(np.concatenate([hohmann_curve, limit_curve])))
-            self.ratio_axes.set_ylim(0.0, 1.1 * top)
+            extent = max(r1, r2, rb if bielliptic_drawn else 0.0) / km
+            if follow_square(
+                self.orbit_axes,
+                (-extent, extent, -extent, extent),
+                centre=(0.0, 0.0),
+                base=1000.0,
+                force=True,
+            ):
+                self.view.invalidate(self.orbit_axes)
+            self._bielliptic_curve.set_ydata(d["bielliptic_curve"])
             self._ratio_now.set_xdata([r["radius_ratio"]] * 2)
-            self.view.invalidate()
         split = d["split"]
         self._split_curve.set_ydata(split)
         self._split_best.set_data([r["best_split"] * 100], [r["plane_change_total"] / km_per_s])
         if follow_limits(self.split_axes, float(split.min()), float(split.max()), force=new_case):
-            self.view.invalidate()
+            self.view.invalidate(self.split_axes)
