@@ -21,15 +21,16 @@ PAD = 0.06
 SPARE = 0.5
 #: On an axis holding data of both signs, neither side is shown smaller than this part of the other.
 BALANCE = 0.25
-#: Rungs of the ladder of round values within each power of ten.
-_RUNGS = (1.0, 2.0, 5.0, 10.0)
+#: Rungs of the ladder of round values within each power of ten (a view is at most twice the data it
+#: was fitted to, plus PAD).
+_RUNGS = (1.0, 1.5, 2.0, 3.0, 5.0, 10.0)
 
 
 def nice_ceiling(x: float) -> float:
-    """The smallest of 1, 2, 5 times a power of ten that is >= ``x`` (> 0).
+    """The smallest round value (1, 1.5, 2, 3 or 5 times a power of ten) that is >= ``x`` (> 0).
 
-    >>> nice_ceiling(0.46), nice_ceiling(2.0), nice_ceiling(5.01), nice_ceiling(7.3e4)
-    (0.5, 2.0, 10.0, 100000.0)
+    >>> nice_ceiling(0.46), nice_ceiling(2.0), nice_ceiling(5.01), nice_ceiling(2.6e4)
+    (0.5, 2.0, 10.0, 30000.0)
     """
     power = 10.0 ** math.floor(math.log10(x))
     for rung in _RUNGS:
@@ -39,7 +40,7 @@ def nice_ceiling(x: float) -> float:
 
 
 def _lower_rung(level: float) -> float:
-    """The rung below ``level`` on the 1-2-5 ladder."""
+    """The rung below ``level`` on the ladder of round values."""
     power = 10.0 ** math.floor(math.log10(level) + 1e-12)
     rung = level / power
     below = max((r for r in _RUNGS if r < rung - 1e-9), default=None)
@@ -68,7 +69,7 @@ def follow_limits(
     """Keep data spanning [low, high] in view of ``axis``; True if the limits changed.
 
     With ``include_zero`` (totals, energies, masses) the view starts at zero
-    and each end is a round value (1, 2, 5 times a power of ten) with room
+    and each end is a round value (:func:`nice_ceiling`) with room
     above the data; it moves only when the data leave it or a lower round
     value would hold them with room to spare. Without, the view is the data
     with ``headroom`` beyond each end, moved when the data leave it or fill
