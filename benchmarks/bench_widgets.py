@@ -351,7 +351,8 @@ def browser(presses: int, report: list[str]) -> list[str]:
                     page.wait_for_timeout(150)  # let the kernel settle before the next press
                 if len(latencies) < presses // 2:
                     missed.append(f"browser {name}")
-                    report.append(f"  {name:20s} only {len(latencies)} of {presses} presses answered")
+                    seen = page.evaluate("() => window.__dk")
+                    report.append(f"  {name:20s} only {len(latencies)} of {presses} presses answered: {seen}")
                     continue
                 median, p90 = statistics.median(latencies), float(np.percentile(latencies, 90))
                 ok = median <= BROWSER_MEDIAN_MS
