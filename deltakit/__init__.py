@@ -64,8 +64,13 @@ _NAMES: dict[str, str] = {
     "burn_energy": "propulsion",
     "EnergySplit": "propulsion",
     "propulsive_efficiency": "propulsion",
-    # budgets
+    # budgets, vehicles, margins, staging and dispersions
     "Budget": "budget",
+    "BudgetLine": "budget",
+    "SystemUsage": "budget",
+    "PropulsionSystem": "vehicle",
+    "Stage": "vehicle",
+    "MarginPolicy": "margins",
     # finite burns and Kepler's equation
     "thrust_arc": "finite",
     "ArcOutcome": "finite",
