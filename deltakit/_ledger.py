@@ -108,9 +108,9 @@ def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True) -> Ledger:
         leaving = inputs.stage_dry[stage]
         for j in plan.stage_systems[stage]:
             leaving = leaving + inputs.residual[j] + np.maximum(left[j], 0.0)
-        attached = mask if alive[stage] is True else (mask & alive[stage])
+        attached = np.asarray(mask, dtype=bool) if alive[stage] is True else (mask & alive[stage])
         m = np.where(attached, m - leaving, m)
-        alive[stage] = ~attached if alive[stage] is True else (alive[stage] & ~attached)
+        alive[stage] = np.logical_not(attached) if alive[stage] is True else (alive[stage] & ~attached)
 
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         for i, op in enumerate(plan.ops):

@@ -846,7 +846,7 @@ class Budget:
         if implicit:
             if m0 is None:
                 raise DomainError(
-                    f"`m0` must be given: the load of system {implicit[0].name!r} is what the start mass leaves"
+                    f"`propellant` of system {implicit[0].name!r} must be given: no start mass `m0` to take its load from"
                 )
             if dry_eff is not None:
                 implicit_load = m0 - dry_eff - rest
