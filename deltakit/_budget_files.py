@@ -77,11 +77,15 @@ def budget_to_dict(budget: Budget) -> dict[str, Any]:
 def _envelope(data: Any, origin: str) -> int:
     """Check the format tag and version; return the version."""
     if not isinstance(data, dict):
-        raise DomainError(f"{origin} is not a deltakit budget: expected a JSON object, got {type(data).__name__}")
+        raise DomainError(
+            f"{origin} is not a deltakit budget: expected a JSON object, got {type(data).__name__}"
+        )
     if data.get("format") != FORMAT:
         shown = repr(data.get("format"))
         shown = shown if len(shown) <= 60 else shown[:57] + "..."
-        raise DomainError(f"{origin} is not a deltakit budget: its format tag is {shown}, expected {FORMAT!r}")
+        raise DomainError(
+            f"{origin} is not a deltakit budget: its format tag is {shown}, expected {FORMAT!r}"
+        )
     version = data.get("version")
     if isinstance(version, bool) or not isinstance(version, int) or not 1 <= version <= 10_000:
         shown = repr(version) if len(repr(version)) <= 30 else repr(version)[:27] + "..."
@@ -136,7 +140,10 @@ def _add_lines(budget: Budget, entries: list[Any], version: int) -> None:
                 )
             elif kind == "drop_stage":
                 line = BudgetLine(
-                    text(entry["label"], "label"), 0.0, kind=kind, stage=text(entry["stage"], "stage", empty=False)
+                    text(entry["label"], "label"),
+                    0.0,
+                    kind=kind,
+                    stage=text(entry["stage"], "stage", empty=False),
                 )
             else:
                 mass = real(entry["mass_kg"], "mass", "kg", low=0.0)
@@ -153,7 +160,9 @@ def budget_from_dict(cls: type[Budget], data: Any, origin: str) -> Budget:
     version = _envelope(data, origin)
     try:
         if version == 1:
-            budget = cls(data["m0_kg"], data["ve_m_per_s"], data.get("name", ""), dry_mass=data.get("dry_mass_kg"))
+            budget = cls(
+                data["m0_kg"], data["ve_m_per_s"], data.get("name", ""), dry_mass=data.get("dry_mass_kg")
+            )
         else:
             policy = data.get("policy")
             budget = cls(
@@ -166,7 +175,9 @@ def budget_from_dict(cls: type[Budget], data: Any, origin: str) -> Budget:
             )
             for raw in _list(data, "stages"):
                 entry = _object(raw, "a stage")
-                stage = Stage(entry["name"], entry["dry_mass_kg"], entry.get("drop", "line"), entry.get("maturity"))
+                stage = Stage(
+                    entry["name"], entry["dry_mass_kg"], entry.get("drop", "line"), entry.get("maturity")
+                )
                 budget._stages[stage.name] = stage
             for raw in _list(data, "systems"):
                 entry = _object(raw, "a system")
@@ -189,7 +200,9 @@ def budget_from_dict(cls: type[Budget], data: Any, origin: str) -> Budget:
         budget._cache = None
         budget._resolve()
     except KeyError as err:
-        raise DomainError(f"{origin} is a damaged deltakit budget: field {err.args[0]!r} is missing") from None
+        raise DomainError(
+            f"{origin} is a damaged deltakit budget: field {err.args[0]!r} is missing"
+        ) from None
     except (DomainError, TypeError) as err:
         raise DomainError(f"{origin} is a damaged deltakit budget: {err}") from None
     return budget
@@ -211,12 +224,17 @@ def read_data(path: Path) -> dict[str, Any]:
         data = json.loads(text)
     except json.JSONDecodeError as err:
         raise DomainError(
-            f"{path} is corrupt or truncated: invalid JSON at line {err.lineno}, column {err.colno} ({err.msg})"
+            f"{path} is corrupt or truncated: invalid JSON at line {err.lineno}, "
+            f"column {err.colno} ({err.msg})"
         ) from None
     except RecursionError:
-        raise DomainError(f"{path} is not a deltakit budget: its JSON is nested far deeper than a budget's") from None
+        raise DomainError(
+            f"{path} is not a deltakit budget: its JSON is nested far deeper than a budget's"
+        ) from None
     except ValueError as err:  # an integer with thousands of digits
-        raise DomainError(f"{path} is not a deltakit budget: it holds a number beyond reason ({err})") from None
+        raise DomainError(
+            f"{path} is not a deltakit budget: it holds a number beyond reason ({err})"
+        ) from None
     return data
 
 

@@ -147,8 +147,16 @@ def mass_rows(budget: Budget) -> list[dict[str, Any]]:
 
     def item(name: str, maturity: str | None, nominal: float | None, total: float | None) -> None:
         if nominal is None or total is None:
-            rows.append(dict(item=name, maturity="", nominal=math.nan, growth_percent=math.nan,
-                             growth=math.nan, total=math.nan))
+            rows.append(
+                dict(
+                    item=name,
+                    maturity="",
+                    nominal=math.nan,
+                    growth_percent=math.nan,
+                    growth=math.nan,
+                    total=math.nan,
+                )
+            )
             return
         growth = total - nominal
         rows.append(
@@ -202,7 +210,11 @@ def mass_frame(budget: Budget) -> Any:
 
 # ---------------------------------------------------------------------- text tables
 def _number(value: float, digits: int, missing: str = "") -> str:
-    return missing if value is None or (isinstance(value, float) and math.isnan(value)) else f"{value:.{digits}f}"
+    return (
+        missing
+        if value is None or (isinstance(value, float) and math.isnan(value))
+        else f"{value:.{digits}f}"
+    )
 
 
 def _shows(budget: Budget) -> dict[str, bool]:
@@ -233,8 +245,11 @@ def line_cells(budget: Budget) -> tuple[list[str], list[list[str]], list[str]]:
             value = row[key]
             if key in formats:
                 is_event = row["kind"] != "burn"
-                cells.append("" if (is_event and key != "mass_event") or (not is_event and key == "mass_event")
-                             else _number(value, formats[key]))
+                cells.append(
+                    ""
+                    if (is_event and key != "mass_event") or (not is_event and key == "mass_event")
+                    else _number(value, formats[key])
+                )
             elif key in ("mass_before", "propellant", "mass_after"):
                 cells.append(_number(value, 2, missing="tank dry"))
             else:
@@ -293,15 +308,22 @@ def verdict(budget: Budget) -> str:
     """One sentence: does the budget close, and if not, where and by how much."""
     if budget.closes:
         left = float(budget.propellant_left)
-        return "The budget closes" + ("." if math.isnan(left) else f" with {left:.2f} kg of usable propellant left.")
+        return "The budget closes" + (
+            "." if math.isnan(left) else f" with {left:.2f} kg of usable propellant left."
+        )
     parts = []
     for name, use in budget.usage.items():
         if use.runs_dry_at is not None:
             line = budget.lines[use.runs_dry_at]
-            parts.append(f"tank {name} runs dry at line {use.runs_dry_at + 1} ({line.label}), {use.shortfall:.2f} kg short")
+            parts.append(
+                f"tank {name} runs dry at line {use.runs_dry_at + 1} ({line.label}), "
+                f"{use.shortfall:.2f} kg short"
+            )
     if not parts:
         index = budget.first_infeasible
-        parts.append(f"line {index + 1} ({budget.lines[index].label}) cannot be flown: no system is left to fly it")
+        parts.append(
+            f"line {index + 1} ({budget.lines[index].label}) cannot be flown: no system is left to fly it"
+        )
     return "The budget does not close: " + "; ".join(parts) + "."
 
 
@@ -309,7 +331,11 @@ def policy_note(budget: Budget) -> str | None:
     policy = budget.policy
     if policy is None:
         return None
-    return f"Margin policy: {policy.name}. Source: {policy.source}" if policy.source else f"Margin policy: {policy.name}."
+    return (
+        f"Margin policy: {policy.name}. Source: {policy.source}"
+        if policy.source
+        else f"Margin policy: {policy.name}."
+    )
 
 
 def markdown(budget: Budget) -> str:
@@ -347,9 +373,13 @@ def latex(budget: Budget, float_: bool = True, width: str | None = None) -> str:
     name = escape_latex(budget.name)
     title = f"{name}: " if budget.name else ""
 
-    def block(headers: list[str], body: list[list[str]], total: list[str] | None, text_columns: int, caption: str):
-        spec = "".join("r" if i == 0 and headers[0] == "line" else ("l" if i < text_columns else "r")
-                       for i in range(len(headers)))
+    def block(
+        headers: list[str], body: list[list[str]], total: list[str] | None, text_columns: int, caption: str
+    ):
+        spec = "".join(
+            "r" if i == 0 and headers[0] == "line" else ("l" if i < text_columns else "r")
+            for i in range(len(headers))
+        )
         rows = [r"\begin{tabular}{" + spec + "}", r"\hline"]
         rows.append(" & ".join(escape_latex(h) for h in headers) + r" \\")
         rows.append(r"\hline")
@@ -367,8 +397,13 @@ def latex(budget: Budget, float_: bool = True, width: str | None = None) -> str:
     shows = _shows(budget)
     headers, body, total = line_cells(budget)
     out = [LATEX_MARK]
-    out += block(headers, body, total, headers.index("source") + 1,
-                 f"{title}delta-v budget (margins in \\% of each line's delta-v)")
+    out += block(
+        headers,
+        body,
+        total,
+        headers.index("source") + 1,
+        f"{title}delta-v budget (margins in \\% of each line's delta-v)",
+    )
     if shows["systems"]:
         s_headers, s_body = system_cells(budget)
         out += [""] + block(s_headers, s_body, None, 2, f"{title}propulsion systems")
@@ -399,7 +434,9 @@ _KINDS = {
 }
 
 
-def write_text(budget: Budget, fmt: str, content: str, path: str | os.PathLike[str] | None, overwrite: bool) -> str:
+def write_text(
+    budget: Budget, fmt: str, content: str, path: str | os.PathLike[str] | None, overwrite: bool
+) -> str:
     """Write ``content`` to ``path`` if given (refusing a file of another kind); return the content."""
     if path is not None:
         kind, same = _KINDS[fmt]

@@ -90,18 +90,34 @@ def _first(index: np.ndarray, now: Any, i: int) -> np.ndarray:
     return np.where((index < 0) & now, i, index)
 
 
-def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True) -> Ledger:
-    """Fly the lines of ``plan`` with the numbers of ``inputs``; see the module notes."""
+def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True, start: Ledger | None = None) -> Ledger:
+    """Fly the lines of ``plan`` with the numbers of ``inputs``; see the module notes.
+
+    With ``start`` (the ledger of the same plan without its last lines), the
+    flight resumes where ``start`` ended: appending a line costs one line.
+    """
     m = np.asarray(inputs.m0, dtype=float)
     shape = m.shape
     tolerance = DRY_TOLERANCE * m
-    n_systems = len(plan.system_stage)
-    left = [np.broadcast_to(np.asarray(u, dtype=float), shape).copy() for u in inputs.usable]
-    used = [np.zeros(shape) for _ in range(n_systems)]
-    dry_at = [np.full(shape, -1) for _ in range(n_systems)]
-    broken_at = np.full(shape, -1)
-    alive: list[Any] = [True] * len(plan.stage_spent)
     out = Ledger()
+    if start is None:
+        first = 0
+        left = [np.broadcast_to(np.asarray(u, dtype=float), shape).copy() for u in inputs.usable]
+        used = [np.zeros(shape) for _ in plan.system_stage]
+        dry_at = [np.full(shape, -1) for _ in plan.system_stage]
+        broken_at = np.full(shape, -1)
+        alive: list[Any] = [True] * len(plan.stage_spent)
+    else:
+        first = len(start.before)
+        m = start.final
+        left, used, dry_at, alive = (
+            list(start.left),
+            list(start.used),
+            list(start.dry_at),
+            list(start.attached),
+        )
+        broken_at = start.broken_at
+        out.before, out.after, out.burned = list(start.before), list(start.after), list(start.burned)
 
     def drop(stage: int, mask: Any) -> None:
         nonlocal m
@@ -113,7 +129,8 @@ def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True) -> Ledger:
         alive[stage] = np.logical_not(attached) if alive[stage] is True else (alive[stage] & ~attached)
 
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        for i, op in enumerate(plan.ops):
+        for i in range(first, len(plan.ops)):
+            op = plan.ops[i]
             before = m
             burned: Any = 0.0
             broke: Any = False
@@ -121,7 +138,9 @@ def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True) -> Ledger:
                 remaining = np.asarray(inputs.dv[i], dtype=float)
                 last = len(op.chain) - 1
                 for position, j in enumerate(op.chain):
-                    ve = inputs.line_ve[i] if position == 0 and inputs.line_ve[i] is not None else inputs.ve[j]
+                    ve = (
+                        inputs.line_ve[i] if position == 0 and inputs.line_ve[i] is not None else inputs.ve[j]
+                    )
                     stage = plan.system_stage[j]
                     attached = True if stage < 0 else alive[stage]
                     need = -m * np.expm1(-remaining / ve)

@@ -180,6 +180,44 @@ class SystemUsage(Result):
 
 
 @dataclass
+class _Context:
+    """What a line is checked against: the systems and stages, and what earlier lines did."""
+
+    system_index: dict[str, int]
+    system_stage: tuple[int, ...]
+    stage_index: dict[str, int]
+    stage_names: tuple[str, ...]
+    stage_systems: tuple[tuple[int, ...], ...]
+    spent: tuple[bool, ...]
+    fallback: int | None
+    dropped: set[int]
+    aboard: float | None
+
+    @classmethod
+    def of(
+        cls, budget: Budget, systems: list[PropulsionSystem], stages: list[Stage], dry: float | None
+    ) -> _Context:
+        stage_index = {s.name: k for k, s in enumerate(stages)}
+        system_index = {s.name: j for j, s in enumerate(systems)}
+        system_stage = tuple(-1 if s.stage is None else stage_index[s.stage] for s in systems)
+        core = [j for j, k in enumerate(system_stage) if k < 0]
+        main = None if budget._main is None else system_index[budget._main]
+        return cls(
+            system_index=system_index,
+            system_stage=system_stage,
+            stage_index=stage_index,
+            stage_names=tuple(stage_index),
+            stage_systems=tuple(
+                tuple(j for j, k in enumerate(system_stage) if k == n) for n in range(len(stages))
+            ),
+            spent=tuple(s.drop == "spent" for s in stages),
+            fallback=main if main is not None and system_stage[main] < 0 else (core[0] if core else None),
+            dropped=set(),
+            aboard=dry,
+        )
+
+
+@dataclass
 class Resolved:
     """A checked budget, flown at its nominal numbers (cached by the budget until the next edit)."""
 
@@ -191,6 +229,7 @@ class Resolved:
     plan: _ledger.Plan
     inputs: _ledger.Inputs
     ledger: _ledger.Ledger
+    context: _Context
 
     def per_line(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Mass before, mass after and propellant of each line; NaN from where a tank ran dry."""
@@ -325,7 +364,9 @@ class Budget:
             self._systems[_MAIN] = PropulsionSystem(_MAIN, ve)
             self._main = _MAIN
         if m0 is None and dry_mass is None:
-            raise DomainError("give `m0` (the start mass, kg) or `dry_mass` (with a propellant load per system)")
+            raise DomainError(
+                "give `m0` (the start mass, kg) or `dry_mass` (with a propellant load per system)"
+            )
         self._m0 = m0
         if dry_mass is not None:
             dry = real(dry_mass, "dry_mass", "kg", low=0.0, strict=True)
@@ -339,7 +380,17 @@ class Budget:
         self._resolve()
 
     # ------------------------------------------------------------------ edits, all or nothing
-    _STATE = ("_lines", "_systems", "_stages", "_main", "_m0", "_dry_mass", "_dry_maturity", "_policy", "_name")
+    _STATE = (
+        "_lines",
+        "_systems",
+        "_stages",
+        "_main",
+        "_m0",
+        "_dry_mass",
+        "_dry_maturity",
+        "_policy",
+        "_name",
+    )
 
     def _edit(self, change: Any, culprit: str) -> Budget:
         """Apply ``change(self)``, check the whole budget, and undo everything on an error."""
@@ -458,7 +509,9 @@ class Budget:
     def main_system(self, value: str) -> None:
         name = text(value, "main_system", empty=False)
         if name not in self._systems:
-            raise DomainError(f"`main_system` {name!r} is not a system of this budget ({self._known_systems()})")
+            raise DomainError(
+                f"`main_system` {name!r} is not a system of this budget ({self._known_systems()})"
+            )
         self._edit(lambda b: setattr(b, "_main", name), "main_system")
 
     @property
@@ -594,7 +647,9 @@ class Budget:
                 )
             margin = self._policy.dv_margin(category)
         margin = 0.0 if margin is None else fraction(margin, "margin")
-        return BudgetLine(label, dv, ve, margin, source or found, system, category, "burn", 0.0, None, from_policy)
+        return BudgetLine(
+            label, dv, ve, margin, source or found, system, category, "burn", 0.0, None, from_policy
+        )
 
     def add(
         self,
@@ -630,13 +685,13 @@ class Budget:
         >>> from deltakit import Budget
         >>> len(Budget(500.0, 2500.0).add("a", 10.0).add("b", 20.0).lines)
         2
-        >>> Budget(500.0, 2500.0).add("a", 10.0, margin=5)
+        >>> Budget(500.0, 2500.0).add("a", 10.0, margin=5)  # doctest: +ELLIPSIS
         Traceback (most recent call last):
         ...
-        deltakit.errors.DomainError: `margin` must be a fraction between 0 and 1 (0.05 = +5 %), got 5.0; did you mean 0.05?
+        deltakit.errors.DomainError: `margin` must be a fraction ... got 5.0; did you mean 0.05?
         """
         line = self._burn_line(label, dv_or_transfer, ve, margin, system, category)
-        return self._edit(lambda b: b._lines.append(line), "system")
+        return self._append(line, "system")
 
     def insert(
         self,
@@ -684,7 +739,7 @@ class Budget:
         696.5
         """
         line = BudgetLine(text(label, "label"), 0.0, kind="jettison", mass=real(mass, "mass", "kg", low=0.0))
-        return self._edit(lambda b: b._lines.append(line), "mass")
+        return self._append(line, "mass")
 
     def add_mass(self, label: str, mass: float) -> Budget:
         """Append an added mass (docking, a sample picked up): ``mass`` kg come aboard; returns the budget.
@@ -697,7 +752,7 @@ class Budget:
         1250.0
         """
         line = BudgetLine(text(label, "label"), 0.0, kind="add_mass", mass=real(mass, "mass", "kg", low=0.0))
-        return self._edit(lambda b: b._lines.append(line), "mass")
+        return self._append(line, "mass")
 
     def drop_stage(self, label: str, stage: str) -> Budget:
         """Append the drop of a stage: its dry mass and what its tanks hold leave; returns the budget.
@@ -711,8 +766,10 @@ class Budget:
         >>> round(float(b.final_mass), 1), round(float(b.usage["carrier main"].left), 1)
         (400.0, 188.2)
         """
-        line = BudgetLine(text(label, "label"), 0.0, kind="drop_stage", stage=text(stage, "stage", empty=False))
-        return self._edit(lambda b: b._lines.append(line), "stage")
+        line = BudgetLine(
+            text(label, "label"), 0.0, kind="drop_stage", stage=text(stage, "stage", empty=False)
+        )
+        return self._append(line, "stage")
 
     def remove(self, index: int) -> Budget:
         """Remove line ``index``; returns the budget.
@@ -770,7 +827,9 @@ class Budget:
                 f"`update` of a {old.kind} line takes {', '.join(sorted(allowed))}; got {sorted(unknown)}"
             )
         if old.kind == "burn":
-            margin = changes["margin"] if "margin" in changes else (None if old.margin_from_policy else old.margin)
+            margin = (
+                changes["margin"] if "margin" in changes else (None if old.margin_from_policy else old.margin)
+            )
             line = self._burn_line(
                 changes.get("label", old.label),
                 changes.get("dv", old.dv),
@@ -785,7 +844,9 @@ class Budget:
                 old,
                 label=text(changes.get("label", old.label), "label"),
                 mass=real(changes.get("mass", old.mass), "mass", "kg", low=0.0),
-                stage=None if old.stage is None else text(changes.get("stage", old.stage), "stage", empty=False),
+                stage=None
+                if old.stage is None
+                else text(changes.get("stage", old.stage), "stage", empty=False),
             )
         culprit = next(iter(changes), "index")
         return self._edit(lambda b: b._lines.__setitem__(position, line), culprit)
@@ -824,17 +885,17 @@ class Budget:
             return self._cache
         systems = list(self._systems.values())
         stages = list(self._stages.values())
-        stage_index = {s.name: k for k, s in enumerate(stages)}
-        system_index = {s.name: j for j, s in enumerate(systems)}
         for s in systems:
-            if s.stage is not None and s.stage not in stage_index:
+            if s.stage is not None and s.stage not in self._stages:
                 raise DomainError(f"`stage` {s.stage!r} of system {s.name!r} is not a stage of this budget")
         implicit = [s for s in systems if s.propellant is None]
         if len(implicit) > 1:
             names = ", ".join(repr(s.name) for s in implicit)
             raise DomainError(f"`propellant` must be given for all systems but one (none given for {names})")
         if implicit and implicit[0].stage is not None:
-            raise DomainError(f"`propellant` of system {implicit[0].name!r} must be given: it sits on a stage")
+            raise DomainError(
+                f"`propellant` of system {implicit[0].name!r} must be given: it sits on a stage"
+            )
         stage_dry = [s.dry_mass * (1.0 + self._growth(s.maturity, "maturity")) for s in stages]
         loads = sum(s.propellant for s in systems if s.propellant is not None)
         rest = sum(stage_dry) + loads
@@ -846,7 +907,8 @@ class Budget:
         if implicit:
             if m0 is None:
                 raise DomainError(
-                    f"`propellant` of system {implicit[0].name!r} must be given: no start mass `m0` to take its load from"
+                    f"`propellant` of system {implicit[0].name!r} must be given: "
+                    "no start mass `m0` to take its load from"
                 )
             if dry_eff is not None:
                 implicit_load = m0 - dry_eff - rest
@@ -863,17 +925,40 @@ class Budget:
             dry_eff = m0 - rest
             if dry_eff <= 0.0:
                 raise DomainError(
-                    f"`{culprit}`: the loads and stages ({rest!r} kg) leave no dry mass in the start mass {m0!r} kg"
+                    f"`{culprit}`: the loads and stages ({rest!r} kg) leave no dry mass "
+                    f"in the start mass {m0!r} kg"
                 )
             dry = dry_eff
         elif systems and abs(m0 - (dry_eff + rest)) > 1e-9 * m0:  # with no system yet, nothing to compare
             raise DomainError(
-                f"`{culprit}`: the start mass {m0!r} kg must equal the dry mass with growth, stages and loads "
+                f"`{culprit}`: the start mass {m0!r} kg must equal the dry mass with growth, stages "
+                "and loads "
                 f"({dry_eff + rest!r} kg); set `m0 = None` to let it follow them"
             )
-        plan, inputs = self._plan(systems, system_index, stages, stage_index, stage_dry, implicit_load, m0)
+        context = _Context.of(self, systems, stages, dry_eff)
+        ops = [self._op(line, number, context) for number, line in enumerate(self._lines, start=1)]
+        usable = [
+            (s.usable if s.propellant is not None else (math.inf if implicit_load is None else implicit_load))
+            for s in systems
+        ]
+        plan = _ledger.Plan(
+            context.system_stage, tuple(s.drop == "spent" for s in stages), context.stage_systems, tuple(ops)
+        )
+        inputs = _ledger.Inputs(
+            m0=m0,
+            ve=[s.ve for s in systems],
+            usable=usable,
+            residual=[s.residual_mass for s in systems],
+            stage_dry=stage_dry,
+            dv=[self._line_dv(line) for line in self._lines],
+            line_ve=[line.ve if line.kind == "burn" else None for line in self._lines],
+            mass=[line.mass for line in self._lines],
+        )
         ledger = _ledger.run(plan, inputs)
-        self._check_events(ledger, dry_eff)
+        aboard = dry_eff
+        for number, line in enumerate(self._lines, start=1):
+            aboard = self._check_event(line, number, ledger.before[number - 1], aboard)
+        context.aboard = aboard
         self._cache = Resolved(
             m0=m0,
             dry_nominal=dry,
@@ -883,105 +968,87 @@ class Budget:
             plan=plan,
             inputs=inputs,
             ledger=ledger,
+            context=context,
         )
         return self._cache
 
-    def _plan(
-        self,
-        systems: list[PropulsionSystem],
-        system_index: dict[str, int],
-        stages: list[Stage],
-        stage_index: dict[str, int],
-        stage_dry: list[float],
-        implicit_load: float | None,
-        m0: float,
-    ) -> tuple[_ledger.Plan, _ledger.Inputs]:
-        """The ledger's plan and nominal inputs; checks every line against the vehicle."""
-        system_stage = tuple(-1 if s.stage is None else stage_index[s.stage] for s in systems)
-        stage_systems = tuple(
-            tuple(j for j, k in enumerate(system_stage) if k == index) for index in range(len(stages))
-        )
-        core = [j for j, k in enumerate(system_stage) if k < 0]
-        main = None if self._main is None else system_index[self._main]
-        fallback = main if main is not None and system_stage[main] < 0 else (core[0] if core else None)
-        dropped: set[int] = set()
-        ops, dv, line_ve, mass = [], [], [], []
-        for number, line in enumerate(self._lines, start=1):
-            where = f"line {number} ({line.label!r})"
-            if line.kind == "burn":
-                name = line.system if line.system is not None else self._main
-                if name is None:
-                    raise DomainError(f"`system`: {where} names no system and the budget has no main system")
-                if name not in system_index:
-                    raise DomainError(
-                        f"`system` {name!r} of {where} is not a system of this budget ({self._known_systems()})"
-                    )
-                j = system_index[name]
-                if system_stage[j] in dropped:
-                    raise DomainError(
-                        f"`system` {name!r} of {where} sits on stage {systems[j].stage!r}, dropped by an earlier line"
-                    )
-                chain = [j]
-                k = system_stage[j]
-                if k >= 0 and stages[k].drop == "spent":
-                    for above in range(k + 1, len(stages)):
-                        if stage_systems[above] and above not in dropped:
-                            chain.append(stage_systems[above][0])
-                    if fallback is not None and fallback not in chain:
-                        chain.append(fallback)
-                ops.append(_ledger.Op("burn", tuple(chain)))
-                dv.append(line.dv_with_margin)
-                line_ve.append(line.ve)
-                mass.append(0.0)
-            elif line.kind == "drop_stage":
-                if line.stage not in stage_index:
-                    raise DomainError(f"`stage` {line.stage!r} of {where} is not a stage of this budget")
-                k = stage_index[line.stage]
-                if k in dropped:
-                    raise DomainError(f"`stage` {line.stage!r} of {where} was dropped by an earlier line")
-                dropped.add(k)
-                ops.append(_ledger.Op("drop_stage", stage=k))
-                dv.append(0.0)
-                line_ve.append(None)
-                mass.append(0.0)
-            else:
-                ops.append(_ledger.Op(line.kind))
-                dv.append(0.0)
-                line_ve.append(None)
-                mass.append(line.mass)
-        usable = [
-            (s.usable if s.propellant is not None else (math.inf if implicit_load is None else implicit_load))
-            for s in systems
-        ]
-        plan = _ledger.Plan(system_stage, tuple(s.drop == "spent" for s in stages), stage_systems, tuple(ops))
-        inputs = _ledger.Inputs(
-            m0=m0,
-            ve=[s.ve for s in systems],
-            usable=usable,
-            residual=[s.residual_mass for s in systems],
-            stage_dry=stage_dry,
-            dv=dv,
-            line_ve=line_ve,
-            mass=mass,
-        )
-        return plan, inputs
+    @staticmethod
+    def _line_dv(line: BudgetLine) -> float:
+        return line.dv_with_margin if line.kind == "burn" else 0.0
 
-    def _check_events(self, ledger: _ledger.Ledger, dry_eff: float | None) -> None:
-        """A jettison may not take more than the vehicle that stays has."""
-        aboard = dry_eff
-        for number, line in enumerate(self._lines, start=1):
-            if line.kind == "add_mass" and aboard is not None:
-                aboard += line.mass
-            elif line.kind == "jettison":
-                limit = aboard if aboard is not None else float(ledger.before[number - 1])
-                what = "dry mass aboard" if aboard is not None else "vehicle mass"
-                if line.mass > limit * (1.0 + 1e-12) or (aboard is None and line.mass >= limit):
-                    raise DomainError(
-                        f"`mass` of jettison {number} ({line.label!r}): {line.mass!r} kg is more than the "
-                        f"{what} at that line ({limit!r} kg)"
-                    )
-                if aboard is not None:
-                    aboard -= line.mass
+    def _op(self, line: BudgetLine, number: int, context: _Context) -> _ledger.Op:
+        """The ledger's view of one line, checked against the vehicle as it is at that line."""
+        where = f"line {number} ({line.label!r})"
+        if line.kind == "burn":
+            name = line.system if line.system is not None else self._main
+            if name is None:
+                raise DomainError(f"`system`: {where} names no system and the budget has no main system")
+            if name not in context.system_index:
+                raise DomainError(
+                    f"`system` {name!r} of {where} is not a system of this budget ({self._known_systems()})"
+                )
+            j = context.system_index[name]
+            k = context.system_stage[j]
+            if k in context.dropped:
+                raise DomainError(
+                    f"`system` {name!r} of {where} sits on stage {context.stage_names[k]!r}, "
+                    "dropped by an earlier line"
+                )
+            chain = [j]
+            if k >= 0 and context.spent[k]:
+                for above in range(k + 1, len(context.spent)):
+                    if context.stage_systems[above] and above not in context.dropped:
+                        chain.append(context.stage_systems[above][0])
+                if context.fallback is not None and context.fallback not in chain:
+                    chain.append(context.fallback)
+            return _ledger.Op("burn", tuple(chain))
+        if line.kind == "drop_stage":
+            if line.stage not in context.stage_index:
+                raise DomainError(f"`stage` {line.stage!r} of {where} is not a stage of this budget")
+            k = context.stage_index[line.stage]
+            if k in context.dropped:
+                raise DomainError(f"`stage` {line.stage!r} of {where} was dropped by an earlier line")
+            context.dropped.add(k)
+            return _ledger.Op("drop_stage", stage=k)
+        return _ledger.Op(line.kind)
+
+    @staticmethod
+    def _check_event(line: BudgetLine, number: int, before: Any, aboard: float | None) -> float | None:
+        """A jettison may not take more than the vehicle that stays has; returns the dry mass aboard after."""
+        if line.kind == "add_mass" and aboard is not None:
+            return aboard + line.mass
+        if line.kind != "jettison":
+            return aboard
+        limit = aboard if aboard is not None else float(before)
+        what = "dry mass aboard" if aboard is not None else "vehicle mass"
+        if line.mass > limit * (1.0 + 1e-12) or (aboard is None and line.mass >= limit):
+            raise DomainError(
+                f"`mass` of jettison {number} ({line.label!r}): {line.mass!r} kg is more than the "
+                f"{what} at that line ({limit!r} kg)"
+            )
+        return None if aboard is None else aboard - line.mass
+
+    def _append(self, line: BudgetLine, culprit: str) -> Budget:
+        """Append a line, checking and flying only that line when the rest is already flown."""
+        cache = self._cache
+        if cache is None:
+            return self._edit(lambda b: b._lines.append(line), culprit)
+        context = copy.copy(cache.context)
+        context.dropped = set(context.dropped)
+        number = len(self._lines) + 1
+        op = self._op(line, number, context)
+        inputs = replace(
+            cache.inputs,
+            dv=[*cache.inputs.dv, self._line_dv(line)],
+            line_ve=[*cache.inputs.line_ve, line.ve if line.kind == "burn" else None],
+            mass=[*cache.inputs.mass, line.mass],
+        )
+        plan = replace(cache.plan, ops=(*cache.plan.ops, op))
+        ledger = _ledger.run(plan, inputs, start=cache.ledger)
+        context.aboard = self._check_event(line, number, ledger.before[-1], context.aboard)
+        self._lines.append(line)
+        self._cache = replace(cache, plan=plan, inputs=inputs, ledger=ledger, context=context)
+        return self
 
     # ------------------------------------------------------------------ reading
     @property

@@ -97,7 +97,9 @@ class PropulsionSystem:
         object.__setattr__(self, "ve", real(self.ve, "ve", "m/s", low=0.0, strict=True))
         if self.propellant is not None:
             object.__setattr__(self, "propellant", real(self.propellant, "propellant", "kg", low=0.0))
-        object.__setattr__(self, "residual", fraction(self.residual, "residual", what="a fraction of the load"))
+        object.__setattr__(
+            self, "residual", fraction(self.residual, "residual", what="a fraction of the load")
+        )
         if self.stage is not None:
             object.__setattr__(self, "stage", text(self.stage, "stage", empty=False))
 

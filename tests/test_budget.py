@@ -259,7 +259,9 @@ def test_frame_has_units_in_headers_and_the_numbers():
     np.testing.assert_allclose(frame["mass after (kg)"], b.mass_after, rtol=0)
     # Nominal, margin and total are separate columns, and the margin says its convention.
     np.testing.assert_allclose(frame["margin (% of dv)"], [25.0, 5.0, 5.0, 3.0, 50.0], rtol=1e-12)
-    np.testing.assert_allclose(frame["dv (m/s)"] + frame["margin (m/s)"], frame["dv with margin (m/s)"], rtol=1e-15)
+    np.testing.assert_allclose(
+        frame["dv (m/s)"] + frame["margin (m/s)"], frame["dv with margin (m/s)"], rtol=1e-15
+    )
     # A typed line says it was entered (not "number"); a transfer names its type and burns.
     assert list(frame["source"]) == ["entered", "entered", "entered", "Transfer (2 burns)", "entered"]
     assert "fractions" in frame.attrs["convention"]

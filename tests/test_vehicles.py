@@ -41,7 +41,7 @@ def reference(m0, systems, stages, main, lines):
     """
     mp = mpmath.mpf
     m = mp(m0)
-    left = {name: mp(load) * (1 - mp(res)) for name, (ve, load, res, stage) in systems.items()}
+    left = {name: mp(load) * (1 - mp(res)) for name, (_ve, load, res, _stage) in systems.items()}
     used = {name: mp(0) for name in systems}
     attached = {name: True for name in stages}
     order = list(stages)
@@ -53,7 +53,7 @@ def reference(m0, systems, stages, main, lines):
     def drop(stage):
         nonlocal m
         out = mp(stages[stage][0])
-        for name, (ve, load, res, where) in systems.items():
+        for name, (_ve, load, res, where) in systems.items():
             if where == stage:
                 out += mp(load) * mp(res) + max(left[name], mp(0))
         m -= out
@@ -105,7 +105,7 @@ def reference(m0, systems, stages, main, lines):
         else:
             drop(line[1])
         rows.append((before, m, burned))
-    for name, (ve, load, res, stage) in systems.items():
+    for name, (_ve, _load, _res, stage) in systems.items():
         spent = stage is not None and stages[stage][1] == "spent"
         if not spent and abs(left[name]) < mp("1e-9") * mp(m0):
             borderline = True
@@ -163,8 +163,9 @@ WICKET_LINES = [
 
 def test_staged_vehicle_with_events_matches_the_reference_loop():
     b = build(380.0, WICKET_SYSTEMS, WICKET_STAGES, "lander engine", WICKET_LINES)
-    rows, used, left, _ = reference(380.0 + 540.0 + 420.0 + 35.0 + 1600.0, WICKET_SYSTEMS, WICKET_STAGES,
-                                    "lander engine", WICKET_LINES)
+    rows, used, left, _ = reference(
+        380.0 + 540.0 + 420.0 + 35.0 + 1600.0, WICKET_SYSTEMS, WICKET_STAGES, "lander engine", WICKET_LINES
+    )
     assert float(b.m0) == pytest.approx(2975.0, rel=0, abs=1e-12)
     assert b.closes
     assert_matches(b, rows, used, left, float(b.m0))
@@ -200,7 +201,9 @@ def test_a_stage_dropped_when_spent_hands_the_rest_of_the_burn_to_the_stage_abov
     upper = 3100.0 * math.log(m_upper / (m_upper - 400.0))
     probe_first = 4200.0 - kick - upper
     m_probe = m_upper - 400.0 - 90.0
-    assert rows[0][2] == pytest.approx(600.0 + 400.0 + m_probe * -math.expm1(-probe_first / 3000.0), rel=1e-12)
+    assert rows[0][2] == pytest.approx(
+        600.0 + 400.0 + m_probe * -math.expm1(-probe_first / 3000.0), rel=1e-12
+    )
 
 
 @st.composite
@@ -276,7 +279,9 @@ def test_a_one_engine_budget_keeps_the_numbers_main_gave():
     b = Budget.load("tests/data/budget_v1_main.json")
     assert float(b.propellant) == pytest.approx(485.60459747784205, rel=1e-13)
     assert float(b.final_mass) == pytest.approx(964.395402522158, rel=1e-13)
-    np.testing.assert_allclose(b.mass_after, [1425.6722922874542, 995.1616169672525, 964.395402522158], rtol=1e-13)
+    np.testing.assert_allclose(
+        b.mass_after, [1425.6722922874542, 995.1616169672525, 964.395402522158], rtol=1e-13
+    )
     assert list(b.systems) == ["main"] and b.usage["main"].load == pytest.approx(840.0, rel=1e-15)
 
 
@@ -387,5 +392,7 @@ def test_tank_that_runs_dry_gives_nan_masses_and_the_shortfall():
     broken = b.first_infeasible
     assert broken == len(b) - 1 and b.usage["lander engine"].runs_dry_at == broken
     assert np.isnan(b.mass_after[broken]) and np.isnan(b.final_mass) and np.isnan(b.propellant)
-    assert b.usage["lander engine"].shortfall > 0.0 and float(b.shortfall) == b.usage["lander engine"].shortfall
+    assert (
+        b.usage["lander engine"].shortfall > 0.0 and float(b.shortfall) == b.usage["lander engine"].shortfall
+    )
     assert np.all(np.nan_to_num(b.mass_after, nan=1.0) > 0.0)  # never a negative mass
