@@ -71,6 +71,8 @@ _NAMES: dict[str, str] = {
     "PropulsionSystem": "vehicle",
     "Stage": "vehicle",
     "MarginPolicy": "margins",
+    "optimal_staging": "staging",
+    "StagingSplit": "staging",
     # finite burns and Kepler's equation
     "thrust_arc": "finite",
     "ArcOutcome": "finite",
