@@ -73,6 +73,10 @@ _NAMES: dict[str, str] = {
     "MarginPolicy": "margins",
     "optimal_staging": "staging",
     "StagingSplit": "staging",
+    "disperse": "dispersions",
+    "Normal": "dispersions",
+    "Uniform": "dispersions",
+    "Triangular": "dispersions",
     # finite burns and Kepler's equation
     "thrust_arc": "finite",
     "ArcOutcome": "finite",
