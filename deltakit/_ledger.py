@@ -160,14 +160,18 @@ def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True, start: Ledger | 
                     m = m - take
                     left[j] = left[j] - take
                     used[j] = used[j] + take
-                    burned = burned + take
+                    if keep_lines:
+                        burned = burned + take
                     remaining = np.asarray(remaining_after, dtype=float)
                     dry = left[j] < -tolerance
-                    dry_at[j] = _first(dry_at[j], dry, i)
-                    broke = broke | dry
+                    if dry.any():  # rare: spare the bookkeeping of the lines that do not run dry
+                        dry_at[j] = _first(dry_at[j], dry, i)
+                        broke = broke | dry
                     if over is not None and np.any(over):
                         drop(stage, over)
-                broke = broke | (remaining > 0.0)  # no system left to fly the rest
+                unflown = remaining > 0.0  # no system left to fly the rest
+                if unflown.any():
+                    broke = broke | unflown
             elif op.kind == "jettison":
                 m = m - inputs.mass[i]
                 broke = m <= tolerance
@@ -177,7 +181,8 @@ def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True, start: Ledger | 
                 drop(op.stage, True)
             else:  # pragma: no cover - the budget builds only the kinds above
                 raise AssertionError(op.kind)
-            broken_at = _first(broken_at, broke, i)
+            if broke is not False:
+                broken_at = _first(broken_at, broke, i)
             if keep_lines:
                 out.before.append(before)
                 out.after.append(m)

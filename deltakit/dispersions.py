@@ -143,9 +143,12 @@ class Normal:
         object.__setattr__(self, "mean", _finite(self.mean, "mean"))
         _check_spread(self)
 
-    def draw(self, rng: np.random.Generator, n: int) -> np.ndarray:
-        """``n`` independent deviations."""
-        return self.mean + self.sigma * rng.standard_normal(n)
+    def draw(self, rng: np.random.Generator, out: np.ndarray) -> np.ndarray:
+        """Fill ``out`` with independent deviations (and return it)."""
+        rng.standard_normal(out=out)
+        out *= self.sigma
+        out += self.mean
+        return out
 
     def from_normal(self, z: np.ndarray) -> np.ndarray:
         """The deviation at the same quantile as the standard normal draws ``z``."""
@@ -184,8 +187,11 @@ class Uniform:
         object.__setattr__(self, "high", high)
         _check_spread(self)
 
-    def draw(self, rng: np.random.Generator, n: int) -> np.ndarray:
-        return self.low + (self.high - self.low) * rng.random(n)
+    def draw(self, rng: np.random.Generator, out: np.ndarray) -> np.ndarray:
+        rng.random(out=out)
+        out *= self.high - self.low
+        out += self.low
+        return out
 
     def from_normal(self, z: np.ndarray) -> np.ndarray:
         return self.low + (self.high - self.low) * _normal_cdf(z)
@@ -223,10 +229,11 @@ class Triangular:
         object.__setattr__(self, "high", high)
         _check_spread(self)
 
-    def draw(self, rng: np.random.Generator, n: int) -> np.ndarray:
-        if self.high == self.low:
-            return np.full(n, self.low)
-        return rng.triangular(self.low, self.mode, self.high, n)
+    def draw(self, rng: np.random.Generator, out: np.ndarray) -> np.ndarray:
+        out[...] = (
+            self.low if self.high == self.low else rng.triangular(self.low, self.mode, self.high, out.shape)
+        )
+        return out
 
     def from_normal(self, z: np.ndarray) -> np.ndarray:
         u = _normal_cdf(z)
@@ -397,33 +404,66 @@ def _deviation(item: _Input, raw: np.ndarray) -> Any:
 
 
 def _flown_dv(spec: _Spec, n: int, moves: dict[int, Any]) -> tuple[list[Any], int]:
+    """Each line's delta-v as flown: nominal plus its deviations, never below zero, then its margin."""
     dv, clipped = [], 0
     for i, base in enumerate(spec.base_dv):
         if i not in moves:
             dv.append(base * (1.0 + spec.margin[i]))
             continue
         value = base + moves[i]
-        below = value < 0.0
-        clipped += int(np.count_nonzero(below))
-        dv.append(np.where(below, 0.0, value) * (1.0 + spec.margin[i]))
+        if value.min() < 0.0:
+            clipped += int(np.count_nonzero(value < 0.0))
+            np.maximum(value, 0.0, out=value)
+        if spec.margin[i]:
+            value *= 1.0 + spec.margin[i]
+        dv.append(value)
     return dv, clipped
 
 
-def _block(spec: _Spec, index: int, n: int) -> dict[str, np.ndarray]:
-    """Fly ``n`` samples of random block ``index``."""
+def _empty(spec: _Spec, n: int) -> dict[str, np.ndarray]:
+    """Room for ``n`` samples of every output."""
+    systems, lines, causes = len(spec.system_names), len(spec.base_dv), len(spec.causes)
+    shapes = {
+        "propellant_used": (systems, float),
+        "propellant_left": (systems, float),
+        "shortfall": (systems, float),
+        "propellant_margin": (systems, float),
+        "first_dry_line": ((), np.int64),
+        "closes": ((), bool),
+        "final_mass": ((), float),
+        "isp": (systems, float),
+        "dry_mass": ((), float),
+        "dv": (lines, float),
+        "cause_draw": (causes, float),
+    }
+    # one row per column of samples (system, line, cause): each is written and read whole
+    return {
+        key: np.empty(((tail,) if tail != () else ()) + (n,), dtype) for key, (tail, dtype) in shapes.items()
+    }
+
+
+def _block(
+    spec: _Spec, index: int, n: int, into: dict[str, np.ndarray] | None = None, start: int = 0
+) -> tuple[dict[str, np.ndarray], int]:
+    """Fly ``n`` samples of random block ``index``, written to ``into`` from sample ``start``.
+
+    Returns the samples written (views of ``into``, samples on the last axis) and how many
+    delta-v draws were clipped at zero.
+    """
+    if into is None:
+        into, start = _empty(spec, n), 0
+    out = {key: value[..., start : start + n] for key, value in into.items()}
     rng = np.random.default_rng(np.random.SeedSequence(spec.seed, spawn_key=(index,)))
     raw: list[Any] = [None] * len(spec.uncertain)
-    drivers = np.empty((n, len(spec.causes)))
+    drivers = out["cause_draw"]
     for c, ((_, members), grouped) in enumerate(zip(spec.causes, spec.grouped)):
         if grouped:
-            z = rng.standard_normal(n)
-            drivers[:, c] = z
+            z = rng.standard_normal(out=drivers[c])
             for m in members:
                 raw[m] = spec.uncertain[m].spread.from_normal(z)
         else:
             (m,) = members
-            raw[m] = spec.uncertain[m].spread.draw(rng, n)
-            drivers[:, c] = raw[m]
+            raw[m] = spec.uncertain[m].spread.draw(rng, drivers[c])
     nominal = spec.inputs
     ve = list(nominal.ve)
     m0 = np.full(n, float(nominal.m0))
@@ -435,7 +475,7 @@ def _block(spec: _Spec, index: int, n: int) -> dict[str, np.ndarray]:
         if item.what == "isp":
             j = item.index
             ve[j] = nominal.ve[j] * (1.0 + value) if item.spread.relative else nominal.ve[j] + G0 * value
-            if np.any(ve[j] <= 0.0):
+            if ve[j].min() <= 0.0:
                 bad = int(np.count_nonzero(ve[j] <= 0.0))
                 raise DomainError(
                     f"`isp` spread of system {spec.system_names[j]!r} draws a specific impulse <= 0 s "
@@ -470,26 +510,27 @@ def _block(spec: _Spec, index: int, n: int) -> dict[str, np.ndarray]:
         mass=nominal.mass,
     )
     ledger = _ledger.run(spec.plan, inputs, keep_lines=False)
-    used = np.stack([np.broadcast_to(u, (n,)) for u in ledger.used], axis=-1)
-    signed = np.stack([np.broadcast_to(x, (n,)) for x in ledger.left], axis=-1)
-    dry_at = np.stack([np.broadcast_to(x, (n,)) for x in ledger.dry_at], axis=-1)
-    tracked = np.array(spec.tracked)
-    margin = np.where(tracked, signed, np.nan)
-    closes = np.broadcast_to(ledger.broken_at, (n,)) < 0
-    return {
-        "propellant_used": used,
-        "propellant_left": np.where(tracked, np.maximum(signed, 0.0), np.nan),
-        "shortfall": np.where(dry_at >= 0, -signed, 0.0),
-        "propellant_margin": margin,
-        "first_dry_line": np.broadcast_to(ledger.broken_at, (n,)).astype(np.int64),
-        "closes": closes,
-        "final_mass": np.where(closes, np.broadcast_to(ledger.final, (n,)), np.nan),
-        "isp": np.stack([np.broadcast_to(v, (n,)) for v in ve], axis=-1) / G0,
-        "dry_mass": np.full(n, np.nan) if dry is None else dry,
-        "dv": np.stack([np.broadcast_to(v, (n,)) for v in dv], axis=-1) if dv else np.zeros((n, 0)),
-        "cause_draw": drivers,
-        "_clipped": np.array(clipped),
-    }
+    for j, tracked in enumerate(spec.tracked):
+        signed = ledger.left[j]
+        out["propellant_used"][j] = ledger.used[j]
+        out["propellant_margin"][j] = signed if tracked else np.nan
+        if tracked:
+            np.maximum(signed, 0.0, out=out["propellant_left"][j])
+        else:
+            out["propellant_left"][j] = np.nan
+        if np.all(ledger.dry_at[j] < 0):
+            out["shortfall"][j] = 0.0
+        else:
+            out["shortfall"][j] = np.where(ledger.dry_at[j] >= 0, -signed, 0.0)
+        np.divide(ve[j], G0, out=out["isp"][j])
+    out["first_dry_line"][:] = ledger.broken_at
+    closes = out["closes"]
+    closes[:] = ledger.broken_at < 0
+    out["final_mass"][:] = np.where(closes, ledger.final, np.nan)
+    out["dry_mass"][:] = np.nan if dry is None else dry
+    for i, value in enumerate(dv):
+        out["dv"][i] = value
+    return out, clipped
 
 
 def _blocks(samples: int) -> list[tuple[int, int]]:
@@ -499,20 +540,26 @@ def _blocks(samples: int) -> list[tuple[int, int]]:
 
 # ---------------------------------------------------------------------- summaries that merge across blocks
 def _targets(out: dict[str, np.ndarray], tracked: list[bool]) -> np.ndarray:
-    """The spreads the sensitivity explains: each tracked tank's signed margin, then all of them."""
-    margin = out["propellant_margin"][:, np.array(tracked, dtype=bool)]
-    return np.concatenate(
-        [np.nan_to_num(out["propellant_margin"]), margin.sum(axis=-1, keepdims=True)], axis=-1
-    )
+    """The spreads the sensitivity explains: each tank's signed margin (0 untracked), then all of them."""
+    margin = np.nan_to_num(out["propellant_margin"])
+    return np.concatenate([margin, margin[np.array(tracked, dtype=bool)].sum(axis=0, keepdims=True)])
 
 
 def _moments(out: dict[str, np.ndarray], tracked: list[bool]) -> tuple:
     """Count, closes, means, squared deviations and co-deviations of causes and targets in one block."""
     x, y = out["cause_draw"], _targets(out, tracked)
-    n = x.shape[0]
-    mx, my = x.mean(axis=0), y.mean(axis=0)
-    dx, dy = x - mx, y - my
-    return (n, int(np.count_nonzero(out["closes"])), mx, my, (dx * dx).sum(0), (dy * dy).sum(0), dx.T @ dy)
+    n = x.shape[-1]
+    mx, my = x.mean(axis=-1), y.mean(axis=-1)
+    dx, dy = x - mx[:, None], y - my[:, None]
+    return (
+        n,
+        int(np.count_nonzero(out["closes"])),
+        mx,
+        my,
+        np.einsum("ij,ij->i", dx, dx),
+        np.einsum("ij,ij->i", dy, dy),
+        dx @ dy.T,
+    )
 
 
 def _merge(a: tuple, b: tuple) -> tuple:
@@ -541,8 +588,8 @@ def _correlation(moments: tuple) -> np.ndarray:
 
 
 def _columns(out: dict[str, np.ndarray]) -> np.ndarray:
-    """The values whose percentiles are wanted: shape (n, quantity, system)."""
-    return np.stack([out[q] for q in QUANTITIES], axis=1)
+    """The values whose percentiles are wanted, one row each: (quantity x system, n), quantity first."""
+    return np.concatenate([out[q] for q in QUANTITIES])
 
 
 def _ranks(n: int, levels: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -557,25 +604,20 @@ def _lerp(a: np.ndarray, b: np.ndarray, t: np.ndarray) -> np.ndarray:
     return np.where(t >= 0.5, b - diff * (1.0 - t), a + diff * t)
 
 
-def _percentiles_in_memory(columns: np.ndarray, levels: np.ndarray) -> np.ndarray:
-    n = columns.shape[0]
+def _percentiles_in_memory(outputs: dict[str, np.ndarray], levels: np.ndarray) -> np.ndarray:
+    """Shape (system, quantity, level): exact order statistics, interpolated like numpy."""
+    columns = _columns(outputs)  # one row per quantity and system
+    n = columns.shape[-1]
     low, high, t = _ranks(n, levels)
-    kth = np.unique(np.concatenate([low, high]))
-    flat = columns.reshape(n, -1)
-    out = np.full((len(levels), flat.shape[1]), np.nan)
-    for column in range(flat.shape[1]):
-        values = flat[:, column]
-        if np.isnan(values).any():
-            continue  # an untracked tank: no percentile
-        ordered = np.partition(values, kth)
-        out[:, column] = _lerp(ordered[low], ordered[high], t)
-    return out.T.reshape(columns.shape[1:] + (len(levels),)).transpose(1, 0, 2)  # system, quantity, level
+    ordered = np.partition(columns, np.unique(np.concatenate([low, high])), axis=-1)
+    out = _lerp(ordered[:, low], ordered[:, high], t)
+    out[np.isnan(columns[:, 0])] = np.nan  # an untracked tank: no percentile
+    return out.reshape(len(QUANTITIES), -1, len(levels)).transpose(1, 0, 2)
 
 
 # ---------------------------------------------------------------------- exact selection for dask runs
 def _extremes(columns: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    flat = columns.reshape(columns.shape[0], -1)
-    return flat.min(axis=0), flat.max(axis=0)
+    return columns.min(axis=-1), columns.max(axis=-1)
 
 
 def _bin_of(values: np.ndarray, low: float, high: float) -> np.ndarray:
@@ -585,10 +627,9 @@ def _bin_of(values: np.ndarray, low: float, high: float) -> np.ndarray:
 
 def _histogram(columns: np.ndarray, low: np.ndarray, high: np.ndarray) -> np.ndarray:
     """Per column: counts at the low end, in each bin strictly inside, at the high end."""
-    flat = columns.reshape(columns.shape[0], -1)
-    counts = np.zeros((flat.shape[1], _BINS + 2), dtype=np.int64)
-    for c in range(flat.shape[1]):
-        v, lo, hi = flat[:, c], low[c], high[c]
+    counts = np.zeros((columns.shape[0], _BINS + 2), dtype=np.int64)
+    for c in range(columns.shape[0]):
+        v, lo, hi = columns[c], low[c], high[c]
         if not np.isfinite(lo):
             continue
         counts[c, 0] = np.count_nonzero(v == lo)
@@ -620,12 +661,11 @@ def _wanted(counts: np.ndarray, ranks: np.ndarray) -> list[list[tuple[int, int]]
 
 
 def _collect(columns: np.ndarray, low: np.ndarray, high: np.ndarray, bins: list[set[int]]) -> list[dict]:
-    flat = columns.reshape(columns.shape[0], -1)
     out = []
-    for c in range(flat.shape[1]):
+    for c in range(columns.shape[0]):
         picked: dict[int, np.ndarray] = {}
         if bins[c]:
-            v = flat[:, c]
+            v = columns[c]
             inside = v[(v > low[c]) & (v < high[c])]
             which = _bin_of(inside, low[c], high[c])
             for b in bins[c]:
@@ -673,8 +713,8 @@ def _dataset(spec: _Spec, budget: Any, levels: np.ndarray, samples: dict[str, An
     data = {}
     for key, value in samples.items():
         if key == "cause_draw":
-            value = value[:, order]
-        data[key] = (dims[key], value)
+            value = value[order]
+        data[key] = (dims[key], value.T)  # kept one row per column of samples; shown samples first
     data["percentiles"] = (("system", "quantity", "percentile"), summary["percentiles"])
     data["nominal"] = (("system", "quantity"), summary["nominal"])
     data["probability_closes"] = ((), summary["probability"])
@@ -716,8 +756,8 @@ def _dataset(spec: _Spec, budget: Any, levels: np.ndarray, samples: dict[str, An
 def _nominal(spec: _Spec) -> np.ndarray:
     """The budget with no spread, as the dispersion flies it (margins as asked)."""
     quiet = _Spec(**{**spec.__dict__, "uncertain": [], "causes": [], "grouped": []})
-    out = _block(quiet, 0, 1)
-    return _columns(out)[0].T  # (system, quantity)
+    out, _ = _block(quiet, 0, 1)
+    return _columns(out)[:, 0].reshape(len(QUANTITIES), -1).T  # (system, quantity)
 
 
 def disperse(
@@ -832,15 +872,14 @@ def _finish(spec: _Spec, moments: tuple, clipped: int, percentiles: np.ndarray) 
 
 
 def _run_in_memory(spec: _Spec, samples: int, levels: np.ndarray) -> tuple[dict, dict]:
-    parts, moments, clipped = [], None, 0
+    outputs = _empty(spec, samples)
+    moments, clipped = None, 0
     for index, size in _blocks(samples):
-        out = _block(spec, index, size)
-        clipped += int(out.pop("_clipped"))
+        out, count = _block(spec, index, size, outputs, index * BLOCK)
+        clipped += count
         step = _moments(out, spec.tracked)
         moments = step if moments is None else _merge(moments, step)
-        parts.append(out)
-    outputs = {key: np.concatenate([p[key] for p in parts]) for key in parts[0]}
-    percentiles = _percentiles_in_memory(_columns(outputs), levels)
+    percentiles = _percentiles_in_memory(outputs, levels)
     return outputs, _finish(spec, moments, clipped, percentiles)
 
 
@@ -852,23 +891,18 @@ def _run_dask(spec: _Spec, samples: int, levels: np.ndarray, blocks_per_task: in
     tasks = [blocks[i : i + blocks_per_task] for i in range(0, len(blocks), blocks_per_task)]
 
     def fly(task: list[tuple[int, int]]) -> dict[str, np.ndarray]:
-        parts = [_block(spec, index, size) for index, size in task]
-        return {
-            key: np.concatenate([p[key] for p in parts])
-            if key != "_clipped"
-            else np.array(sum(int(p[key]) for p in parts))
-            for key in parts[0]
-        }
+        into = _empty(spec, sum(size for _, size in task))
+        offset = 0
+        for index, size in task:
+            _block(spec, index, size, into, offset)
+            offset += size
+        return into
 
     def first_pass(task):
-        parts = [_block(spec, index, size) for index, size in task]
-        low, high = zip(*(_extremes(_columns(p)) for p in parts))
-        return (
-            [_moments(p, spec.tracked) for p in parts],
-            sum(int(p["_clipped"]) for p in parts),
-            np.min(low, axis=0),
-            np.max(high, axis=0),
-        )
+        flown = [_block(spec, index, size) for index, size in task]
+        low, high = zip(*(_extremes(_columns(out)) for out, _ in flown))
+        moments = [_moments(out, spec.tracked) for out, _ in flown]
+        return moments, sum(count for _, count in flown), np.min(low, axis=0), np.max(high, axis=0)
 
     first = dask.compute(*[dask.delayed(first_pass)(task) for task in tasks])
     moments = None
@@ -880,7 +914,7 @@ def _run_dask(spec: _Spec, samples: int, levels: np.ndarray, blocks_per_task: in
     high = np.max([f[3] for f in first], axis=0)
 
     def second_pass(task):
-        return sum(_histogram(_columns(_block(spec, index, size)), low, high) for index, size in task)
+        return sum(_histogram(_columns(_block(spec, index, size)[0]), low, high) for index, size in task)
 
     counts = sum(dask.compute(*[dask.delayed(second_pass)(task) for task in tasks]))
     rank_low, rank_high, t = _ranks(samples, levels)
@@ -889,7 +923,7 @@ def _run_dask(spec: _Spec, samples: int, levels: np.ndarray, blocks_per_task: in
     bins = [{b for b, _ in column if b >= 0} for column in wanted]
 
     def third_pass(task):
-        return [_collect(_columns(_block(spec, index, size)), low, high, bins) for index, size in task]
+        return [_collect(_columns(_block(spec, index, size)[0]), low, high, bins) for index, size in task]
 
     picked_blocks = [
         block for task in dask.compute(*[dask.delayed(third_pass)(t) for t in tasks]) for block in task
@@ -910,14 +944,12 @@ def _run_dask(spec: _Spec, samples: int, levels: np.ndarray, blocks_per_task: in
     # the samples themselves stay lazy, one dask chunk per task
     delayed = [dask.delayed(fly)(task) for task in tasks]
     sizes = [sum(size for _, size in task) for task in tasks]
-    example = _block(spec, 0, 1)
+    example = _empty(spec, 1)
     outputs = {}
     for key, value in example.items():
-        if key == "_clipped":
-            continue
         pieces = [
-            da.from_delayed(d[key], shape=(size,) + value.shape[1:], dtype=value.dtype)
+            da.from_delayed(d[key], shape=value.shape[:-1] + (size,), dtype=value.dtype)
             for d, size in zip(delayed, sizes)
         ]
-        outputs[key] = da.concatenate(pieces, axis=0)
+        outputs[key] = da.concatenate(pieces, axis=-1)
     return outputs, _finish(spec, moments, clipped, percentiles)
