@@ -217,19 +217,15 @@ def main(argv: list[str]) -> int:
     cold_ours = statistics.median(cold(COLD_DELTAKIT.format(root=root, here=here)) for _ in range(3))
     cold_numpy = statistics.median(cold(COLD_NUMPY.format(here=here)) for _ in range(3))
     print(f"dispersion of a 10-line, 2-system budget, {SAMPLES:,} samples, 13 causes")
-    print(
-        f"  {'deltakit disperse (Dataset, exact percentiles)':52s} {ours_time:8.3f} s   (median of {repeats})"
-    )
-    print(f"  {'NumPy by hand, same budget and summaries':52s} {numpy_time:8.3f} s   (median of {repeats})")
-    print(
-        f"  {'Python loop over samples (random.gauss, math)':52s} {loop_time:8.3f} s   ({LOOP_SAMPLES:,} samples, x10)"
-    )
-    print(
-        f"  {'  the same with the draws made by NumPy':52s} {hybrid_time:8.3f} s   ({LOOP_SAMPLES:,} samples, x10)"
-    )
-    print(
-        f"  {'a deltakit Budget per sample, in a loop':52s} {budget_time:8.3f} s   ({BUDGET_LOOP_SAMPLES} samples, x200)"
-    )
+    rows = [
+        ("deltakit disperse (Dataset, exact percentiles)", ours_time, f"median of {repeats}"),
+        ("NumPy by hand, same budget and summaries", numpy_time, f"median of {repeats}"),
+        ("Python loop over samples (random.gauss, math)", loop_time, f"{LOOP_SAMPLES:,} samples, x10"),
+        ("  the same with the draws made by NumPy", hybrid_time, f"{LOOP_SAMPLES:,} samples, x10"),
+        ("a deltakit Budget per sample, in a loop", budget_time, f"{BUDGET_LOOP_SAMPLES} samples, x200"),
+    ]
+    for name, seconds, note in rows:
+        print(f"  {name:52s} {seconds:8.3f} s   ({note})")
     print(f"  ratio to NumPy {ratio_numpy:6.2f}x   (target <= {TARGET_NUMPY:.1f}x; median of paired runs)")
     for name, ratio in (
         ("Python loop", ratio_loop),
