@@ -1,4 +1,4 @@
-"""Plot helpers: orbits, burns, transfers, energy gain and budgets in matplotlib.
+"""Plot helpers: orbits, burns, transfers, energy gain, budgets and dispersions in matplotlib.
 
 Every helper takes the Axes first, keyword-only options after the data, passes
 ``**kwargs`` to one named Axes method, returns the artists it drew, and never
@@ -12,6 +12,7 @@ Results are for preliminary analysis, not for flight operations.
 from __future__ import annotations
 
 from ._style import COLOURS
+from .dispersion import LeftArtists, SensitivityArtists, plot_propellant_left, plot_sensitivity
 from .energy import energy_gain_curve, plot_energy_gain, update_energy_gain
 from .orbits import (
     BurnArtists,
@@ -32,6 +33,8 @@ __all__ = [
     "COLOURS",
     "BurnArtists",
     "ConicArtists",
+    "LeftArtists",
+    "SensitivityArtists",
     "TransferArtists",
     "WaterfallArtists",
     "burn_at_angle",
@@ -42,6 +45,8 @@ __all__ = [
     "energy_gain_curve",
     "plot_budget_waterfall",
     "plot_energy_gain",
+    "plot_propellant_left",
+    "plot_sensitivity",
     "update_budget_waterfall",
     "update_burn",
     "update_conic",
