@@ -77,6 +77,7 @@ _NAMES: dict[str, str] = {
     "Normal": "dispersions",
     "Uniform": "dispersions",
     "Triangular": "dispersions",
+    "report": "reports",
     # finite burns and Kepler's equation
     "thrust_arc": "finite",
     "ArcOutcome": "finite",

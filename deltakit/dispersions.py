@@ -733,18 +733,20 @@ def _dataset(spec: _Spec, budget: Any, levels: np.ndarray, samples: dict[str, An
     ds = xr.Dataset(data, coords=coords)
     for key in ds.data_vars:
         ds[key].attrs["units"] = units.get(key, "")
-    descriptions = {spec.causes[c][0]: [] for c in order}
+    descriptions = []
     for c in order:
         name, members = spec.causes[c]
-        for m in members:
-            item = spec.uncertain[m]
-            descriptions[name].append(f"{item.name}: {item.spread.describe(item.unit)}")
+        parts = [
+            f"{spec.uncertain[m].name}: {spec.uncertain[m].spread.describe(spec.uncertain[m].unit)}"
+            for m in members
+        ]
+        descriptions.append(f"{name} (shared cause) <- {', '.join(parts)}" if spec.grouped[c] else parts[0])
     ds.attrs.update(
         title=f"Dispersion of {budget.name}" if budget.name else "Dispersion of a delta-v budget",
         samples=summary["n"],
         seed=spec.seed,
         margins="kept" if spec.meta["margins"] else "left out",
-        spreads="; ".join(f"{k} <- {', '.join(v)}" for k, v in descriptions.items()),
+        spreads="; ".join(descriptions),
         percentiles="exact order statistics, linear interpolation as numpy.percentile",
         sensitivity="squared correlation of each cause with the propellant left, all tanks together",
         clipped_dv_samples=int(summary["clipped"]),

@@ -126,7 +126,13 @@ def _is_latex_report(head: bytes) -> bool:
 
 
 def _latex_document(title: str, derivations: list) -> str:
-    out = [latex_preamble(), rf"\title{{{escape_latex(title)}}}", r"\date{}", r"\begin{document}", r"\maketitle"]
+    out = [
+        latex_preamble(),
+        rf"\title{{{escape_latex(title)}}}",
+        r"\date{}",
+        r"\begin{document}",
+        r"\maketitle",
+    ]
     out.append(rf"\noindent\emph{{{escape_text(DISCLAIMER)}}}")
     out.extend(latex_section(d) for d in derivations)
     out.append(r"\end{document}")
