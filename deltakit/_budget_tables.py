@@ -312,7 +312,7 @@ def verdict(budget: Budget) -> str:
             "." if math.isnan(left) else f" with {left:.2f} kg of usable propellant left."
         )
     parts = []
-    for name, use in budget.usage.items():
+    for name, use in sorted(budget.usage.items(), key=lambda item: item[1].runs_dry_at or 0):
         if use.runs_dry_at is not None:
             line = budget.lines[use.runs_dry_at]
             parts.append(
