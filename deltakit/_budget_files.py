@@ -23,9 +23,10 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from ._files import remove_orphans, resolve, write_atomic
+from ._scalars import text
 from .errors import DomainError
 from .margins import MarginPolicy
-from .vehicle import PropulsionSystem, Stage, real, text
+from .vehicle import PropulsionSystem, Stage
 
 if TYPE_CHECKING:
     from .budget import Budget, BudgetLine
@@ -119,7 +120,7 @@ def _source(entry: dict[str, Any], number: int) -> dict[str, Any]:
 
 
 def _add_lines(budget: Budget, entries: list[Any], version: int) -> None:
-    from .budget import KINDS, BudgetLine
+    from .budget import KINDS, BudgetLine, _mass_event
 
     for number, raw in enumerate(entries, start=1):
         entry = _object(raw, f"line {number}")
@@ -146,8 +147,7 @@ def _add_lines(budget: Budget, entries: list[Any], version: int) -> None:
                     stage=text(entry["stage"], "stage", empty=False),
                 )
             else:
-                mass = real(entry["mass_kg"], "mass", "kg", low=0.0)
-                line = BudgetLine(text(entry["label"], "label"), 0.0, kind=kind, mass=mass)
+                line = _mass_event(kind, entry["label"], entry["mass_kg"])
         except DomainError as err:
             note = ""
             if version == 1 and "`margin`" in str(err):

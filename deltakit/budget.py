@@ -81,9 +81,10 @@ import numpy as np
 from . import _budget_files, _budget_tables, _ledger
 from ._checks import scalar_or_array
 from ._results import Result, quantity
+from ._scalars import real, text
 from .errors import DomainError
 from .margins import MarginPolicy, fraction
-from .vehicle import PropulsionSystem, Stage, real, text
+from .vehicle import PropulsionSystem, Stage
 
 __all__ = ["Budget", "BudgetLine", "FORMAT", "SystemUsage", "VERSION"]
 
@@ -293,6 +294,11 @@ def _dv_value(value: Any) -> tuple[float, dict[str, Any]]:
             "duration": None if duration is None else real(duration, "dv_or_transfer.duration", "s"),
         }
     return real(value, "dv_or_transfer", "m/s", low=0.0), {"kind": "number"}
+
+
+def _mass_event(kind: str, label: Any, mass: Any) -> BudgetLine:
+    """A jettison or an added mass: a line with a mass and no delta-v."""
+    return BudgetLine(text(label, "label"), 0.0, kind=kind, mass=real(mass, "mass", "kg", low=0.0))
 
 
 def _optional_name(value: Any, name: str) -> str | None:
@@ -738,8 +744,7 @@ class Budget:
         >>> round(float(b.mass_after[1]), 1)
         696.5
         """
-        line = BudgetLine(text(label, "label"), 0.0, kind="jettison", mass=real(mass, "mass", "kg", low=0.0))
-        return self._append(line, "mass")
+        return self._append(_mass_event("jettison", label, mass), "mass")
 
     def add_mass(self, label: str, mass: float) -> Budget:
         """Append an added mass (docking, a sample picked up): ``mass`` kg come aboard; returns the budget.
@@ -751,8 +756,7 @@ class Budget:
         >>> float(b.final_mass)
         1250.0
         """
-        line = BudgetLine(text(label, "label"), 0.0, kind="add_mass", mass=real(mass, "mass", "kg", low=0.0))
-        return self._append(line, "mass")
+        return self._append(_mass_event("add_mass", label, mass), "mass")
 
     def drop_stage(self, label: str, stage: str) -> Budget:
         """Append the drop of a stage: its dry mass and what its tanks hold leave; returns the budget.

@@ -64,6 +64,7 @@ from typing import Any
 import numpy as np
 
 from . import _ledger
+from ._scalars import real
 from ._text import CAUTION
 from .constants import G0
 from .errors import DomainError
@@ -83,15 +84,6 @@ ALL_TANKS = "all tanks"
 
 
 # ---------------------------------------------------------------------- distributions
-def _finite(value: Any, name: str) -> float:
-    if isinstance(value, bool) or not isinstance(value, numbers.Real):
-        raise DomainError(f"`{name}` must be a real number, got {value!r}")
-    value = float(value)
-    if not math.isfinite(value):
-        raise DomainError(f"`{name}` must be finite, got {value!r}")
-    return value
-
-
 def _check_spread(self: Any) -> None:
     if not isinstance(self.relative, bool):
         raise DomainError(f"`relative` must be True or False, got {self.relative!r}")
@@ -136,11 +128,8 @@ class Normal:
     cause: str | None = None
 
     def __post_init__(self) -> None:
-        sigma = _finite(self.sigma, "sigma")
-        if sigma < 0.0:
-            raise DomainError(f"`sigma` must be >= 0, got {sigma!r}")
-        object.__setattr__(self, "sigma", sigma)
-        object.__setattr__(self, "mean", _finite(self.mean, "mean"))
+        object.__setattr__(self, "sigma", real(self.sigma, "sigma", low=0.0))
+        object.__setattr__(self, "mean", real(self.mean, "mean"))
         _check_spread(self)
 
     def draw(self, rng: np.random.Generator, out: np.ndarray) -> np.ndarray:
@@ -180,7 +169,7 @@ class Uniform:
     cause: str | None = None
 
     def __post_init__(self) -> None:
-        low, high = _finite(self.low, "low"), _finite(self.high, "high")
+        low, high = real(self.low, "low"), real(self.high, "high")
         if high < low:
             raise DomainError(f"`high` must be >= low ({low!r}), got {high!r}")
         object.__setattr__(self, "low", low)
@@ -219,7 +208,7 @@ class Triangular:
     cause: str | None = None
 
     def __post_init__(self) -> None:
-        low, mode, high = _finite(self.low, "low"), _finite(self.mode, "mode"), _finite(self.high, "high")
+        low, mode, high = real(self.low, "low"), real(self.mode, "mode"), real(self.high, "high")
         if not low <= mode <= high:
             raise DomainError(
                 f"`mode` must lie between low and high ({low!r} <= mode <= {high!r}), got {mode!r}"

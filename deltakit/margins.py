@@ -40,13 +40,12 @@ Examples
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Any
 
-from ._checks import is_number
+from ._scalars import real
 from .errors import DomainError
 
 __all__ = ["MarginPolicy", "STUDY_POLICY", "fraction"]
@@ -64,19 +63,7 @@ def fraction(value: Any, name: str, *, what: str = "a fraction") -> float:
     ...
     deltakit.errors.DomainError: `margin` must be a fraction ... got 5.0; did you mean 0.05?
     """
-    if not is_number(value):
-        from ._checks import as_float
-
-        array = as_float(value, name)
-        if array.size != 1:
-            raise DomainError(f"`{name}` must be one number, got shape {array.shape}")
-        value = float(array.reshape(()))
-    try:
-        number = float(value)
-    except OverflowError:
-        raise DomainError(f"`{name}` is too large for a float (more than about 1.8e308)") from None
-    if not math.isfinite(number):
-        raise DomainError(f"`{name}` must be finite, got {number!r}")
+    number = real(value, name)
     if number < 0.0:
         raise DomainError(f"`{name}` must be >= 0 ({what}, 0.05 = +5 %), got {number!r}")
     if number > 1.0:

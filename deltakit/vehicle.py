@@ -27,7 +27,7 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from ._checks import as_float
+from ._scalars import real, text
 from .errors import DomainError
 from .margins import fraction
 
@@ -35,30 +35,6 @@ __all__ = ["DROP_MODES", "PropulsionSystem", "Stage"]
 
 #: How a stage leaves the vehicle: at a ``drop_stage`` line, or as soon as its tanks are spent.
 DROP_MODES = ("line", "spent")
-
-
-def real(value: Any, name: str, unit: str, *, low: float | None = None, strict: bool = False) -> float:
-    """One finite real number (a size-1 array or quantity is accepted), checked against ``low``."""
-    array = as_float(value, name, unit)
-    if array.size != 1:
-        raise DomainError(f"`{name}` must be one number, got shape {array.shape}")
-    number = float(array.reshape(()))
-    unit_text = f" {unit}" if unit else ""
-    if not math.isfinite(number):
-        raise DomainError(f"`{name}` must be finite, got {number!r}")
-    if low is not None and (number <= low if strict else number < low):
-        rule = ">" if strict else ">="
-        raise DomainError(f"`{name}` must be {rule} {low:g}{unit_text}, got {number!r}{unit_text}")
-    return number
-
-
-def text(value: Any, name: str, *, empty: bool = True) -> str:
-    """A user string (a name, a label), refusing other types."""
-    if not isinstance(value, str):
-        raise DomainError(f"`{name}` must be text, got {value!r}")
-    if not empty and not value.strip():
-        raise DomainError(f"`{name}` must not be empty")
-    return value
 
 
 @dataclass(frozen=True)
