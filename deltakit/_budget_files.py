@@ -193,6 +193,7 @@ def budget_from_dict(cls: type[Budget], data: Any, origin: str) -> Budget:
             if main is not None and main not in budget._systems:
                 raise DomainError(f"`main_system` {main!r} is not among its systems")
             budget._main = main if main is not None else next(iter(budget._systems), None)
+            budget._main_chosen = main is not None
         lines = data["lines"]
         if not isinstance(lines, list):
             raise DomainError(f"`lines` must be a list, got {type(lines).__name__}")

@@ -359,6 +359,7 @@ class Budget:
         self._systems: dict[str, PropulsionSystem] = {}
         self._stages: dict[str, Stage] = {}
         self._main: str | None = None
+        self._main_chosen = False  # named by the user (main=True, main_system), not by the default rule
         self._m0: float | None = None
         self._dry_mass: float | None = None
         self._dry_maturity: str | None = None
@@ -391,6 +392,7 @@ class Budget:
         "_systems",
         "_stages",
         "_main",
+        "_main_chosen",
         "_m0",
         "_dry_mass",
         "_dry_maturity",
@@ -518,7 +520,11 @@ class Budget:
             raise DomainError(
                 f"`main_system` {name!r} is not a system of this budget ({self._known_systems()})"
             )
-        self._edit(lambda b: setattr(b, "_main", name), "main_system")
+
+        def change(b: Budget) -> None:
+            b._main, b._main_chosen = name, True
+
+        self._edit(change, "main_system")
 
     @property
     def systems(self) -> Mapping[str, PropulsionSystem]:
@@ -557,7 +563,10 @@ class Budget:
         stage : str, optional
             The stage it sits on (declare the stage first).
         main : bool, optional
-            Make it the main system (the first system declared is main).
+            Make it the main system, which flies the lines that name none.
+            Otherwise the main system is the first one declared on the
+            vehicle that stays (not on a stage), or the first one of all
+            while none is.
 
         Examples
         --------
@@ -571,8 +580,10 @@ class Budget:
         def change(b: Budget) -> None:
             b._systems = dict(b._systems)
             b._systems[new.name] = new
-            if main or b._main is None:
+            on_a_stage = b._main is not None and b._systems[b._main].stage is not None
+            if main or b._main is None or (not b._main_chosen and on_a_stage and new.stage is None):
                 b._main = new.name
+            b._main_chosen = b._main_chosen or main
 
         return self._edit(change, "propellant" if propellant is not None else "ve")
 

@@ -396,3 +396,18 @@ def test_tank_that_runs_dry_gives_nan_masses_and_the_shortfall():
         b.usage["lander engine"].shortfall > 0.0 and float(b.shortfall) == b.usage["lander engine"].shortfall
     )
     assert np.all(np.nan_to_num(b.mass_after, nan=1.0) > 0.0)  # never a negative mass
+
+
+def test_the_main_system_is_the_first_one_on_the_vehicle_that_stays():
+    b = Budget(name="Stack", dry_mass=300.0).stage("kick", 100.0)
+    b.system("kick motor", 2900.0, 900.0, stage="kick")
+    assert b.main_system == "kick motor"  # the only one so far
+    b.system("probe engine", 3000.0, 200.0).system("probe thrusters", 2200.0, 10.0)
+    assert b.main_system == "probe engine"  # the first system that stays when the stage goes
+    b.main_system = "probe thrusters"
+    b.system("spare", 3000.0, 1.0)
+    assert b.main_system == "probe thrusters"  # a choice of the user's is kept
+    chosen = Budget(name="Stack", dry_mass=300.0).stage("kick", 100.0)
+    chosen.system("kick motor", 2900.0, 900.0, stage="kick", main=True).system("probe engine", 3000.0, 200.0)
+    assert chosen.main_system == "kick motor"
+    assert Budget.from_dict(chosen.to_dict()).main_system == "kick motor"
