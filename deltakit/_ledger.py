@@ -21,7 +21,10 @@ Rules
   that first happens is recorded per system, and from that line on the
   vehicle's masses are reported as NaN by the caller: never a negative mass.
 * A jettison removes mass, an added mass adds it; a drop line removes a stage
-  with what its tanks still hold.
+  with what its tanks still hold. The booked mass never falls below zero (it
+  could only after a tank ran short, where the books carry the demand of the
+  lines and no longer a real vehicle); a line that leaves nothing breaks the
+  case like a dry tank.
 """
 
 from __future__ import annotations
@@ -125,7 +128,8 @@ def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True, start: Ledger | 
         for j in plan.stage_systems[stage]:
             leaving = leaving + inputs.residual[j] + np.maximum(left[j], 0.0)
         attached = np.asarray(mask, dtype=bool) if alive[stage] is True else (mask & alive[stage])
-        m = np.where(attached, m - leaving, m)
+        # never below zero: after a tank ran short the books can hold less than the stage takes
+        m = np.where(attached, np.maximum(m - leaving, 0.0), m)
         alive[stage] = np.logical_not(attached) if alive[stage] is True else (alive[stage] & ~attached)
 
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
@@ -149,7 +153,7 @@ def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True, start: Ledger | 
                         over = (need > available) & attached
                         take = np.where(over, available, need)
                         flown = -ve * np.log1p(-available / m)
-                        remaining_after = np.where(over, remaining - flown, 0.0)
+                        remaining_after = np.where(over, np.maximum(remaining - flown, 0.0), 0.0)
                     else:
                         over = None
                         take = need
@@ -173,12 +177,13 @@ def run(plan: Plan, inputs: Inputs, *, keep_lines: bool = True, start: Ledger | 
                 if unflown.any():
                     broke = broke | unflown
             elif op.kind == "jettison":
-                m = m - inputs.mass[i]
+                m = np.maximum(m - inputs.mass[i], 0.0)
                 broke = m <= tolerance
             elif op.kind == "add_mass":
                 m = m + inputs.mass[i]
             elif op.kind == "drop_stage":
                 drop(op.stage, True)
+                broke = m <= tolerance  # nothing left to fly on
             else:  # pragma: no cover - the budget builds only the kinds above
                 raise AssertionError(op.kind)
             if broke is not False:

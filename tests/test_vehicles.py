@@ -56,7 +56,7 @@ def reference(m0, systems, stages, main, lines):
         for name, (_ve, load, res, where) in systems.items():
             if where == stage:
                 out += mp(load) * mp(res) + max(left[name], mp(0))
-        m -= out
+        m = max(m - out, mp(0))  # the books never hold less than nothing
         attached[stage] = False
 
     for line in lines:
@@ -85,7 +85,7 @@ def reference(m0, systems, stages, main, lines):
                     borderline = True
                 if spent and need > left[j]:
                     take = max(left[j], mp(0))
-                    remaining -= ve * mpmath.log(m / (m - take))
+                    remaining = max(remaining - ve * mpmath.log(m / (m - take)), mp(0))
                     m -= take
                     left[j] -= take
                     used[j] += take
@@ -99,7 +99,7 @@ def reference(m0, systems, stages, main, lines):
                 remaining = mp(0)
                 break
         elif line[0] == "jettison":
-            m -= mp(line[1])
+            m = max(m - mp(line[1]), mp(0))
         elif line[0] == "add_mass":
             m += mp(line[1])
         else:
@@ -411,3 +411,27 @@ def test_the_main_system_is_the_first_one_on_the_vehicle_that_stays():
     chosen.system("kick motor", 2900.0, 900.0, stage="kick", main=True).system("probe engine", 3000.0, 200.0)
     assert chosen.main_system == "kick motor"
     assert Budget.from_dict(chosen.to_dict()).main_system == "kick motor"
+
+
+def test_after_an_absurd_shortfall_no_tank_gets_propellant_back():
+    # Found by the thorough hypothesis profile: a 1 kg thruster tank asked for 575 kg
+    # left the books lighter than the booster stage that was then dropped; the
+    # mass went below zero and a later burn "gave back" propellant.
+    systems = {
+        "main": (3590.0, 240.0, 0.03660464822057477, None),
+        "thrusters": (1500.0, 1.0, 0.0, None),
+        "booster": (2500.0, 169.0, 0.0, "booster"),
+        "tug": (2500.0, 100.0, 0.0, "tug"),
+    }
+    stages = {"booster": (400.0, "spent"), "tug": (20.0, "line")}
+    ops = [
+        ("drop_stage", "tug"),
+        ("burn", 661.0, "main"),
+        ("burn", 1049.0, "thrusters"),
+        ("burn", 960.0, "booster"),
+    ]
+    b = build(565.0, systems, stages, "main", ops)
+    assert not b.closes
+    for use in b.usage.values():
+        assert use.left >= 0.0 and use.shortfall >= 0.0 and use.used >= 0.0
+        assert (use.shortfall > 0.0) == (use.runs_dry_at is not None)
