@@ -747,6 +747,7 @@ class Budget:
 
         The mass comes off the dry mass of the vehicle that stays (a spent
         tank, a released probe); drop a whole stage with :meth:`drop_stage`.
+        Mass events are appended; put one elsewhere with :meth:`move`.
 
         Examples
         --------

@@ -90,7 +90,9 @@ def _new_figure(width: float, height: float) -> Any:
 def _budget_blocks(budget: Any) -> list[Any]:
     from ..plotting import plot_budget_waterfall
 
-    name = budget.name or "the budget"
+    def titled(text: str) -> str:
+        return f"{budget.name}: {text}" if budget.name else text[0].upper() + text[1:]
+
     headers, body, total = line_cells(budget)
     blocks: list[Any] = [Heading("Delta-v budget"), Paragraph(CONVENTION, "note")]
     # two tables of the same lines, so that each fits a page: the delta-v, then the masses
@@ -102,8 +104,8 @@ def _budget_blocks(budget: Any) -> list[Any]:
         return [cells[i] for i in which]
 
     for caption, which, text_columns in (
-        (f"{name}: delta-v by line (nominal, margin, total)", keep[0], text),
-        (f"{name}: mass by line", keep[1], 2),
+        (titled("delta-v by line (nominal, margin, total)"), keep[0], text),
+        (titled("mass by line"), keep[1], 2),
     ):
         blocks.append(
             Table(
@@ -115,17 +117,17 @@ def _budget_blocks(budget: Any) -> list[Any]:
             )
         )
     headers, body = system_cells(budget)
-    blocks.append(Table(f"{name}: propulsion systems", headers, body, None, 2))
+    blocks.append(Table(titled("propulsion systems"), headers, body, None, 2))
     headers, body = mass_cells(budget)
-    blocks.append(Table(f"{name}: start mass (growth allowance by design maturity)", headers, body, None, 2))
+    blocks.append(Table(titled("start mass (growth allowance by design maturity)"), headers, body, None, 2))
     blocks.append(Paragraph(verdict(budget), "verdict"))
     note = policy_note(budget)
     if note:
         blocks.append(Paragraph(note, "note"))
     figure = _new_figure(8.0, 3.8)
     plot_budget_waterfall(figure.add_subplot(), budget)
-    figure.axes[0].set_title(f"{name}: vehicle mass line by line (kg)", fontsize="medium")
-    blocks.append(FigureBlock(figure_png(figure), f"{name}: vehicle mass after each line"))
+    figure.axes[0].set_title(titled("vehicle mass line by line (kg)"), fontsize="medium")
+    blocks.append(FigureBlock(figure_png(figure), titled("vehicle mass after each line")))
     return blocks
 
 
