@@ -221,6 +221,7 @@ def hostile() -> Budget:
     b.system("main", 3150.0, 900.0)
     b.add("\\end{document} <img src=x onerror=alert(1)>", 500.0)
     b.add("\\write18{touch pwned} [x](javascript:alert(1)) | ** _", 300.0)
+    b.add("$\\frac{ not mathtext", 10.0)  # the figures must draw it as plain text
     return b
 
 

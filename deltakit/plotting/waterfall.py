@@ -14,6 +14,7 @@ from matplotlib.axes import Axes
 from matplotlib.container import BarContainer
 from matplotlib.lines import Line2D
 
+from .._text import escape_mathtext
 from ._style import COLOURS, style_axes
 
 __all__ = ["WaterfallArtists", "budget_masses", "plot_budget_waterfall", "update_budget_waterfall"]
@@ -108,7 +109,10 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
         x, spent, width, bottom=masses, color=COLOURS["exhaust"], alpha=0.85, label="propellant of the line"
     )
     ax.set_xticks(
-        x, labels, rotation=30 if len(labels) > 4 else 0, ha="right" if len(labels) > 4 else "center"
+        x,
+        [escape_mathtext(label) for label in labels],
+        rotation=30 if len(labels) > 4 else 0,
+        ha="right" if len(labels) > 4 else "center",
     )
     ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
     style_axes(ax, ylabel="vehicle mass (kg)")
@@ -140,7 +144,7 @@ def update_budget_waterfall(
         for bar, m, s in zip(artists.spent, masses, spent):
             bar.set_y(m)
             bar.set_height(s)
-        ax.set_xticks(np.arange(len(labels)), labels)
+        ax.set_xticks(np.arange(len(labels)), [escape_mathtext(label) for label in labels])
         ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
         ax.format_coord = _mass_readout(labels, masses, spent)
         dry_mass = getattr(budget, "dry_mass", None)

@@ -16,7 +16,7 @@ from typing import Any
 
 from .. import __version__
 from .._budget_tables import CONVENTION, line_cells, mass_cells, policy_note, system_cells, verdict
-from .._text import CAUTION
+from .._text import CAUTION, escape_mathtext
 from ..constants import G0
 
 __all__ = ["Bullets", "DerivationBlock", "Document", "FigureBlock", "Heading", "Paragraph", "Table", "build"]
@@ -126,7 +126,7 @@ def _budget_blocks(budget: Any) -> list[Any]:
         blocks.append(Paragraph(note, "note"))
     figure = _new_figure(8.0, 3.8)
     plot_budget_waterfall(figure.add_subplot(), budget)
-    figure.axes[0].set_title(titled("vehicle mass line by line (kg)"), fontsize="medium")
+    figure.axes[0].set_title(escape_mathtext(titled("vehicle mass line by line (kg)")), fontsize="medium")
     blocks.append(FigureBlock(figure_png(figure), titled("vehicle mass after each line")))
     return blocks
 
