@@ -309,7 +309,7 @@ def verdict(budget: Budget) -> str:
     if budget.closes:
         left = float(budget.propellant_left)
         return "The budget closes" + (
-            "." if math.isnan(left) else f" with {left:.2f} kg of usable propellant left."
+            "." if math.isnan(left) else f" with {left:.2f} kg of usable propellant left aboard."
         )
     parts = []
     for name, use in sorted(budget.usage.items(), key=lambda item: item[1].runs_dry_at or 0):
