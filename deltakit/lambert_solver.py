@@ -1,0 +1,443 @@
+"""Lambert's problem: the conic that joins two positions in a given time.
+
+Method
+------
+The solver follows D. Izzo, "Revisiting Lambert's problem", Celestial
+Mechanics and Dynamical Astronomy 121:1-15 (2015). The geometry is reduced
+to one parameter ``lam`` (``lam**2 = 1 - c/s``, c the chord, s the
+semi-perimeter of the triangle focus-r1-r2) and the time of flight to
+``T = sqrt(2 mu / s**3) * tof``; the unknown ``x`` (``x**2 = 1 - a_min/a``:
+0 is the minimum-energy ellipse, 1 the parabola, above 1 hyperbolas) solves
+``T(x) = T``, with Izzo's initial guesses (his eq. 30) and Householder's
+fourth-order iteration. ``T(x)`` is evaluated three ways as Izzo does:
+Lancaster's expression away from the parabola, Lagrange's near it, and
+Battin's hypergeometric series very near it, where the others lose digits.
+The velocities follow from ``x`` by Izzo's eqs. (11)-(12).
+
+Every case iterates at once on arrays; cases that have converged drop out of
+later iterations, and a bracket kept per case (``T`` is monotonic on each
+branch) turns any step that leaves it into a bisection, so no case can wander
+off its branch.
+
+Conventions
+-----------
+* ``prograde=True`` moves counterclockwise seen from +z of the frame
+  (angular momentum with a positive z component); a transfer plane that
+  contains the z axis then goes the short way (angle below 180 degrees),
+  the long way when ``prograde=False``.
+* ``revolutions=N > 0`` wraps N full turns before arriving. There are then
+  two solutions or none: index 0 of the leading axis is the branch with the
+  smaller semi-major axis (the shorter period), index 1 the larger; both are
+  NaN where the time of flight is below the minimum for N turns.
+* SI units: m, s, m^3/s^2, m/s; vectors on the last axis, shape (..., 3).
+
+Results are for preliminary analysis, not for flight operations.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+from numpy.typing import ArrayLike
+
+from ._checks import as_float, broadcast_shape, finite, positive, require
+from ._results import Result, quantity
+from .errors import DomainError
+
+__all__ = ["LambertSolution", "lambert", "lambert_time_of_flight"]
+
+#: Below this sine of the transfer angle the plane of the transfer is undefined (0 or 180 degrees).
+PLANE_TOLERANCE = 1.0e-12
+
+_BATTIN = 0.01  # |x - 1| below which Battin's series gives T(x)
+_LAGRANGE = 0.2  # |x - 1| below which Lagrange's expression gives T(x)
+_MAX_STEPS = 40
+_STEP_TOLERANCE = 1.0e-12  # |dx| that ends the iteration: quartic convergence makes x exact then
+
+
+@dataclass(frozen=True, repr=False, eq=False)
+class LambertSolution(Result):
+    """Velocities at both ends of a Lambert transfer.
+
+    Attributes
+    ----------
+    v1 : ndarray, shape (..., 3), or (2, ..., 3) for revolutions > 0
+        Velocity just after leaving ``r1``, m/s.
+    v2 : ndarray, same shape
+        Velocity on arriving at ``r2``, m/s.
+    """
+
+    v1: Any = quantity("m/s")
+    v2: Any = quantity("m/s")
+
+
+# ---------------------------------------------------------------------- T(x) and its derivatives
+def _hypergeometric(z: np.ndarray) -> np.ndarray:
+    """Gauss's 2F1(3, 1; 5/2; z), the series of Battin's form (Izzo 2015, eq. 20), |z| small here."""
+    total = np.ones_like(z)
+    term = np.ones_like(z)
+    for j in range(60):
+        term = term * (3.0 + j) * (1.0 + j) / (2.5 + j) * z / (j + 1.0)
+        total = total + term
+        if np.all(np.abs(term) <= 1.0e-17 * np.abs(total)):
+            break
+    return total
+
+
+def _tof_lancaster(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
+    """T(x) by Lancaster's expression (Izzo 2015, eqs. 18 and 19 with the N pi term)."""
+    energy = x * x - 1.0  # E < 0 ellipse, E > 0 hyperbola
+    rho = np.abs(energy)
+    z = np.sqrt(1.0 + lam * lam * energy)
+    y = np.sqrt(rho)
+    g = x * z - lam * energy
+    elliptic = energy < 0.0
+    angle = np.arccos(np.clip(g, -1.0, 1.0)) + turns * np.pi
+    f = y * (z - lam * x)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        hyperbolic = np.log(np.where(elliptic, 1.0, f + g))
+        d = np.where(elliptic, angle, hyperbolic)
+        return (x - lam * z - d / y) / energy
+
+
+def _tof_lagrange(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
+    """T(x) by Lagrange's expression, for x near 1 (Izzo 2015, eq. 9)."""
+    with np.errstate(invalid="ignore", divide="ignore"):
+        a = 1.0 / (1.0 - x * x)
+        ellipse = a > 0.0
+        alpha_e = 2.0 * np.arccos(np.clip(x, -1.0, 1.0))
+        beta_e = 2.0 * np.arcsin(np.sqrt(np.clip(lam * lam / np.abs(a), 0.0, 1.0))) * np.sign(lam)
+        alpha_h = 2.0 * np.arccosh(np.maximum(x, 1.0))
+        beta_h = 2.0 * np.arcsinh(np.sqrt(lam * lam / np.abs(a))) * np.sign(lam)
+        root = np.abs(a) * np.sqrt(np.abs(a))
+        t_ellipse = (
+            root * ((alpha_e - np.sin(alpha_e)) - (beta_e - np.sin(beta_e)) + 2.0 * np.pi * turns) / 2.0
+        )
+        t_hyperbola = root * ((beta_h - np.sinh(beta_h)) - (alpha_h - np.sinh(alpha_h))) / 2.0
+    return np.where(ellipse, t_ellipse, t_hyperbola)
+
+
+def _tof_battin(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
+    """T(x) by Battin's series, for x very near 1 (Izzo 2015, eq. 20)."""
+    energy = x * x - 1.0
+    rho = np.abs(energy)
+    z = np.sqrt(1.0 + lam * lam * energy)
+    eta = z - lam * x
+    s1 = 0.5 * (1.0 - lam - x * eta)
+    q = 4.0 / 3.0 * _hypergeometric(s1)
+    t = (eta**3 * q + 4.0 * lam * eta) / 2.0
+    if turns > 0:
+        with np.errstate(divide="ignore"):
+            t = t + turns * np.pi / rho**1.5
+    return t
+
+
+def _tof(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
+    """Non-dimensional time of flight T(x) for N = ``turns`` revolutions."""
+    t = _tof_lancaster(x, lam, turns)
+    distance = np.abs(x - 1.0)
+    near = distance < _LAGRANGE
+    if near.any():
+        index = np.flatnonzero(near)
+        xs, ls, ds = x.ravel()[index], lam.ravel()[index], distance.ravel()[index]
+        series = ds < _BATTIN
+        t_near = np.where(series, _tof_battin(xs, ls, turns), _tof_lagrange(xs, ls, turns))
+        t = t.copy()
+        t.ravel()[index] = t_near
+    return t
+
+
+def _derivatives(x: np.ndarray, t: np.ndarray, lam: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """dT/dx, d2T/dx2, d3T/dx3 at x where T(x) = t (Izzo 2015, eq. 22)."""
+    lam2 = lam * lam
+    lam3 = lam2 * lam
+    one_minus_x2 = 1.0 - x * x
+    y = np.sqrt(1.0 - lam2 * one_minus_x2)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        d1 = (3.0 * t * x - 2.0 + 2.0 * lam3 * x / y) / one_minus_x2
+        d2 = (3.0 * t + 5.0 * x * d1 + 2.0 * (1.0 - lam2) * lam3 / y**3) / one_minus_x2
+        d3 = (7.0 * x * d2 + 8.0 * d1 - 6.0 * (1.0 - lam2) * lam2 * lam3 * x / y**5) / one_minus_x2
+    return d1, d2, d3
+
+
+# ---------------------------------------------------------------------- solving T(x) = T
+def _solve(
+    target: np.ndarray,
+    lam: np.ndarray,
+    turns: float,
+    x0: np.ndarray,
+    low: np.ndarray,
+    high: np.ndarray,
+    increasing: bool,
+) -> np.ndarray:
+    """x in (low, high) with T(x) = target: Householder steps, bisection when a step leaves the bracket."""
+    x = x0.copy()
+    low, high = low.copy(), high.copy()
+    active = np.flatnonzero(np.isfinite(target) & np.isfinite(x))
+    converged = np.zeros(x.shape, dtype=bool)
+    for _ in range(_MAX_STEPS):
+        if active.size == 0:
+            break
+        xa, la, ta = x[active], lam[active], target[active]
+        t = _tof(xa, la, turns)
+        miss = t - ta
+        # keep the bracket: T decreases with x on the zero-revolution and left branches
+        above = (miss > 0.0) != increasing
+        lo, hi = low[active], high[active]
+        lo = np.where(above, xa, lo)
+        hi = np.where(above, hi, xa)
+        d1, d2, d3 = _derivatives(xa, t, la)
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            step = miss * (d1 * d1 - miss * d2 / 2.0) / (d1 * (d1 * d1 - miss * d2) + d3 * miss * miss / 6.0)
+            new = xa - step
+            inside = np.isfinite(new) & (new >= lo) & (new <= hi)
+            middle = np.where(np.isfinite(hi), 0.5 * (lo + hi), lo + np.maximum(1.0, np.abs(lo)))
+            new = np.where(miss == 0.0, xa, np.where(inside, new, middle))
+        done = (np.abs(new - xa) < _STEP_TOLERANCE) | (miss == 0.0)
+        x[active], low[active], high[active] = new, lo, hi
+        converged[active[done]] = True
+        active = active[~done]
+    x[~converged] = np.nan
+    return x
+
+
+def _minimum_time(lam: np.ndarray, turns: float) -> tuple[np.ndarray, np.ndarray]:
+    """x and T at the minimum time of flight for N turns, by Halley's iteration from x = 0 (Izzo 2015, §3)."""
+    x = np.zeros_like(lam)
+    t = np.arccos(lam) + lam * np.sqrt(1.0 - lam * lam) + turns * np.pi
+    for _ in range(16):
+        d1, d2, d3 = _derivatives(x, t, lam)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            new = np.where(d1 != 0.0, x - d1 * d2 / (d2 * d2 - d1 * d3 / 2.0), x)
+        new = np.clip(new, -1.0 + 1e-15, 1.0 - 1e-15)
+        change = np.abs(new - x)
+        x = new
+        t = _tof(x, lam, turns)
+        if np.all(change < 1.0e-13):
+            break
+    return x, t
+
+
+def _zero_revolution_guess(target: np.ndarray, lam: np.ndarray) -> np.ndarray:
+    """Izzo's starting x for N = 0 (Izzo 2015, eq. 30)."""
+    t00 = np.arccos(lam) + lam * np.sqrt(1.0 - lam * lam)
+    t1 = 2.0 / 3.0 * (1.0 - lam**3)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        long_time = -(target - t00) / (target - t00 + 4.0)
+        short_time = t1 * (t1 - target) / (0.4 * (1.0 - lam**5) * target) + 1.0
+        between = (target / t00) ** (np.log(2.0) / np.log(t1 / t00)) - 1.0
+    return np.where(target >= t00, long_time, np.where(target <= t1, short_time, between))
+
+
+def _solve_x(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray:
+    """x of each case; shape (...) for N = 0, (2, ...) for N > 0 (short-period branch first)."""
+    shape = np.shape(target)
+    x = _solve_x_flat(np.ravel(target), np.ravel(lam), turns)
+    return x.reshape(shape if turns == 0 else (2, *shape))
+
+
+def _solve_x_flat(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray:
+    if turns == 0:
+        x0 = _zero_revolution_guess(target, lam)
+        low = np.full_like(target, -1.0)
+        high = np.full_like(target, np.inf)
+        return _solve(target, lam, 0.0, x0, low, high, increasing=False)
+    x_min, t_min = _minimum_time(lam, float(turns))
+    reachable = target >= t_min
+    goal = np.where(reachable, target, np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        left_start = ((turns * np.pi + np.pi) / (8.0 * target)) ** (2.0 / 3.0)
+        right_start = ((8.0 * target) / (turns * np.pi)) ** (2.0 / 3.0)
+    left0 = np.clip((left_start - 1.0) / (left_start + 1.0), -1.0, x_min)
+    right0 = np.clip((right_start - 1.0) / (right_start + 1.0), x_min, 1.0)
+    left = _solve(goal, lam, float(turns), left0, np.full_like(target, -1.0), x_min, increasing=False)
+    right = _solve(goal, lam, float(turns), right0, x_min.copy(), np.ones_like(target), increasing=True)
+    # order the branches by semi-major axis a = a_min / (1 - x^2): shorter period first
+    left_shorter = np.abs(left) <= np.abs(right)
+    short = np.where(left_shorter, left, right)
+    long = np.where(left_shorter, right, left)
+    return np.stack([short, long])
+
+
+# ---------------------------------------------------------------------- geometry
+def _unit(v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    norm = np.sqrt(np.einsum("...i,...i->...", v, v))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return v / norm[..., None], norm
+
+
+def _vector(value: ArrayLike, name: str) -> np.ndarray:
+    array = finite(value, name, "m")
+    if array.ndim == 0 or array.shape[-1] != 3:
+        raise DomainError(f"`{name}` must hold 3-vectors on its last axis, shape (..., 3), got {array.shape}")
+    norm = np.sqrt(np.einsum("...i,...i->...", array, array))
+    require(norm, norm <= 0.0, f"|{name}|", "> 0", "m")
+    return array
+
+
+def lambert(
+    r1: ArrayLike,
+    r2: ArrayLike,
+    tof: ArrayLike,
+    mu: ArrayLike,
+    revolutions: int = 0,
+    prograde: bool = True,
+) -> LambertSolution:
+    """Velocities of the conic that goes from ``r1`` to ``r2`` in time ``tof``.
+
+    Parameters
+    ----------
+    r1, r2 : array_like, shape (..., 3)
+        Positions at departure and arrival, m (nonzero).
+    tof : array_like, shape (...)
+        Time of flight, s (> 0).
+    mu : array_like, shape (...)
+        Gravitational parameter of the central body, m^3/s^2 (> 0).
+    revolutions : int, optional
+        Full turns made on the way (default 0).
+    prograde : bool, optional
+        Move counterclockwise seen from +z (default) or clockwise.
+
+    Returns
+    -------
+    LambertSolution
+        ``v1``, ``v2`` of shape ``(..., 3)``, with ``...`` the broadcast shape
+        of the cases; for ``revolutions > 0`` shape ``(2, ..., 3)``, index 0
+        the shorter-period branch.
+
+    Notes
+    -----
+    NaN where there is no solution: a multi-revolution time of flight shorter
+    than the minimum for that many turns, and a transfer angle of 0 or 180
+    degrees (within ``PLANE_TOLERANCE`` in its sine). At 180 degrees the
+    positions and the focus lie on one line, so every plane through that line
+    holds a transfer of the same shape: the velocity's direction is undefined
+    and no single answer is right. (Shift an arrival date by a fraction of a
+    day to leave the singular line.)
+
+    Raises
+    ------
+    DomainError
+        Non-finite input, a zero position, ``tof`` or ``mu`` <= 0, inputs that
+        do not broadcast, or ``revolutions`` not an integer >= 0.
+
+    See Also
+    --------
+    lambert_time_of_flight : the time of flight of a given ``x``, the function this solver inverts.
+    transfer_map : Lambert's problem over a grid of departure and arrival dates.
+
+    Examples
+    --------
+    Curtis, Orbital Mechanics for Engineering Students, Example 5.2 (3rd ed.):
+    from (5000, 10000, 2100) km to (-14600, 2500, 7000) km about the Earth in
+    one hour (quoted from memory: v1 = (-5.9925, 1.9254, 3.2456) km/s).
+
+    >>> import numpy as np
+    >>> from deltakit import lambert
+    >>> from deltakit.constants import EARTH
+    >>> out = lambert([5000e3, 10000e3, 2100e3], [-14600e3, 2500e3, 7000e3], 3600.0, 398600e9)
+    >>> np.round(out.v1 / 1e3, 4)
+    array([-5.9925,  1.9254,  3.2456])
+
+    Many cases at once (no Python loop), and two revolutions:
+
+    >>> r2 = np.array([[0.0, 8000e3, 0.0], [-8000e3, 1.0, 0.0]])
+    >>> lambert([7000e3, 0.0, 0.0], r2, 3000.0, EARTH.mu).v1.shape
+    (2, 3)
+    >>> lambert([7000e3, 0.0, 0.0], [0.0, 8000e3, 0.0], 4 * 3600.0, EARTH.mu, revolutions=2).v1.shape
+    (2, 3)
+    """
+    r1 = _vector(r1, "r1")
+    r2 = _vector(r2, "r2")
+    tof = positive(tof, "tof", "s")
+    mu = positive(mu, "mu", "m^3/s^2")
+    if isinstance(revolutions, (bool, np.bool_)) or not isinstance(revolutions, (int, np.integer)):
+        raise DomainError(f"`revolutions` must be an integer >= 0, got {revolutions!r}")
+    if revolutions < 0:
+        raise DomainError(f"`revolutions` must be an integer >= 0, got {revolutions}")
+    if not isinstance(prograde, (bool, np.bool_)):
+        raise DomainError(f"`prograde` must be True or False, got {prograde!r}")
+    shape = broadcast_shape(r1=r1[..., 0], r2=r2[..., 0], tof=tof, mu=mu)
+    r1 = np.broadcast_to(r1, (*shape, 3))
+    r2 = np.broadcast_to(r2, (*shape, 3))
+    tof = np.broadcast_to(tof, shape)
+    mu = np.broadcast_to(mu, shape)
+    v1, v2 = _velocities(r1, r2, tof, mu, int(revolutions), bool(prograde))
+    return LambertSolution(v1=v1, v2=v2)
+
+
+def _velocities(
+    r1: np.ndarray, r2: np.ndarray, tof: np.ndarray, mu: np.ndarray, turns: int, prograde: bool
+) -> tuple[np.ndarray, np.ndarray]:
+    """The solver on checked, broadcast arrays (the map's fast path)."""
+    u1, n1 = _unit(r1)
+    u2, n2 = _unit(r2)
+    normal = np.cross(u1, u2)
+    sin_angle = np.sqrt(np.einsum("...i,...i->...", normal, normal))
+    cos_angle = np.einsum("...i,...i->...", u1, u2)
+    # the direction of motion: +z for prograde; a polar plane (z component 0) goes the short way
+    flip = (normal[..., 2] < 0.0) if prograde else (normal[..., 2] >= 0.0)
+    sign = np.where(flip, -1.0, 1.0)
+    planar = sin_angle > PLANE_TOLERANCE
+    with np.errstate(invalid="ignore", divide="ignore"):
+        h = normal * (sign / sin_angle)[..., None]
+    # transfer angle in [0, 2 pi): the long way when the motion flips the normal
+    angle = np.arctan2(sign * sin_angle, cos_angle) % (2.0 * np.pi)
+    chord = np.sqrt(np.einsum("...i,...i->...", r2 - r1, r2 - r1))
+    s = 0.5 * (n1 + n2 + chord)
+    # lam = sqrt(1 - c/s) with its sign, from the half angle: no cancellation near 180 degrees
+    lam = np.sqrt(n1 * n2) * np.cos(angle / 2.0) / s
+    lam = np.where(planar, lam, np.nan)
+    target = np.sqrt(2.0 * mu / s**3) * tof
+
+    x = _solve_x(target, lam, turns)
+
+    gamma = np.sqrt(mu * s / 2.0)
+    rho = (n1 - n2) / chord
+    sigma = np.sqrt(np.maximum(1.0 - rho * rho, 0.0))
+    y = np.sqrt(1.0 - lam * lam * (1.0 - x * x))
+    radial1 = gamma * ((lam * y - x) - rho * (lam * y + x)) / n1
+    radial2 = -gamma * ((lam * y - x) + rho * (lam * y + x)) / n2
+    transverse = gamma * sigma * (y + lam * x)
+    t1 = np.cross(h, u1)
+    t2 = np.cross(h, u2)
+    v1 = radial1[..., None] * u1 + (transverse / n1)[..., None] * t1
+    v2 = radial2[..., None] * u2 + (transverse / n2)[..., None] * t2
+    return v1, v2
+
+
+def lambert_time_of_flight(x: ArrayLike, lam: ArrayLike, revolutions: int = 0) -> Any:
+    """Izzo's non-dimensional time of flight ``T(x)`` for the geometry ``lam``.
+
+    ``tof = T / sqrt(2 mu / s**3)``; ``x**2 = 1 - a_min / a`` with ``a_min = s/2``.
+    This is the function :func:`lambert` inverts, exposed so its derivation
+    (``deltakit.symbolic.derive("lambert_time_of_flight")``) can be checked
+    against it.
+
+    Parameters
+    ----------
+    x : array_like
+        Izzo's variable (> -1; below 1 ellipses, above 1 hyperbolas).
+    lam : array_like
+        Geometry parameter in [-1, 1] (negative: the long way round).
+    revolutions : int, optional
+        Full turns.
+
+    Examples
+    --------
+    At x = 0 (the minimum-energy ellipse) and lam = 0, half a turn of the
+    ellipse: T = pi / 2.
+
+    >>> from deltakit.lambert_solver import lambert_time_of_flight
+    >>> round(float(lambert_time_of_flight(0.0, 0.0)), 12)
+    1.570796326795
+    """
+    x = as_float(x, "x")
+    lam = as_float(lam, "lam")
+    require(x, ~(x > -1.0), "x", "> -1")
+    require(lam, ~(np.abs(lam) <= 1.0), "lam", "within [-1, 1]")
+    x, lam = np.broadcast_arrays(x, lam)
+    t = _tof(np.ascontiguousarray(x), np.ascontiguousarray(lam), float(revolutions))
+    return t[()] if t.ndim == 0 else t
