@@ -213,7 +213,7 @@ def planet_state(body: Any, t: Any, center: Any = "Sun", frame: str = "ecliptic"
     >>> r, v = planet_state("Earth", "2028-11-10")
     >>> round(float(np.linalg.norm(r) / au), 3), round(float(np.linalg.norm(v) / km_per_s), 1)
     (0.99, 30.2)
-    >>> abs(float(r[2])) < 1e-4 * np.linalg.norm(r)
+    >>> bool(abs(r[2]) < 1e-4 * np.linalg.norm(r))
     True
 
     Many dates at once, and the Moon around the Earth:

@@ -46,7 +46,7 @@ from ._checks import as_float, broadcast_shape, finite, positive, require
 from ._results import Result, quantity
 from .errors import DomainError
 
-__all__ = ["LambertSolution", "lambert", "lambert_time_of_flight"]
+__all__ = ["LambertSolution", "lambert", "lambert_time_of_flight", "transfer_plane"]
 
 #: Below this sine of the transfer angle the plane of the transfer is undefined (0 or 180 degrees).
 PLANE_TOLERANCE = 1.0e-12
@@ -368,23 +368,33 @@ def lambert(
     return LambertSolution(v1=v1, v2=v2)
 
 
+def transfer_plane(
+    u1: np.ndarray, u2: np.ndarray, prograde: bool
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Unit normal of the motion, transfer angle in [0, 2 pi) and whether the plane is defined.
+
+    ``u1``, ``u2`` are unit vectors (..., 3). The motion's normal has a positive
+    z component when ``prograde`` (a polar plane goes the short way); the
+    angle exceeds pi when the motion goes the long way round.
+    """
+    normal = np.cross(u1, u2)
+    sin_angle = np.sqrt(np.einsum("...i,...i->...", normal, normal))
+    cos_angle = np.einsum("...i,...i->...", u1, u2)
+    flip = (normal[..., 2] < 0.0) if prograde else (normal[..., 2] >= 0.0)
+    sign = np.where(flip, -1.0, 1.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        h = normal * (sign / sin_angle)[..., None]
+    angle = np.arctan2(sign * sin_angle, cos_angle) % (2.0 * np.pi)
+    return h, angle, sin_angle > PLANE_TOLERANCE
+
+
 def _velocities(
     r1: np.ndarray, r2: np.ndarray, tof: np.ndarray, mu: np.ndarray, turns: int, prograde: bool
 ) -> tuple[np.ndarray, np.ndarray]:
     """The solver on checked, broadcast arrays (the map's fast path)."""
     u1, n1 = _unit(r1)
     u2, n2 = _unit(r2)
-    normal = np.cross(u1, u2)
-    sin_angle = np.sqrt(np.einsum("...i,...i->...", normal, normal))
-    cos_angle = np.einsum("...i,...i->...", u1, u2)
-    # the direction of motion: +z for prograde; a polar plane (z component 0) goes the short way
-    flip = (normal[..., 2] < 0.0) if prograde else (normal[..., 2] >= 0.0)
-    sign = np.where(flip, -1.0, 1.0)
-    planar = sin_angle > PLANE_TOLERANCE
-    with np.errstate(invalid="ignore", divide="ignore"):
-        h = normal * (sign / sin_angle)[..., None]
-    # transfer angle in [0, 2 pi): the long way when the motion flips the normal
-    angle = np.arctan2(sign * sin_angle, cos_angle) % (2.0 * np.pi)
+    h, angle, planar = transfer_plane(u1, u2, prograde)
     chord = np.sqrt(np.einsum("...i,...i->...", r2 - r1, r2 - r1))
     s = 0.5 * (n1 + n2 + chord)
     # lam = sqrt(1 - c/s) with its sign, from the half angle: no cancellation near 180 degrees
@@ -439,5 +449,5 @@ def lambert_time_of_flight(x: ArrayLike, lam: ArrayLike, revolutions: int = 0) -
     require(x, ~(x > -1.0), "x", "> -1")
     require(lam, ~(np.abs(lam) <= 1.0), "lam", "within [-1, 1]")
     x, lam = np.broadcast_arrays(x, lam)
-    t = _tof(np.ascontiguousarray(x), np.ascontiguousarray(lam), float(revolutions))
+    t = _tof(np.array(x), np.array(lam), float(revolutions))
     return t[()] if t.ndim == 0 else t

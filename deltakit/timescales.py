@@ -207,12 +207,18 @@ def epoch(value: Any, scale: str = "utc") -> Any:
         return scalar_or_array(finite(value, "value", "s"))
     erfa = require_planets_extra("erfa")
     (year, month, day, hour, minute, second), offset, shape = _calendar_fields(value)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", erfa.ErfaWarning)  # "dubious year": see the module notes
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", erfa.ErfaWarning)  # "dubious year": see the module notes
         try:
             jd1, jd2 = erfa.dtf2d(scale.upper(), year, month, day, hour, minute, second)
         except erfa.ErfaError as err:
             raise DomainError(f"`value` holds a date that does not exist on the calendar ({err})") from None
+        if any("end of day" in str(warning.message) for warning in caught):
+            raise DomainError(
+                "`value` holds a time past the end of its day (second 60 exists only on a leap-second day)"
+            )
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", erfa.ErfaWarning)
         jd2 = jd2 - offset / 1440.0
         if scale == "utc":
             jd1, jd2 = erfa.utctai(jd1, jd2)
