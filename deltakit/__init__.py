@@ -84,6 +84,7 @@ _NAMES: dict[str, str] = {
     "planet_state": "ephemeris",
     "lambert": "lambert_solver",
     "LambertSolution": "lambert_solver",
+    "lambert_time_of_flight": "lambert_solver",
     "transfer_map": "windows",
     "transfer_pair": "windows",
     "TransferPair": "windows",

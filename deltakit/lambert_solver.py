@@ -42,7 +42,7 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import as_float, broadcast_shape, finite, positive, require
+from ._checks import broadcast_shape, finite, positive, require
 from ._results import Result, quantity
 from .errors import DomainError
 
@@ -444,8 +444,8 @@ def lambert_time_of_flight(x: ArrayLike, lam: ArrayLike, revolutions: int = 0) -
     >>> round(float(lambert_time_of_flight(0.0, 0.0)), 12)
     1.570796326795
     """
-    x = as_float(x, "x")
-    lam = as_float(lam, "lam")
+    x = finite(x, "x")
+    lam = finite(lam, "lam")
     require(x, ~(x > -1.0), "x", "> -1")
     require(lam, ~(np.abs(lam) <= 1.0), "lam", "within [-1, 1]")
     x, lam = np.broadcast_arrays(x, lam)
