@@ -53,7 +53,8 @@ def _c3() -> Derivation:
         twin="deltakit.specific_energy",
         assumptions=[_TWO_BODY, "C3 < 0 is a bound orbit (no excess speed); C3 = 0 just escapes."],
         references=[
-            "Curtis, Orbital Mechanics for Engineering Students, hyperbolic excess speed and C3 (Ch. 2 and 8)",
+            "Curtis, Orbital Mechanics for Engineering Students, "
+            "hyperbolic excess speed and C3 (Ch. 2 and 8)",
             "Vallado, Fundamentals of Astrodynamics and Applications, vis-viva and C3 (Ch. 1)",
         ],
         twin_adapter=_c3_twin,
@@ -80,7 +81,7 @@ def _lambert_time_of_flight() -> Derivation:
     t = b.symbol("t", "time of flight", "s", "t")
     a = b.symbol("a", "semi-major axis of the transfer ellipse", "m", "a")
     s = b.symbol("s", "semi-perimeter of the triangle focus, r1, r2", "m", "s")
-    c = b.symbol("c", "chord between r1 and r2", "m", "c")
+    b.symbol("c", "chord between r1 and r2", "m", "c")  # named in the sentences
     mu = b.symbol("mu", "gravitational parameter of the central body", "m^3/s^2", r"\mu")
     alpha = b.symbol("alpha", "Lagrange's angle alpha", "rad", r"\alpha")
     beta = b.symbol("beta", "Lagrange's angle beta", "rad", r"\beta", real=True)
@@ -92,8 +93,11 @@ def _lambert_time_of_flight() -> Derivation:
         sp.Eq(sp.sqrt(mu) * t, a ** sp.Rational(3, 2) * ((alpha - sp.sin(alpha)) - (beta - sp.sin(beta)))),
     )
     t_value = solve_for(lagrange, t)[0]
-    a_value = b.step("The minimum-energy ellipse has $a_{min} = s/2$; Izzo's variable sets $a = a_{min}/(1 - x^2)$.",
-                     a, s / (2 * (1 - x**2)))  # fmt: skip
+    a_value = b.step(
+        "The minimum-energy ellipse has $a_{min} = s/2$; Izzo's variable sets $a = a_{min}/(1 - x^2)$.",
+        a,
+        s / (2 * (1 - x**2)),
+    )
     b.step("Then $\\sin^2(\\alpha/2) = 1 - x^2$, so $\\cos(\\alpha/2) = x$.", alpha, 2 * sp.acos(x))
     b.step(
         "And $\\sin^2(\\beta/2) = \\lambda^2 (1 - x^2)$ with $\\lambda^2 = 1 - c/s$, the sign of $\\lambda$ "
@@ -113,12 +117,15 @@ def _lambert_time_of_flight() -> Derivation:
         twin="deltakit.lambert_time_of_flight",
         assumptions=[
             _TWO_BODY,
-            "An elliptic transfer (-1 < x < 1), zero revolutions; the solver also covers x >= 1 (hyperbolas).",
-            "With N full turns the bracket gains 2 pi N, so T gains N pi over the 3/2 power of (1 - x squared); "
-            "the solver finds the x whose T(x) is the T asked.",
+            "An elliptic transfer (-1 < x < 1), zero revolutions; "
+            "the solver also covers x >= 1 (hyperbolas).",
+            "With N full turns the bracket gains 2 pi N, so T gains N pi over the 3/2 power "
+            "of (1 - x squared); the solver finds the x whose T(x) is the T asked.",
         ],
         references=[
-            "Izzo, Revisiting Lambert's problem, Celestial Mechanics and Dynamical Astronomy 121 (2015), eq. 9",
-            "Battin, An Introduction to the Mathematics and Methods of Astrodynamics, rev. ed. 1999, section 6.3",
+            "Izzo, Revisiting Lambert's problem, "
+            "Celestial Mechanics and Dynamical Astronomy 121 (2015), eq. 9",
+            "Battin, An Introduction to the Mathematics and Methods of Astrodynamics, "
+            "rev. ed. 1999, section 6.3",
         ],
     )
