@@ -54,7 +54,8 @@ PLANE_TOLERANCE = 1.0e-12
 _BATTIN = 0.01  # |x - 1| below which Battin's series gives T(x)
 _LAGRANGE = 0.2  # |x - 1| below which Lagrange's expression gives T(x)
 _MAX_STEPS = 40
-_STEP_TOLERANCE = 1.0e-12  # |dx| that ends the iteration: quartic convergence makes x exact then
+_STEP_TOLERANCE = 1.0e-13  # |dx| of a bisection that ends the iteration
+_FINAL_STEP = 1.0e-6  # a Householder step this short leaves an error near 1e-24: the last one
 
 
 @dataclass(frozen=True, repr=False, eq=False)
@@ -89,16 +90,20 @@ def _hypergeometric(z: np.ndarray) -> np.ndarray:
 def _tof_lancaster(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
     """T(x) by Lancaster's expression (Izzo 2015, eqs. 18 and 19 with the N pi term)."""
     energy = x * x - 1.0  # E < 0 ellipse, E > 0 hyperbola
-    rho = np.abs(energy)
     z = np.sqrt(1.0 + lam * lam * energy)
-    y = np.sqrt(rho)
+    y = np.sqrt(np.abs(energy))
     g = x * z - lam * energy
     elliptic = energy < 0.0
-    angle = np.arccos(np.clip(g, -1.0, 1.0)) + turns * np.pi
-    f = y * (z - lam * x)
+    # each transcendental only where its branch applies (ufunc `where=`): half the work of both
+    d = np.empty_like(x)
+    np.arccos(np.clip(g, -1.0, 1.0), out=d, where=elliptic)
+    if turns:
+        np.add(d, turns * np.pi, out=d, where=elliptic)
+    hyperbolic = ~elliptic
+    if hyperbolic.any():
+        with np.errstate(divide="ignore", invalid="ignore"):
+            np.log(y * (z - lam * x) + g, out=d, where=hyperbolic)
     with np.errstate(divide="ignore", invalid="ignore"):
-        hyperbolic = np.log(np.where(elliptic, 1.0, f + g))
-        d = np.where(elliptic, angle, hyperbolic)
         return (x - lam * z - d / y) / energy
 
 
@@ -127,10 +132,10 @@ def _tof_battin(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
     eta = z - lam * x
     s1 = 0.5 * (1.0 - lam - x * eta)
     q = 4.0 / 3.0 * _hypergeometric(s1)
-    t = (eta**3 * q + 4.0 * lam * eta) / 2.0
+    t = (eta * eta * eta * q + 4.0 * lam * eta) / 2.0
     if turns > 0:
         with np.errstate(divide="ignore"):
-            t = t + turns * np.pi / rho**1.5
+            t = t + turns * np.pi / (rho * np.sqrt(rho))
     return t
 
 
@@ -156,9 +161,11 @@ def _derivatives(x: np.ndarray, t: np.ndarray, lam: np.ndarray) -> tuple[np.ndar
     one_minus_x2 = 1.0 - x * x
     y = np.sqrt(1.0 - lam2 * one_minus_x2)
     with np.errstate(divide="ignore", invalid="ignore"):
-        d1 = (3.0 * t * x - 2.0 + 2.0 * lam3 * x / y) / one_minus_x2
-        d2 = (3.0 * t + 5.0 * x * d1 + 2.0 * (1.0 - lam2) * lam3 / y**3) / one_minus_x2
-        d3 = (7.0 * x * d2 + 8.0 * d1 - 6.0 * (1.0 - lam2) * lam2 * lam3 * x / y**5) / one_minus_x2
+        inverse = 1.0 / one_minus_x2
+        y3 = y * y * y
+        d1 = (3.0 * t * x - 2.0 + 2.0 * lam3 * x / y) * inverse
+        d2 = (3.0 * t + 5.0 * x * d1 + 2.0 * (1.0 - lam2) * lam3 / y3) * inverse
+        d3 = (7.0 * x * d2 + 8.0 * d1 - 6.0 * (1.0 - lam2) * lam2 * lam3 * x / (y3 * y * y)) * inverse
     return d1, d2, d3
 
 
@@ -172,33 +179,53 @@ def _solve(
     high: np.ndarray,
     increasing: bool,
 ) -> np.ndarray:
-    """x in (low, high) with T(x) = target: Householder steps, bisection when a step leaves the bracket."""
+    """x in (low, high) with T(x) = target: Householder steps, bisection when a step leaves the bracket.
+
+    A Householder step shorter than ``_FINAL_STEP`` is the last one: its
+    error is of the order of the step to the fourth power, below rounding.
+    """
     x = x0.copy()
     low, high = low.copy(), high.copy()
     active = np.flatnonzero(np.isfinite(target) & np.isfinite(x))
     converged = np.zeros(x.shape, dtype=bool)
+    whole = active.size == x.size  # while every case iterates, skip the gathers and scatters
     for _ in range(_MAX_STEPS):
         if active.size == 0:
             break
-        xa, la, ta = x[active], lam[active], target[active]
+        if whole:
+            xa, la, ta, lo, hi = x, lam, target, low, high
+        else:
+            xa, la, ta, lo, hi = x[active], lam[active], target[active], low[active], high[active]
         t = _tof(xa, la, turns)
         miss = t - ta
         # keep the bracket: T decreases with x on the zero-revolution and left branches
         above = (miss > 0.0) != increasing
-        lo, hi = low[active], high[active]
-        lo = np.where(above, xa, lo)
-        hi = np.where(above, hi, xa)
+        np.copyto(lo, xa, where=above)
+        np.copyto(hi, xa, where=~above)
         d1, d2, d3 = _derivatives(xa, t, la)
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             step = miss * (d1 * d1 - miss * d2 / 2.0) / (d1 * (d1 * d1 - miss * d2) + d3 * miss * miss / 6.0)
             new = xa - step
-            inside = np.isfinite(new) & (new >= lo) & (new <= hi)
-            middle = np.where(np.isfinite(hi), 0.5 * (lo + hi), lo + np.maximum(1.0, np.abs(lo)))
-            new = np.where(miss == 0.0, xa, np.where(inside, new, middle))
-        done = (np.abs(new - xa) < _STEP_TOLERANCE) | (miss == 0.0)
-        x[active], low[active], high[active] = new, lo, hi
-        converged[active[done]] = True
-        active = active[~done]
+            outside = ~((new >= lo) & (new <= hi))  # NaN too
+        if outside.any():  # rare: bisect those cases (an open bracket doubles outwards)
+            index = np.flatnonzero(outside)
+            lo_out, hi_out = lo[index], hi[index]
+            new[index] = np.where(
+                np.isfinite(hi_out), 0.5 * (lo_out + hi_out), lo_out + np.maximum(1.0, np.abs(lo_out))
+            )
+        exact = miss == 0.0
+        if exact.any():
+            new[exact] = xa[exact]
+        done = exact | (~outside & (np.abs(step) < _FINAL_STEP)) | (np.abs(new - xa) < _STEP_TOLERANCE)
+        if whole:
+            x, low, high = new, lo, hi
+            converged = done
+            active = np.flatnonzero(~done)
+            whole = active.size == x.size
+        else:
+            x[active], low[active], high[active] = new, lo, hi
+            converged[active[done]] = True
+            active = active[~done]
     x[~converged] = np.nan
     return x
 
@@ -223,17 +250,25 @@ def _minimum_time(lam: np.ndarray, turns: float) -> tuple[np.ndarray, np.ndarray
 def _zero_revolution_guess(target: np.ndarray, lam: np.ndarray) -> np.ndarray:
     """Izzo's starting x for N = 0 (Izzo 2015, eq. 30)."""
     t00 = np.arccos(lam) + lam * np.sqrt(1.0 - lam * lam)
-    t1 = 2.0 / 3.0 * (1.0 - lam**3)
+    t1 = 2.0 / 3.0 * (1.0 - lam * lam * lam)  # not lam**3: pow() is slow on arrays
     with np.errstate(divide="ignore", invalid="ignore"):
-        long_time = -(target - t00) / (target - t00 + 4.0)
-        short_time = t1 * (t1 - target) / (0.4 * (1.0 - lam**5) * target) + 1.0
-        between = (target / t00) ** (np.log(2.0) / np.log(t1 / t00)) - 1.0
-    return np.where(target >= t00, long_time, np.where(target <= t1, short_time, between))
+        x0 = -(target - t00) / (target - t00 + 4.0)  # long flights: T >= T00
+    # the other two forms on their own cases only: pow() of the others' values is slow and useless
+    short = np.flatnonzero(target <= t1)
+    if short.size:
+        ts, ls, t1s = target[short], lam[short], t1[short]
+        x0[short] = t1s * (t1s - ts) / (0.4 * (1.0 - ls * ls * ls * ls * ls) * ts) + 1.0
+    between = np.flatnonzero((target < t00) & (target > t1))
+    if between.size:
+        tb, t00b = target[between], t00[between]
+        x0[between] = (tb / t00b) ** (np.log(2.0) / np.log(t1[between] / t00b)) - 1.0
+    return x0
 
 
 def _solve_x(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray:
     """x of each case; shape (...) for N = 0, (2, ...) for N > 0 (short-period branch first)."""
-    shape = np.shape(target)
+    target, lam = np.broadcast_arrays(target, lam)
+    shape = target.shape
     x = _solve_x_flat(np.ravel(target), np.ravel(lam), turns)
     return x.reshape(shape if turns == 0 else (2, *shape))
 
@@ -262,6 +297,17 @@ def _solve_x_flat(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray
 
 
 # ---------------------------------------------------------------------- geometry
+def _cross(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """a x b on the last axis, component by component (np.cross moves axes and copies)."""
+    a0, a1, a2 = a[..., 0], a[..., 1], a[..., 2]
+    b0, b1, b2 = b[..., 0], b[..., 1], b[..., 2]
+    out = np.empty(np.broadcast_shapes(a.shape, b.shape))
+    np.subtract(a1 * b2, a2 * b1, out=out[..., 0])
+    np.subtract(a2 * b0, a0 * b2, out=out[..., 1])
+    np.subtract(a0 * b1, a1 * b0, out=out[..., 2])
+    return out
+
+
 def _unit(v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     norm = np.sqrt(np.einsum("...i,...i->...", v, v))
     with np.errstate(invalid="ignore", divide="ignore"):
@@ -364,7 +410,7 @@ def lambert(
     r2 = np.broadcast_to(r2, (*shape, 3))
     tof = np.broadcast_to(tof, shape)
     mu = np.broadcast_to(mu, shape)
-    v1, v2 = _velocities(r1, r2, tof, mu, int(revolutions), bool(prograde))
+    v1, v2, _ = _velocities(r1, r2, tof, mu, int(revolutions), bool(prograde))
     return LambertSolution(v1=v1, v2=v2)
 
 
@@ -377,7 +423,7 @@ def transfer_plane(
     z component when ``prograde`` (a polar plane goes the short way); the
     angle exceeds pi when the motion goes the long way round.
     """
-    normal = np.cross(u1, u2)
+    normal = _cross(u1, u2)
     sin_angle = np.sqrt(np.einsum("...i,...i->...", normal, normal))
     cos_angle = np.einsum("...i,...i->...", u1, u2)
     flip = (normal[..., 2] < 0.0) if prograde else (normal[..., 2] >= 0.0)
@@ -389,9 +435,13 @@ def transfer_plane(
 
 
 def _velocities(
-    r1: np.ndarray, r2: np.ndarray, tof: np.ndarray, mu: np.ndarray, turns: int, prograde: bool
-) -> tuple[np.ndarray, np.ndarray]:
-    """The solver on checked, broadcast arrays (the map's fast path)."""
+    r1: np.ndarray, r2: np.ndarray, tof: np.ndarray, mu: Any, turns: int, prograde: bool
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The solver on checked arrays that broadcast together (the map's fast path): v1, v2, transfer angle.
+
+    ``r1``, ``r2`` may keep length-1 axes (a grid of departures x arrivals):
+    their norms and unit vectors are then computed once per date, not per pair.
+    """
     u1, n1 = _unit(r1)
     u2, n2 = _unit(r2)
     h, angle, planar = transfer_plane(u1, u2, prograde)
@@ -400,7 +450,7 @@ def _velocities(
     # lam = sqrt(1 - c/s) with its sign, from the half angle: no cancellation near 180 degrees
     lam = np.sqrt(n1 * n2) * np.cos(angle / 2.0) / s
     lam = np.where(planar, lam, np.nan)
-    target = np.sqrt(2.0 * mu / s**3) * tof
+    target = np.sqrt(2.0 * mu / (s * s * s)) * tof
 
     x = _solve_x(target, lam, turns)
 
@@ -411,11 +461,11 @@ def _velocities(
     radial1 = gamma * ((lam * y - x) - rho * (lam * y + x)) / n1
     radial2 = -gamma * ((lam * y - x) + rho * (lam * y + x)) / n2
     transverse = gamma * sigma * (y + lam * x)
-    t1 = np.cross(h, u1)
-    t2 = np.cross(h, u2)
+    t1 = _cross(h, u1)
+    t2 = _cross(h, u2)
     v1 = radial1[..., None] * u1 + (transverse / n1)[..., None] * t1
     v2 = radial2[..., None] * u2 + (transverse / n2)[..., None] * t2
-    return v1, v2
+    return v1, v2, angle
 
 
 def lambert_time_of_flight(x: ArrayLike, lam: ArrayLike, revolutions: int = 0) -> Any:

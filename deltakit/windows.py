@@ -55,7 +55,7 @@ from .departure import capture_burn, escape_burn
 from .ephemeris import _times as ephemeris_times
 from .ephemeris import body_name, central_body, ecliptic_rotation, planet_state
 from .errors import DomainError
-from .lambert_solver import _unit, _velocities, transfer_plane
+from .lambert_solver import _velocities
 from .timescales import epoch, to_datetime64
 
 if TYPE_CHECKING:  # the `scale` extra; the sweep imports it at run time
@@ -181,18 +181,9 @@ def _pair_fields(
     r_origin, v_origin = planet_state(origin, t_departure)
     r_target, v_target = planet_state(target, t_arrival)
     tof = np.asarray(t_arrival - t_departure, dtype=float)
-    shape = tof.shape
     with np.errstate(invalid="ignore"):
         tof = np.where(tof > 0.0, tof, np.nan)
-    v1, v2 = _velocities(
-        np.broadcast_to(r_origin, (*shape, 3)),
-        np.broadcast_to(r_target, (*shape, 3)),
-        tof,
-        np.full(shape, SUN.mu),
-        revolutions,
-        prograde,
-    )
-    angle = transfer_plane(_unit(r_origin)[0], _unit(r_target)[0], prograde)[1]
+    v1, v2, angle = _velocities(r_origin, r_target, tof, SUN.mu, revolutions, prograde)
     to_icrf = ecliptic_rotation()  # ICRF -> ecliptic; its rows turn ecliptic vectors back
     departure = (v1 - v_origin) @ to_icrf
     arrival = (v2 - v_target) @ to_icrf
