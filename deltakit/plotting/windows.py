@@ -192,7 +192,8 @@ def plot_transfer_map(
         ax,
         xlabel=f"departure from {origin} (UTC)",
         ylabel=f"arrival at {target} (UTC)",
-        title=f"{origin} to {target}: C3 (fill), arrival v∞ (dashed), time of flight (dotted)",
+        title=f"{origin} to {target}: C3 (fill), arrival v∞ (dashed), time of flight (dotted)"
+        + ("\nhatched: the pairs the tank affords" if affordable is not None else ""),
     )
     bar = None
     if colorbar:
