@@ -323,6 +323,20 @@ def _vector(value: ArrayLike, name: str) -> np.ndarray:
     return array
 
 
+def checked_revolutions(value: Any) -> int:
+    """``value`` as the number of full turns (an integer >= 0), or a DomainError naming `revolutions`."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)) or value < 0:
+        raise DomainError(f"`revolutions` must be an integer >= 0, got {value!r}")
+    return int(value)
+
+
+def checked_prograde(value: Any) -> bool:
+    """``value`` as the direction of motion (True or False), or a DomainError naming `prograde`."""
+    if not isinstance(value, (bool, np.bool_)):
+        raise DomainError(f"`prograde` must be True or False, got {value!r}")
+    return bool(value)
+
+
 def lambert(
     r1: ArrayLike,
     r2: ArrayLike,
@@ -399,18 +413,14 @@ def lambert(
     r2 = _vector(r2, "r2")
     tof = positive(tof, "tof", "s")
     mu = positive(mu, "mu", "m^3/s^2")
-    if isinstance(revolutions, (bool, np.bool_)) or not isinstance(revolutions, (int, np.integer)):
-        raise DomainError(f"`revolutions` must be an integer >= 0, got {revolutions!r}")
-    if revolutions < 0:
-        raise DomainError(f"`revolutions` must be an integer >= 0, got {revolutions}")
-    if not isinstance(prograde, (bool, np.bool_)):
-        raise DomainError(f"`prograde` must be True or False, got {prograde!r}")
+    revolutions = checked_revolutions(revolutions)
+    prograde = checked_prograde(prograde)
     shape = broadcast_shape(r1=r1[..., 0], r2=r2[..., 0], tof=tof, mu=mu)
     r1 = np.broadcast_to(r1, (*shape, 3))
     r2 = np.broadcast_to(r2, (*shape, 3))
     tof = np.broadcast_to(tof, shape)
     mu = np.broadcast_to(mu, shape)
-    v1, v2, _ = _velocities(r1, r2, tof, mu, int(revolutions), bool(prograde))
+    v1, v2, _ = _velocities(r1, r2, tof, mu, revolutions, prograde)
     return LambertSolution(v1=v1, v2=v2)
 
 

@@ -55,7 +55,7 @@ from .departure import capture_burn, escape_burn
 from .ephemeris import _times as ephemeris_times
 from .ephemeris import body_name, central_body, ecliptic_rotation, planet_state
 from .errors import DomainError
-from .lambert_solver import _velocities
+from .lambert_solver import _velocities, checked_prograde, checked_revolutions
 from .timescales import epoch, to_datetime64
 
 if TYPE_CHECKING:  # the `scale` extra; the sweep imports it at run time
@@ -236,17 +236,14 @@ def _check_bodies(origin: Any, target: Any) -> tuple[str, str]:
 
 
 def _check_common(
-    origin: Any, target: Any, revolutions: Any, parking: Any, arrival_orbit: Any, vehicle: Any
+    origin: Any, target: Any, revolutions: Any, parking: Any, arrival_orbit: Any, vehicle: Any, prograde: Any
 ) -> dict[str, Any]:
     origin_name, target_name = _check_bodies(origin, target)
-    if isinstance(revolutions, (bool, np.bool_)) or not isinstance(revolutions, (int, np.integer)):
-        raise DomainError(f"`revolutions` must be an integer >= 0, got {revolutions!r}")
-    if revolutions < 0:
-        raise DomainError(f"`revolutions` must be an integer >= 0, got {revolutions}")
     settings = {
         "origin": origin_name,
         "target": target_name,
-        "revolutions": int(revolutions),
+        "revolutions": checked_revolutions(revolutions),
+        "prograde": checked_prograde(prograde),
         "parking": _orbit_about(parking, central_body(origin_name), "parking"),
         "arrival_orbit": _orbit_about(arrival_orbit, central_body(target_name), "arrival_orbit"),
         "tank": _tank_of(vehicle),
@@ -360,8 +357,7 @@ def transfer_map(
     """
     from .sweeps import sweep
 
-    settings = _check_common(origin, target, revolutions, parking, arrival_orbit, vehicle)
-    settings["prograde"] = _flag(prograde)
+    settings = _check_common(origin, target, revolutions, parking, arrival_orbit, vehicle, prograde)
     departure_dates, departure_tdb = _dates(departures, "departures")
     arrival_dates, arrival_tdb = _dates(arrivals, "arrivals")
     for tdb in (departure_tdb, arrival_tdb):
@@ -408,12 +404,6 @@ def _stack_branches(ds: Any) -> Any:
         stacked[name] = xr.concat(parts, dim="branch").assign_attrs(parts[0].attrs)
     out = xr.Dataset(stacked, attrs=ds.attrs).assign_coords(branch=list(BRANCHES))
     return out.transpose("branch", "departure", "arrival")
-
-
-def _flag(value: Any) -> bool:
-    if not isinstance(value, (bool, np.bool_)):
-        raise DomainError(f"`prograde` must be True or False, got {value!r}")
-    return bool(value)
 
 
 @dataclass(frozen=True, repr=False, eq=False)
@@ -477,8 +467,7 @@ def transfer_pair(
     >>> 7 < float(pair.c3) / km2_per_s2 < 20, 2 < float(pair.arrival_vinf) / km_per_s < 4
     (True, True)
     """
-    settings = _check_common(origin, target, revolutions, parking, arrival_orbit, vehicle)
-    settings["prograde"] = _flag(prograde)
+    settings = _check_common(origin, target, revolutions, parking, arrival_orbit, vehicle, prograde)
     if branch not in (0, 1):
         raise DomainError(f"`branch` must be 0 (shorter period) or 1 (longer period), got {branch!r}")
     t_departure = np.asarray(epoch(departure), dtype=float)
