@@ -296,8 +296,9 @@ def transfer_map(
     origin, target : str or CentralBody
         Planets of DE421 (``"Earth"``, ``"Mars"``...), different.
     departures, arrivals : array_like of dates, shape (n,) and (m,)
-        numpy.datetime64 (kept untouched as coordinates), ISO text, datetime,
-        or TDB seconds past J2000.
+        numpy.datetime64 (kept as the coordinates; xarray holds day-resolution
+        dates at its coarsest resolution, seconds, with the same values), ISO
+        text, datetime, or TDB seconds past J2000.
     revolutions : int, optional
         Full turns about the Sun on the way (default 0). For more than 0 the
         map gains a ``branch`` dimension (``BRANCHES``: the shorter- and the
