@@ -7,7 +7,8 @@ then computes. Two paths, one set of rules and messages:
   :func:`as_float`) turns any array-like into a float array and checks it with
   a few whole-array reductions, never a Python loop over elements;
 * the scalar fast path (:func:`is_number`, :func:`finite_number`,
-  :func:`positive_number`, :func:`nonnegative_number`) checks one plain number
+  :func:`positive_number`, :func:`nonnegative_number`,
+  :func:`nonzero_number`) checks one plain number
   (``float``, ``int``, ``numpy.float64``) in a few hundred nanoseconds, and
   raises exactly the array path's error when the number breaks a rule.
 
@@ -42,6 +43,7 @@ __all__ = [
     "nonnegative",
     "nonnegative_number",
     "nonzero",
+    "nonzero_number",
     "positive",
     "positive_number",
     "require",
@@ -257,6 +259,15 @@ def nonnegative_number(value: Any, name: str, unit: str = "") -> float:
     if 0.0 <= x < _INF:
         return x
     nonnegative(x, name, unit)
+    raise AssertionError("unreachable")
+
+
+def nonzero_number(value: Any, name: str, unit: str = "") -> float:
+    """One plain number as a float, checked non-zero and not NaN (``inf`` allowed, as :func:`nonzero`)."""
+    x = _as_python_float(value, name)
+    if x != 0.0 and x == x:
+        return x
+    nonzero(x, name, unit)
     raise AssertionError("unreachable")
 
 
