@@ -63,6 +63,10 @@ def _clip(x: float, low: float, high: float) -> float:
     return _minimum(_maximum(x, low), high)
 
 
+def _rint(x: float) -> float:  # round half to even, as np.rint
+    return float(round(x))
+
+
 def _cbrt(x: float) -> float:  # math.cbrt is Python 3.11+
     return math.copysign(abs(x) ** (1.0 / 3.0), x)
 
@@ -88,6 +92,8 @@ SCALAR = SimpleNamespace(
     hypot=math.hypot,
     cbrt=getattr(math, "cbrt", _cbrt),
     isfinite=math.isfinite,
+    rint=_rint,
+    all=bool,
     where=_where,
     maximum=_maximum,
     minimum=_minimum,
@@ -115,6 +121,8 @@ ARRAY = SimpleNamespace(
     hypot=np.hypot,
     cbrt=np.cbrt,
     isfinite=np.isfinite,
+    rint=np.rint,
+    all=np.all,
     where=np.where,
     maximum=np.maximum,
     minimum=np.minimum,
