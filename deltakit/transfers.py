@@ -266,14 +266,19 @@ def _same_mu(mu: np.ndarray, other: Any, name: str, other_name: str) -> None:
     require(mu, differs, name, f"the gravitational parameter of `{other_name}`, {np.max(other):.10g}", "")
 
 
-def _ends(
-    r1: Any, r2: Any, mu: Any, depart: str, arrive: str, extra: dict[str, np.ndarray]
-) -> tuple[np.ndarray, ...]:
-    """Checked (r1, other1, r2, other2, mu) arrays of a transfer between two orbits."""
+_NO_RB = object()
+
+
+def _ends(r1: Any, r2: Any, mu: Any, depart: str, arrive: str, rb: Any = _NO_RB) -> tuple[np.ndarray, ...]:
+    """Checked (r1, other1, r2, other2, mu) arrays of a transfer between two orbits, then rb if given.
+
+    Checks run in the order of the parameters, as on the scalar path.
+    """
     depart = _apsis_name(depart, "depart")
     arrive = _apsis_name(arrive, "arrive")
     start, other1 = _orbit_end(r1, depart, "r1")
     end, other2 = _orbit_end(r2, arrive, "r2")
+    extra = {} if rb is _NO_RB else {"rb": positive(rb, "rb", "m")}
     conics = [(name, orbit) for name, orbit in (("r1", r1), ("r2", r2)) if isinstance(orbit, Conic)]
     if mu is not None:
         mu = positive(mu, "mu", "m^3/s^2")
@@ -290,7 +295,7 @@ def _ends(
         coplanar = _coplanar(r1, r2)
         if coplanar is not None:
             start = np.where(coplanar, start, np.nan)
-    return start, other1, end, other2, mu
+    return (start, other1, end, other2, mu, *extra.values())
 
 
 def _coplanar(first: Conic, second: Conic) -> np.ndarray | None:
@@ -372,14 +377,14 @@ def hohmann(
     (5.28, 8.77)
     """
     if is_number(r1, r2, mu):
+        _apsis_name(depart, "depart")
+        _apsis_name(arrive, "arrive")
         r1 = positive_number(r1, "r1", "m")
         r2 = positive_number(r2, "r2", "m")
         mu = positive_number(mu, "mu", "m^3/s^2")
-        _apsis_name(depart, "depart")
-        _apsis_name(arrive, "arrive")
         first, second, duration = on_numbers(_hohmann, r1, r1, r2, r2, mu)
         return _transfer((first, second), duration)
-    start, other1, end, other2, mu = _ends(r1, r2, mu, depart, arrive, {})
+    start, other1, end, other2, mu = _ends(r1, r2, mu, depart, arrive)
     first, second, duration = on_arrays(_hohmann, start, other1, end, other2, mu)
     return _transfer((first, second), duration)
 
@@ -439,16 +444,15 @@ def bielliptic(
     nan
     """
     if is_number(r1, r2, rb, mu):
+        _apsis_name(depart, "depart")
+        _apsis_name(arrive, "arrive")
         r1 = positive_number(r1, "r1", "m")
         r2 = positive_number(r2, "r2", "m")
         rb = positive_number(rb, "rb", "m")
         mu = positive_number(mu, "mu", "m^3/s^2")
-        _apsis_name(depart, "depart")
-        _apsis_name(arrive, "arrive")
         *burns, duration = on_numbers(_bielliptic, r1, r1, r2, r2, rb, mu)
         return _transfer(tuple(burns), duration)
-    rb = positive(rb, "rb", "m")
-    start, other1, end, other2, mu = _ends(r1, r2, mu, depart, arrive, {"rb": rb})
+    start, other1, end, other2, mu, rb = _ends(r1, r2, mu, depart, arrive, rb)
     *burns, duration = on_arrays(_bielliptic, start, other1, end, other2, rb, mu)
     return _transfer(tuple(burns), duration)
 
