@@ -99,7 +99,8 @@ def escape_burn(rp: ArrayLike, vinf: ArrayLike, mu: ArrayLike, ra: ArrayLike | N
     """Prograde burn at parking-orbit periapsis that leaves with excess speed ``vinf``.
 
     ``sqrt(vinf^2 + 2 mu / rp) - v_park``, where ``v_park`` is the periapsis
-    speed of the parking orbit.
+    speed of the parking orbit (evaluated as the difference of the squared
+    speeds over their sum, so an elongated parking orbit loses no digits).
 
     Parameters
     ----------
@@ -115,12 +116,13 @@ def escape_burn(rp: ArrayLike, vinf: ArrayLike, mu: ArrayLike, ra: ArrayLike | N
     Returns
     -------
     ndarray or numpy scalar
-        Delta-v magnitude, m/s.
+        Delta-v magnitude, m/s, >= 0. Never NaN: every valid input has a burn.
 
     Raises
     ------
     DomainError
-        Non-finite input, ``rp`` or ``mu`` <= 0, ``vinf`` < 0, ``ra`` < ``rp``.
+        Non-finite input, ``rp`` or ``mu`` <= 0, ``vinf`` < 0, ``ra`` < ``rp``,
+        or shapes that do not broadcast.
 
     Examples
     --------
@@ -160,7 +162,7 @@ def capture_burn(rp: ArrayLike, vinf: ArrayLike, mu: ArrayLike, ra: ArrayLike | 
     Returns
     -------
     ndarray or numpy scalar
-        Delta-v magnitude, m/s.
+        Delta-v magnitude, m/s, >= 0. Never NaN: every valid input has a burn.
 
     Examples
     --------

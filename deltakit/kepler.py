@@ -387,6 +387,10 @@ def _mean_motion(m, rp, e, mu):
 def mean_motion(conic: Conic) -> Any:
     """Mean motion ``n`` of each conic, rad/s (so that time since periapsis is ``M / n``).
 
+    ``sqrt(mu / |a|^3)`` for an ellipse or hyperbola, ``2 sqrt(mu / p^3)`` for a
+    parabola (Barker's equation, ``p = 2 rp``). NaN only where the conic's
+    elements are NaN (an infeasible outcome passed on).
+
     Examples
     --------
     >>> from deltakit import Conic
