@@ -186,9 +186,8 @@ def as_float(value: Any, name: str, unit: str = "") -> np.ndarray:
     try:
         return np.asarray(array, dtype=np.float64)
     except OverflowError:
-        raise DomainError(
-            f"`{name}` holds an integer too large for a float (more than about 1.8e308)"
-        ) from None
+        what = "is" if array.ndim == 0 else "holds an integer"  # one number: the scalar path's words
+        raise DomainError(f"`{name}` {what} too large for a float (more than about 1.8e308)") from None
     except (TypeError, ValueError) as err:
         raise _refuse(name, value, "something else:") from err
 

@@ -579,7 +579,11 @@ def _value(unit: str) -> st.SearchStrategy[float]:
     }[unit]
     anything = st.floats(allow_nan=True, allow_infinity=True)
     return st.one_of(
-        realistic, realistic, anything, st.integers(-(10**6), 10**6), st.sampled_from([0.0, -0.0, 1.0])
+        realistic,
+        realistic,
+        anything,
+        st.integers(-(10**6), 10**6),
+        st.sampled_from([0.0, -0.0, 1.0, 10**400]),
     )
 
 
