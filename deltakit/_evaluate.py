@@ -9,11 +9,12 @@ hundred nanoseconds, no array is made) and the array path.
 
 Two evaluators run a kernel on checked inputs:
 
-* :func:`on_numbers` takes plain floats. When every input lies in the band
-  ``1e-50 <= |x| <= 1e50`` (or is 0), no intermediate of a formula of degree
-  six or less can leave the float range, and :data:`SCALAR` is used. Outside
-  the band, or if plain-float arithmetic raises (a division by an exact zero,
-  a math domain error), the same numbers go through :func:`on_arrays`.
+* :func:`on_numbers` takes plain floats that passed
+  :func:`~deltakit._checks.is_number`, so each lies in the band
+  ``1e-50 <= |x| <= 1e50`` (or is 0) where no intermediate of a formula of
+  degree six or less can leave the float range, and evaluates with
+  :data:`SCALAR`. If plain-float arithmetic raises (a division by an exact
+  zero, a math domain error), the same numbers go through :func:`on_arrays`.
   Results are NumPy scalars, as on the array path.
 * :func:`on_arrays` evaluates with :data:`ARRAY`, trapping overflow and
   underflow. If either happens (an input such as 1e300 or 1e-300 squared on
@@ -38,7 +39,9 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["ARRAY", "SCALAR", "in_band", "on_arrays", "on_numbers"]
+from ._checks import BAND
+
+__all__ = ["ARRAY", "SCALAR", "on_arrays", "on_numbers"]
 
 _NAN = math.nan
 
@@ -129,22 +132,11 @@ ARRAY = SimpleNamespace(
     clip=np.clip,
 )
 
-# |x| in [_LOW, _HIGH] or x == 0: products and quotients of up to six such
-# numbers stay between about 1e-300 and 1e300, inside the normal float range.
-_LOW = 1e-50
-_HIGH = 1e50
-
-
-def in_band(*values: float) -> bool:
-    """True when every plain float lies where :data:`SCALAR` cannot over- or underflow."""
-    for x in values:
-        if not (_LOW <= x <= _HIGH or -_HIGH <= x <= -_LOW or x == 0.0):
-            return False
-    return True
+_LOW, _HIGH = BAND
 
 
 def _outside_band(arrays: tuple[np.ndarray, ...]) -> np.ndarray:
-    """Elements where some input lies outside the band of :func:`in_band` (NaN counts as outside)."""
+    """Elements where some input lies outside :data:`~deltakit._checks.BAND` (NaN counts as outside)."""
     outside = np.zeros((), dtype=bool)
     for a in arrays:
         size = np.abs(a)
@@ -164,7 +156,7 @@ def on_arrays(kernel: Callable[..., Any], *arrays: Any) -> Any:
     ``arrays`` are checked float arrays; the result has the kernel's structure
     (an array or a tuple of them), float64 throughout. Only when the float64
     run over- or underflows somewhere are the elements with an input outside
-    the band of :func:`in_band` taken from a run in :class:`numpy.longdouble`;
+    :data:`~deltakit._checks.BAND` taken from a run in :class:`numpy.longdouble`;
     the others keep their float64 values, so an element's result never
     depends on its neighbours (an array call equals the loop of scalar calls).
     """
@@ -189,22 +181,16 @@ _FLOAT64 = np.float64
 
 
 def on_numbers(kernel: Callable[..., Any], *values: float) -> Any:
-    """``kernel`` on plain floats, as NumPy scalars (a flat tuple of them for a tuple).
+    """``kernel`` on plain floats in the band (they passed ``is_number``), as NumPy scalars.
 
-    Uses :data:`SCALAR` inside the safe band and :func:`on_arrays` outside it,
-    so both paths give the same numbers (to rounding of the elementary
-    functions; bit for bit where the kernel uses only arithmetic and sqrt).
+    A tuple result gives a flat tuple of NumPy scalars. Both paths give the
+    same numbers (to rounding of the elementary functions; bit for bit where
+    the kernel uses only arithmetic and sqrt).
     """
-    for x in values:  # in_band(*values), inlined: this is the hot path of every scalar call
-        if not (_LOW <= x <= _HIGH or -_HIGH <= x <= -_LOW or x == 0.0):
-            break
-    else:
-        try:
-            result = kernel(SCALAR, *values)
-        except (ArithmeticError, ValueError):  # x / 0.0, a math domain error: let NumPy decide
-            pass
-        else:
-            if type(result) is tuple:
-                return tuple(map(_FLOAT64, result))
-            return _FLOAT64(result)
-    return _scalars_of(on_arrays(kernel, *(np.asarray(v) for v in values)))
+    try:
+        result = kernel(SCALAR, *values)
+    except (ArithmeticError, ValueError):  # x / 0.0, a math domain error: let NumPy decide
+        return _scalars_of(on_arrays(kernel, *(np.asarray(v) for v in values)))
+    if type(result) is tuple:
+        return tuple(map(_FLOAT64, result))
+    return _FLOAT64(result)
