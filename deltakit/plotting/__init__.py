@@ -28,6 +28,7 @@ from .orbits import (
     update_transfer,
 )
 from .waterfall import WaterfallArtists, plot_budget_waterfall, update_budget_waterfall
+from .windows import TransferMapArtists, map_minimum, plot_transfer_map
 
 __all__ = [
     "COLOURS",
@@ -36,6 +37,7 @@ __all__ = [
     "LeftArtists",
     "SensitivityArtists",
     "TransferArtists",
+    "TransferMapArtists",
     "WaterfallArtists",
     "burn_at_angle",
     "conic_points",
@@ -43,10 +45,12 @@ __all__ = [
     "draw_conic",
     "draw_transfer",
     "energy_gain_curve",
+    "map_minimum",
     "plot_budget_waterfall",
     "plot_energy_gain",
     "plot_propellant_left",
     "plot_sensitivity",
+    "plot_transfer_map",
     "update_budget_waterfall",
     "update_burn",
     "update_conic",
