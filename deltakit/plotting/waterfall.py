@@ -45,6 +45,15 @@ def budget_masses(budget: Any) -> tuple[list[str], np.ndarray]:
     return labels, masses
 
 
+def _spent(budget: Any, masses: np.ndarray) -> np.ndarray:
+    """Propellant of each bar: none at the start, then each line's (a jettison or a docking burns none)."""
+    per_line = getattr(budget, "propellant_per_line", None)
+    if per_line is None:
+        before = np.concatenate([[masses[0]], masses[:-1]])
+        return before - masses
+    return np.concatenate([[0.0], np.asarray(per_line, dtype=float).reshape(-1)])
+
+
 def _mass_readout(labels: list[str], masses: np.ndarray, spent: np.ndarray):
     """The mouse readout of a waterfall: the line under the cursor and its masses.
 
@@ -93,8 +102,7 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
     [1000.0, 904.8]
     """
     labels, masses = budget_masses(budget)
-    before = np.concatenate([[masses[0]], masses[:-1]])
-    spent = before - masses
+    spent = _spent(budget, masses)
     x = np.arange(len(masses))
     kwargs.setdefault("color", COLOURS["vehicle"])
     remaining = ax.bar(x, masses, width, label="mass after the line", **kwargs)
@@ -132,15 +140,15 @@ def update_budget_waterfall(
     """
     labels, masses = budget_masses(budget)
     if artists is not None and len(artists.remaining) == len(masses):
-        before = np.concatenate([[masses[0]], masses[:-1]])
+        spent = _spent(budget, masses)
         for bar, m in zip(artists.remaining, masses):
             bar.set_height(m)
-        for bar, m, s in zip(artists.spent, masses, before - masses):
+        for bar, m, s in zip(artists.spent, masses, spent):
             bar.set_y(m)
             bar.set_height(s)
         ax.set_xticks(np.arange(len(labels)), [escape_mathtext(label) for label in labels])
         ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
-        ax.format_coord = _mass_readout(labels, masses, before - masses)
+        ax.format_coord = _mass_readout(labels, masses, spent)
         dry_mass = getattr(budget, "dry_mass", None)
         if (artists.dry is None) == (dry_mass is None):
             if artists.dry is not None:
