@@ -496,7 +496,8 @@ def test_builder_default_matches_budget(builder):
     assert r["total_dv"] == pytest.approx(float(budget.total_dv), rel=1e-12)
     assert r["final_mass"] == pytest.approx(float(budget.final_mass), rel=1e-12)
     np.testing.assert_allclose([b.get_height() for b in builder._waterfall.remaining][1:], budget.mass_after)
-    assert builder.export_text.value == budget.to_markdown()
+    assert builder.export_text.value == builder.budget.to_markdown()
+    assert "formula capture" in builder.export_text.value  # the table says where a line's delta-v came from
     check_common(builder)
 
 

@@ -38,15 +38,17 @@ from .._text import CAUTION, escape_html, one_line
 from ..errors import DomainError
 from ._controls import choice, is_slider, number, number_width, on_slider_grid, slider, slider_plan, toggle
 from ._format import fmt, html_notes, html_table, json_ready
-from ._limits import follow_limits, follow_square
+from ._limits import FARTHEST, follow_limits, follow_square
 from ._view import FigureView, figure_mode
 
 __all__ = [
     "CAUTION",
+    "FARTHEST",
     "Computed",
     "FigureView",
     "InputError",
     "Panel",
+    "check_distance",
     "choice",
     "figure_mode",
     "fmt",
@@ -100,6 +102,14 @@ class _Plan(NamedTuple):
     si: Any
     apply: Any
     note: str = ""
+
+
+def check_distance(value: float, label: str, name: str) -> None:
+    """Refuse a distance (m) the panel cannot draw: farther than :data:`FARTHEST`."""
+    if value > FARTHEST:
+        raise InputError(
+            f"{label} {value / 1e3:g} km is farther than a panel draws (at most {FARTHEST / 1e3:g} km).", name
+        )
 
 
 def _round_si(x: float) -> float:
@@ -475,6 +485,8 @@ class Panel(widgets.VBox):
             self.draw(computed, changed)
         except Exception as err:  # noqa: BLE001  # a drawing bug must not raise into the notebook
             self._show_message(f"unexpected {type(err).__name__} while drawing: {one_line(err)}")
+            if self.view is not None:
+                self.view.invalidate()  # artists may have half moved: the next view is drawn whole
             return
         self._pending.clear()
         self._results = dict(computed.results)

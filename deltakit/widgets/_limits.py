@@ -13,7 +13,11 @@ from __future__ import annotations
 import math
 from typing import Any
 
-__all__ = ["follow_limits", "follow_square", "nice_ceiling"]
+__all__ = ["FARTHEST", "follow_limits", "follow_square", "nice_ceiling"]
+
+#: The largest distance (m) a panel draws, about 6700 au: beyond any orbit around one of the bodies
+#: of :mod:`deltakit.constants`; a larger radius or altitude is refused with a message.
+FARTHEST = 1.0e15
 
 #: Room kept between the data and the frame, as a fraction of the data's extent.
 PAD = 0.06

@@ -32,7 +32,17 @@ from ..plotting._style import COLOURS
 from ..plotting.energy import energy_gain_curve, plot_energy_gain
 from ..plotting.orbits import burn_at_angle, draw_burn, draw_conic, update_burn, update_conic
 from ..units import MJ_per_kg, deg, km, km_per_s
-from ._base import Computed, InputError, Panel, choice, follow_limits, follow_square, number, slider
+from ._base import (
+    Computed,
+    InputError,
+    Panel,
+    check_distance,
+    choice,
+    follow_limits,
+    follow_square,
+    number,
+    slider,
+)
 
 __all__ = ["DIRECTIONS", "VIEW_RADII", "BurnPointExplorer"]
 
@@ -146,6 +156,8 @@ class BurnPointExplorer(Panel):
         """The burn at ``values`` (SI, keyed like the controls): readouts, notes, what to draw."""
         body = BODIES[values["body"]]
         hp, ha, dv, nu = values["periapsis_altitude"], values["apoapsis_altitude"], values["dv"], values["nu"]
+        check_distance(hp, "periapsis altitude", "periapsis_altitude")
+        check_distance(ha, "apoapsis altitude", "apoapsis_altitude")
         if hp < 0.0:
             raise InputError(
                 f"periapsis altitude {hp / km:g} km is below the surface of {body.name} (must be >= 0 km).",

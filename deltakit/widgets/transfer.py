@@ -40,7 +40,17 @@ from ..transfers import (
 )
 from ..twobody import circular_speed
 from ..units import deg, hour, km, km_per_s, percent
-from ._base import Computed, InputError, Panel, choice, follow_limits, follow_square, number, slider
+from ._base import (
+    Computed,
+    InputError,
+    Panel,
+    check_distance,
+    choice,
+    follow_limits,
+    follow_square,
+    number,
+    slider,
+)
 
 __all__ = ["TransferTrade"]
 
@@ -188,6 +198,7 @@ class TransferTrade(Panel):
             "intermediate_altitude": "bi-elliptic apoapsis altitude",
         }
         for name, label in labels.items():
+            check_distance(values[name], label, name)
             if values[name] < 0.0:
                 raise InputError(
                     f"{label} {values[name] / km:g} km is below the surface of {body.name} "
