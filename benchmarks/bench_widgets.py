@@ -43,6 +43,8 @@ os.environ.setdefault("MPLBACKEND", "Agg")
 import ipywidgets as widgets
 import numpy as np
 
+from deltakit.widgets import PANELS as REGISTERED
+
 HERE = Path(__file__).resolve().parent
 SLIDER_MEDIAN_MS, SLIDER_P90_MS, BOX_MEDIAN_MS, BROWSER_MEDIAN_MS, FIRST_PANEL_S = (
     16.0,
@@ -51,15 +53,8 @@ SLIDER_MEDIAN_MS, SLIDER_P90_MS, BOX_MEDIAN_MS, BROWSER_MEDIAN_MS, FIRST_PANEL_S
     100.0,
     1.5,
 )
-PANELS = [
-    "BurnPointExplorer",
-    "PropellantTrade",
-    "TransferTrade",
-    "EscapeFlyby",
-    "BudgetBuilder",
-    "FormulaSheet",
-]
-SLIDER_PANELS = PANELS[:4]
+PANELS = list(REGISTERED)
+SLIDER_PANELS = [name for name in PANELS if name not in ("BudgetBuilder", "FormulaSheet")]  # no sliders
 
 
 def percentile(times: list[float], q: float) -> float:
@@ -70,6 +65,20 @@ def timed(step: Callable[[], None]) -> float:
     start = time.perf_counter()
     step()
     return time.perf_counter() - start
+
+
+def verdict(
+    report: list[str],
+    missed: list[str],
+    key: str,
+    ok: bool,
+    text: str,
+    words: tuple[str, str] = ("ok", "MISSES"),
+) -> None:
+    """One measured row with its verdict; ``key`` joins the missed ones when it misses."""
+    if not ok:
+        missed.append(key)
+    report.append(f"{text}  {words[0] if ok else words[1]}")
 
 
 def make(name: str, mode: str, **kwargs):
@@ -157,13 +166,13 @@ def slider_steps(mode: str, quick: bool, report: list[str]) -> list[str]:
             assert panel.error == "", panel.error
             full, cells = panel.view.full_draws - draws, panel.view.cell_draws - cells
             median, p90, worst = percentile(times, 50), percentile(times, 90), percentile(times, 100)
-            ok = median <= SLIDER_MEDIAN_MS and p90 <= SLIDER_P90_MS
-            if not ok:
-                missed.append(f"{mode} {name}.{slider}")
-            report.append(
+            verdict(
+                report,
+                missed,
+                f"{mode} {name}.{slider}",
+                median <= SLIDER_MEDIAN_MS and p90 <= SLIDER_P90_MS,
                 f"  {name + '.' + slider:36s} {len(path):5d} {median:6.1f}ms {p90:6.1f}ms {worst:6.1f}ms "
-                f"{cells:4d}, {full:3d} ({100 * (cells + full) / len(path):3.0f} % of steps)  "
-                f"{'ok' if ok else 'MISSES'}"
+                f"{cells:4d}, {full:3d} ({100 * (cells + full) / len(path):3.0f} % of steps)",
             )
             panel.close()
     return missed
@@ -210,9 +219,13 @@ def boxes(mode: str, report: list[str]) -> list[str]:
             times = [timed(lambda v=values[i % 2], w=widget: setattr(w, "value", v)) for i in range(8)]
             median = percentile(times, 50)
             ok = median <= BOX_MEDIAN_MS and panel.error == ""
-            if not ok:
-                missed.append(f"{mode} {name}.{key}")
-            report.append(f"  {name + '.' + key:40s} median {median:6.1f} ms  {'ok' if ok else 'MISSES'}")
+            verdict(
+                report,
+                missed,
+                f"{mode} {name}.{key}",
+                ok,
+                f"  {name + '.' + key:40s} median {median:6.1f} ms",
+            )
         panel.close()
     return missed
 
@@ -258,12 +271,14 @@ def first_use(report: list[str]) -> list[str]:
         total, parts = runs[1]
         start_up = total - sum(parts.values())
         where = ", ".join(f"{k} {v:.2f} s" for k, v in parts.items())
-        ok = total <= FIRST_PANEL_S
-        if not ok:
-            missed.append(f"first {mode} panel")
-        report.append(
-            f"  {mode:6s} {total:5.2f} s (python start {start_up:.2f} s, {where})  "
-            f"{'meets the goal' if ok else 'misses the goal'}"
+        text = f"  {mode:6s} {total:5.2f} s (python start {start_up:.2f} s, {where})"
+        verdict(
+            report,
+            missed,
+            f"first {mode} panel",
+            total <= FIRST_PANEL_S,
+            text,
+            ("meets the goal", "misses the goal"),
         )
     return missed
 
@@ -355,13 +370,11 @@ def browser(presses: int, report: list[str]) -> list[str]:
                     report.append(f"  {name:20s} only {len(latencies)} of {presses} presses answered: {seen}")
                     continue
                 median, p90 = statistics.median(latencies), float(np.percentile(latencies, 90))
-                ok = median <= BROWSER_MEDIAN_MS
-                if not ok:
-                    missed.append(f"browser {name}")
-                report.append(
+                text = (
                     f"  {name:20s} key press to readout and redrawn canvas: median {median:6.1f} ms, "
-                    f"p90 {p90:6.1f} ms  {'ok' if ok else 'MISSES'}"
+                    f"p90 {p90:6.1f} ms"
                 )
+                verdict(report, missed, f"browser {name}", median <= BROWSER_MEDIAN_MS, text)
     return missed
 
 

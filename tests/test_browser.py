@@ -29,18 +29,13 @@ from typing import Any
 import pytest
 from _jupyterlab import chromium, get, jupyterlab, require_browser
 
+from deltakit.widgets import PANELS as REGISTERED
+
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
 
-#: The panels the notebook shows, in order (DESIGN.md, "Widgets and plots").
-PANELS = [
-    "BurnPointExplorer",
-    "PropellantTrade",
-    "TransferTrade",
-    "EscapeFlyby",
-    "BudgetBuilder",
-    "FormulaSheet",
-]
+#: The panels the notebook shows, in order (DESIGN.md, "Widgets and plots"): every registered panel.
+PANELS = list(REGISTERED)
 
 #: Lab extensions the kernel's widgets need in the browser.
 NEEDED_EXTENSIONS = ("@jupyter-widgets/jupyterlab-manager", "jupyter-matplotlib")

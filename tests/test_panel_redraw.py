@@ -30,7 +30,7 @@ from PIL import Image
 import deltakit as dk
 from deltakit.widgets._png import encode_png
 
-SLIDER_PANELS = ["BurnPointExplorer", "PropellantTrade", "TransferTrade", "EscapeFlyby"]
+SLIDER_PANELS = [name for name in dk.widgets.PANELS if name not in ("BudgetBuilder", "FormulaSheet")]
 
 
 def decode(data: bytes) -> np.ndarray:

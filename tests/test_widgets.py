@@ -25,16 +25,9 @@ from deltakit.units import deg, km
 from deltakit.widgets import CAUTION
 from deltakit.widgets._format import fmt
 
-PANEL_NAMES = [
-    "BurnPointExplorer",
-    "PropellantTrade",
-    "TransferTrade",
-    "EscapeFlyby",
-    "BudgetBuilder",
-    "FormulaSheet",
-]
+PANEL_NAMES = list(dk.widgets.PANELS)
 #: The panels that have sliders (BudgetBuilder and FormulaSheet have none).
-SLIDER_PANELS = PANEL_NAMES[:4]
+SLIDER_PANELS = [name for name in PANEL_NAMES if name not in ("BudgetBuilder", "FormulaSheet")]
 
 
 def readout_text(panel, key):

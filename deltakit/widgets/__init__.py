@@ -19,7 +19,7 @@ from typing import Any
 
 from ._base import CAUTION, Computed, InputError, Panel
 
-# Panel -> module; each loads on first use.
+# Panel -> module; each loads on first use. A new panel is registered here (DEVELOPERS.md, "Adding a panel").
 _PANELS = {
     "BurnPointExplorer": "burn_point",
     "PropellantTrade": "propellant",
@@ -29,8 +29,12 @@ _PANELS = {
     "FormulaSheet": "formula_sheet",
 }
 
+#: The names of the panels, in the order the notebooks meet them.
+PANELS: tuple[str, ...] = tuple(_PANELS)
+
 __all__ = [
     "CAUTION",
+    "PANELS",
     "BudgetBuilder",
     "BurnPointExplorer",
     "Computed",

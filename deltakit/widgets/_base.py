@@ -48,7 +48,7 @@ __all__ = [
     "FigureView",
     "InputError",
     "Panel",
-    "check_distance",
+    "apsides_at",
     "choice",
     "figure_mode",
     "fmt",
@@ -58,6 +58,7 @@ __all__ = [
     "number",
     "number_width",
     "on_slider_grid",
+    "radius_at",
     "slider",
     "toggle",
 ]
@@ -104,12 +105,47 @@ class _Plan(NamedTuple):
     note: str = ""
 
 
-def check_distance(value: float, label: str, name: str) -> None:
-    """Refuse a distance (m) the panel cannot draw: farther than :data:`FARTHEST`."""
-    if value > FARTHEST:
+def radius_at(values: Mapping[str, Any], name: str, label: str, body: Any) -> float:
+    """The radius (m) of the altitude ``values[name]`` above ``body``; InputError below ground or too far.
+
+    ``label`` names the control in the message ("parking periapsis altitude").
+
+    >>> from deltakit.constants import EARTH
+    >>> radius_at({"h": 400e3}, "h", "periapsis altitude", EARTH)
+    6778137.0
+    >>> radius_at({"h": -50e3}, "h", "periapsis altitude", EARTH)
+    Traceback (most recent call last):
+    ...
+    deltakit.widgets.InputError: periapsis altitude -50 km is below the surface of Earth (must be >= 0 km).
+    """
+    altitude = values[name]
+    if altitude < 0.0:
         raise InputError(
-            f"{label} {value / 1e3:g} km is farther than a panel draws (at most {FARTHEST / 1e3:g} km).", name
+            f"{label} {altitude / 1e3:g} km is below the surface of {body.name} (must be >= 0 km).", name
         )
+    if altitude > FARTHEST:
+        raise InputError(
+            f"{label} {altitude / 1e3:g} km is farther than a panel draws (at most {FARTHEST / 1e3:g} km).",
+            name,
+        )
+    return body.radius + altitude
+
+
+def apsides_at(values: Mapping[str, Any], body: Any, prefix: str = "") -> tuple[float, float]:
+    """Periapsis and apoapsis radii (m) of the controls ``periapsis_altitude`` and ``apoapsis_altitude``.
+
+    Each is checked by :func:`radius_at`, and the apoapsis must not lie below the periapsis;
+    ``prefix`` starts their labels ("parking ").
+    """
+    rp = radius_at(values, "periapsis_altitude", f"{prefix}periapsis altitude", body)
+    ra = radius_at(values, "apoapsis_altitude", f"{prefix}apoapsis altitude", body)
+    if ra < rp:
+        raise InputError(
+            f"{prefix}apoapsis altitude {(ra - body.radius) / 1e3:g} km is below the periapsis altitude "
+            f"{(rp - body.radius) / 1e3:g} km.",
+            "apoapsis_altitude",
+        )
+    return rp, ra
 
 
 def _round_si(x: float) -> float:

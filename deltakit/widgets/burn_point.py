@@ -36,7 +36,7 @@ from ._base import (
     Computed,
     InputError,
     Panel,
-    check_distance,
+    apsides_at,
     choice,
     follow_limits,
     follow_square,
@@ -63,6 +63,13 @@ _CURVE_POINTS = 361
 #: The energy axis holds at least the energy change of a burn this large at periapsis, m/s.
 _ENERGY_FLOOR_DV = 50.0
 _CIRCLE = np.linspace(0.0, 2.0 * np.pi, 241)
+
+
+def _reverses(outcome: Any, conic: Conic) -> bool:
+    """True when a burn turns the motion round: no outcome (NaN), or an orbit flown the other way."""
+    if math.isnan(float(outcome.energy_change)):
+        return True
+    return float(getattr(outcome.after, "inc", 0.0)) != float(getattr(conic, "inc", 0.0))
 
 
 class BurnPointExplorer(Panel):
@@ -155,19 +162,8 @@ class BurnPointExplorer(Panel):
     def compute(cls, values: Mapping[str, Any]) -> Computed:
         """The burn at ``values`` (SI, keyed like the controls): readouts, notes, what to draw."""
         body = BODIES[values["body"]]
-        hp, ha, dv, nu = values["periapsis_altitude"], values["apoapsis_altitude"], values["dv"], values["nu"]
-        check_distance(hp, "periapsis altitude", "periapsis_altitude")
-        check_distance(ha, "apoapsis altitude", "apoapsis_altitude")
-        if hp < 0.0:
-            raise InputError(
-                f"periapsis altitude {hp / km:g} km is below the surface of {body.name} (must be >= 0 km).",
-                "periapsis_altitude",
-            )
-        if ha < hp:
-            raise InputError(
-                f"apoapsis altitude {ha / km:g} km is below the periapsis altitude {hp / km:g} km.",
-                "apoapsis_altitude",
-            )
+        rp, ra = apsides_at(values, body)
+        dv, nu = values["dv"], values["nu"]
         if dv < 0.0:
             raise InputError(
                 f"delta-v must be >= 0 m/s, got {dv:g} m/s: choose the direction (retrograde, radial in) "
@@ -176,16 +172,17 @@ class BurnPointExplorer(Panel):
             )
         fixed, reference = DIRECTIONS[values["direction"]]
         angle = values["angle"] if fixed is None else fixed
-        conic = Conic.from_apsides(body.radius + hp, body.radius + ha, body.mu)
+        conic = Conic.from_apsides(rp, ra, body.mu)
         outcome = burn_at_angle(conic, nu, dv, angle, reference=reference)
         energy = float(outcome.energy_change)
-        if math.isnan(energy):
+        if _reverses(outcome, conic):
             raise InputError(
                 f"a {dv:g} m/s burn in this direction reverses the motion here: no orbit after it.",
                 "dv",
                 "direction",
             )
-        energy_apo = float(burn_at_angle(conic, math.pi, dv, angle, reference=reference).energy_change)
+        at_apoapsis = burn_at_angle(conic, math.pi, dv, angle, reference=reference)
+        energy_apo = math.nan if _reverses(at_apoapsis, conic) else float(at_apoapsis.energy_change)
         after = outcome.after
         rp_after, ra_after, e_after = float(after.rp), float(after.ra), float(after.e)
         view_radius = VIEW_RADII * float(conic.ra)

@@ -25,7 +25,7 @@ from ..demo import CINDERWREN
 from ..departure import escape_burn, powered_flyby
 from ..plotting._style import COLOURS, style_axes
 from ..units import deg, km, km_per_s
-from ._base import Computed, InputError, Panel, choice, follow_limits, number, slider
+from ._base import Computed, InputError, Panel, apsides_at, choice, follow_limits, number, radius_at, slider
 
 __all__ = ["EscapeFlyby"]
 
@@ -140,28 +140,13 @@ class EscapeFlyby(Panel):
     def compute(cls, values: Mapping[str, Any]) -> Computed:
         """Departure burns and flyby gains for ``values`` (SI, keyed like the controls)."""
         body = BODIES[values["body"]]
-        hp, ha, hf = values["periapsis_altitude"], values["apoapsis_altitude"], values["flyby_altitude"]
+        rp, ra = apsides_at(values, body, prefix="parking ")
+        rf = radius_at(values, "flyby_altitude", "flyby periapsis altitude", body)
         vinf, dv = values["vinf"], values["flyby_dv"]
-        if hp < 0.0:
-            raise InputError(
-                f"parking periapsis altitude {hp / km:g} km is below the surface of {body.name}.",
-                "periapsis_altitude",
-            )
-        if ha < hp:
-            raise InputError(
-                f"parking apoapsis altitude {ha / km:g} km is below the periapsis altitude {hp / km:g} km.",
-                "apoapsis_altitude",
-            )
-        if hf < 0.0:
-            raise InputError(
-                f"flyby periapsis altitude {hf / km:g} km is below the surface of {body.name}.",
-                "flyby_altitude",
-            )
         if vinf < 0.0:
             raise InputError(f"excess speed must be >= 0 km/s (got {vinf / km_per_s:g} km/s).", "vinf")
         if dv < 0.0:
             raise InputError(f"flyby burn must be >= 0 m/s (got {dv:g} m/s).", "flyby_dv")
-        rp, ra, rf = body.radius + hp, body.radius + ha, body.radius + hf
         dv_periapsis = float(escape_burn(rp, vinf, body.mu, ra))
         just_escape = float(escape_burn(rp, 0.0, body.mu, ra))
         speeds = _SPEED_FRACTIONS * speed_axis_top(vinf)

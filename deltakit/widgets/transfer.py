@@ -44,11 +44,11 @@ from ._base import (
     Computed,
     InputError,
     Panel,
-    check_distance,
     choice,
     follow_limits,
     follow_square,
     number,
+    radius_at,
     slider,
 )
 
@@ -192,27 +192,14 @@ class TransferTrade(Panel):
     def compute(cls, values: Mapping[str, Any]) -> Computed:
         """Both transfers and the plane-change split for ``values`` (SI, keyed like the controls)."""
         body = BODIES[values["body"]]
-        labels = {
-            "initial_altitude": "initial orbit altitude",
-            "final_altitude": "final orbit altitude",
-            "intermediate_altitude": "bi-elliptic apoapsis altitude",
-        }
-        for name, label in labels.items():
-            check_distance(values[name], label, name)
-            if values[name] < 0.0:
-                raise InputError(
-                    f"{label} {values[name] / km:g} km is below the surface of {body.name} "
-                    "(must be >= 0 km).",
-                    name,
-                )
+        r1 = radius_at(values, "initial_altitude", "initial orbit altitude", body)
+        r2 = radius_at(values, "final_altitude", "final orbit altitude", body)
+        rb = radius_at(values, "intermediate_altitude", "bi-elliptic apoapsis altitude", body)
         angle = values["plane_change"]
         if not 0.0 <= angle <= math.pi:
             raise InputError(
                 f"plane change must be between 0 and 180 deg (got {angle / deg:g} deg).", "plane_change"
             )
-        r1 = body.radius + values["initial_altitude"]
-        r2 = body.radius + values["final_altitude"]
-        rb = body.radius + values["intermediate_altitude"]
         h = hohmann(r1, r2, body.mu)
         b = bielliptic(r1, r2, rb, body.mu)
         with np.errstate(invalid="ignore"):
