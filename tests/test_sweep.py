@@ -183,6 +183,89 @@ def test_a_ten_billion_case_sweep_is_built_without_computing_it():
     assert float(one) == pytest.approx(float(expected), rel=1e-15)
 
 
+def test_a_sweep_far_beyond_memory_is_built_in_bounded_memory():
+    """9e12 cases (72 TB if materialised) under a 2 GiB address-space limit, in a fresh process.
+
+    Building the sweep must take a few seconds and little memory (the graph
+    is made on demand, in blocks grown so the task count stays bounded), and
+    one element computes one block.
+    """
+    import subprocess
+    import sys
+
+    script = """
+import resource, time
+resource.setrlimit(resource.RLIMIT_AS, (2 * 1024**3, 2 * 1024**3))
+import numpy as np, deltakit as dk
+import deltakit.sweeps as sweeps
+from deltakit.trades import prograde_energy_change
+start = time.perf_counter()
+n = 1733  # n**4 = 9.02e12 cases
+axes = dict(nu=np.linspace(0, 6.28, n), dv=np.linspace(1, 1000, n),
+            rp=np.linspace(6.6e6, 8e6, n), ra=np.linspace(8e6, 6e7, n))
+ds = dk.sweep(prograde_energy_change, mu=3.986004418e14, name="energy_change", **axes)
+built = time.perf_counter() - start
+data = ds["energy_change"].data
+one = float(ds["energy_change"].isel(nu=17, dv=200, rp=3, ra=n - 1).compute())
+expected = float(prograde_energy_change(axes["nu"][17], axes["dv"][200], axes["rp"][3], axes["ra"][n - 1],
+                                        3.986004418e14))
+print(data.size, data.npartitions, np.prod([max(c) for c in data.chunks]), built, one, expected)
+"""
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=300)
+    assert done.returncode == 0, done.stderr[-3000:]
+    size, blocks, block_cases, built, one, expected = (float(x) for x in done.stdout.split())
+    assert size > 9e12
+    # grown blocks: some 6e5 tasks of up to 2^24 cases, not 9e6 of 2^20
+    assert sweep_module._BLOCK_CASES < block_cases <= sweep_module._LARGEST_BLOCK
+    assert blocks <= 1.25 * size / sweep_module._LARGEST_BLOCK
+    assert built < 30.0, f"building the sweep took {built:.1f} s"
+    assert one == expected
+
+
+def test_block_size_grows_only_for_huge_grids():
+    assert sweep_module._auto_block_cases(10**6) == sweep_module._BLOCK_CASES
+    assert sweep_module._auto_block_cases(10**10) == sweep_module._BLOCK_CASES
+    grown = sweep_module._auto_block_cases(10**12)
+    assert sweep_module._BLOCK_CASES < grown <= sweep_module._LARGEST_BLOCK
+    assert 10**12 / grown <= sweep_module._MAX_BLOCKS
+    assert sweep_module._auto_block_cases(10**15) == sweep_module._LARGEST_BLOCK
+
+
+# ---------------------------------------------------------------------- axes apart from options
+def test_axes_named_like_options_go_in_the_mapping():
+    """An axis called `units` (or `name`, `chunks`, `fixed`) is given in the axes mapping."""
+
+    def cost(units, name, dv):  # an analyst's function whose parameters collide with sweep's options
+        return dv * units + name
+
+    ds = dk.sweep(cost, {"units": [1.0, 2.0], "name": [0.0, 10.0]}, dv=[5.0, 7.0], units={"dv": "m/s"})
+    assert ds["cost"].dims == ("units", "name", "dv")
+    grid = np.ix_([1.0, 2.0], [0.0, 10.0], [5.0, 7.0])
+    assert_same(ds["cost"], cost(*grid))
+    assert ds["dv"].attrs["units"] == "m/s"  # `units=` as a keyword is still the option
+    # fixed values by the mapping too (0-d), and option keywords keep their meaning
+    fixed = dk.sweep(cost, {"units": 3.0, "name": [1.0]}, dv=[2.0], name="price")
+    assert float(fixed["price"][0, 0]) == 7.0 and float(fixed["units"]) == 3.0
+
+
+def test_an_option_keyword_that_the_function_also_takes_is_refused():
+    def cost(units, dv):
+        return dv * units
+
+    with pytest.raises(TypeError, match=r"`units=` is sweep's own option.*sweep\(f, \{'units': \.\.\.\}\)"):
+        dk.sweep(cost, dv=[1.0, 2.0], units={"dv": "m/s"})
+    with pytest.raises(TypeError, match="axis `dv` given both in the mapping and as a keyword"):
+        dk.sweep(cost, {"dv": [1.0]}, dv=[2.0], fixed={"units": 1.0})
+    # given in `fixed`, the parameter is no longer ambiguous
+    ds = dk.sweep(cost, dv=[1.0, 2.0], fixed={"units": 3.0}, units={"dv": "m/s"})
+    assert ds["cost"].values.tolist() == [3.0, 6.0]
+
+
+def test_existing_keyword_calls_keep_working():
+    ds = dk.sweep(dk.hohmann, r1=R1, r2=R2, mu=MU, chunks=False, name="ignored", units={"total": "m/s"})
+    assert_same(ds["total"], dk.hohmann(R1[:, None], R2[None, :], MU).total)
+
+
 # ---------------------------------------------------------------------- on a cluster
 @pytest.mark.slow
 def test_local_cluster_run_equals_local_run():
