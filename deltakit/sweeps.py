@@ -35,8 +35,6 @@ import inspect
 import itertools
 import math
 import os
-import shutil
-import tempfile
 import uuid
 from collections.abc import Callable, Iterator, Mapping
 from pathlib import Path
@@ -599,18 +597,21 @@ def _missing_chunks(path: Path) -> list[str]:
 def save_sweep(dataset: xarray.Dataset, path: str | os.PathLike[str]) -> Path:
     """Write a sweep to a Zarr store (a folder), atomically; lazy sweeps stream block by block.
 
-    The store is first written to a temporary folder beside ``path`` and then
-    renamed into place, so an interrupted save never leaves a half-written
-    sweep. An existing sweep at ``path`` is moved aside first and deleted only
-    once the new one is in place; anything at ``path`` that is not a deltakit
-    sweep is refused and left untouched.
+    The path becomes a symbolic link to a versioned folder beside it
+    (``.NAME.STAMP.v``). The new store is written and read back in full
+    before the link is swapped to it in one step, and the old version is
+    removed only after that: at every instant, a complete sweep (old or new)
+    opens at ``path``, even if the save is killed. Two saves of one path at
+    once run one after the other (a lock file ``.NAME.save.lock``); anything
+    at ``path`` that is not a deltakit sweep is refused and left untouched.
 
     Parameters
     ----------
     dataset : xarray.Dataset
         A result of :func:`sweep` (or a reduction of one that kept its attrs).
     path : str or path-like
-        Target folder, conventionally ``*.zarr``.
+        Target, conventionally ``*.zarr``. A symbolic link of your own is
+        followed and kept.
 
     Returns
     -------
@@ -634,32 +635,26 @@ def save_sweep(dataset: xarray.Dataset, path: str | os.PathLike[str]) -> Path:
     >>> back.identical(ds)
     True
     """
+    from ._folders import write_folder
+
     xr, _ = _import_scale()
     if not isinstance(dataset, xr.Dataset) or _TAG not in dataset.attrs:
         raise DomainError(
             "save_sweep: `dataset` must be a deltakit sweep (an xarray.Dataset made by deltakit.sweep)"
         )
-    path = Path(path)
-    if (path.exists() or path.is_symlink()) and _read_tag(path, xr) is None:
-        raise DomainError(f"save_sweep: refusing to overwrite {path}: it is not a deltakit sweep")
-    path.parent.mkdir(parents=True, exist_ok=True)
-    temporary = Path(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent))
-    try:
+
+    def fill(folder: Path) -> None:
         # every chunk written, even all-NaN ones, so a missing chunk reveals damage
-        dataset.to_zarr(temporary, mode="w", consolidated=False, write_empty_chunks=True)
-        if _read_tag(temporary, xr) != dataset.attrs[_TAG]:  # read back before it replaces anything
-            raise OSError(f"save_sweep: the store written to {temporary} does not read back")
-        if path.exists():
-            aside = Path(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".old", dir=path.parent))
-            os.replace(path, aside / "sweep")  # the old sweep survives until the new one is in place
-            os.replace(temporary, path)
-            shutil.rmtree(aside, ignore_errors=True)
-        else:
-            os.replace(temporary, path)
-    except BaseException:
-        shutil.rmtree(temporary, ignore_errors=True)
-        raise
-    return path
+        dataset.to_zarr(folder, mode="w", consolidated=False, write_empty_chunks=True)
+        if _read_tag(folder, xr) != dataset.attrs[_TAG]:  # read back before it replaces anything
+            raise OSError(f"save_sweep: the store written to {folder} does not read back")
+
+    try:
+        return write_folder(
+            path, fill, kind="deltakit sweep", same_kind=lambda p: _read_tag(p, xr) is not None
+        )
+    except FileExistsError:
+        raise DomainError(f"save_sweep: refusing to overwrite {path}: it is not a deltakit sweep") from None
 
 
 def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Dataset:
@@ -671,7 +666,8 @@ def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Da
         A Zarr store written by :func:`save_sweep`.
     chunks : dict or "auto", optional
         ``None`` (default) loads everything into memory; otherwise the
-        variables stay lazy dask arrays read block by block.
+        variables stay lazy dask arrays read block by block, from the
+        version that was at ``path`` when it was opened.
 
     Raises
     ------
@@ -679,45 +675,50 @@ def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Da
         If there is nothing at ``path``.
     deltakit.DomainError
         If the store is unreadable, corrupt, not a deltakit sweep, or of a
-        newer format than this deltakit reads. The store is never modified.
+        newer format than this deltakit reads. The store is never modified;
+        what a killed save left beside it is removed, and if it left no
+        sweep at ``path``, the newest complete version is put back there
+        (with a warning).
 
     Examples
     --------
     See :func:`save_sweep`.
     """
+    from ._folders import open_folder
+
     xr, _ = _import_scale()
-    path = Path(path)
-    if not path.exists():
-        raise FileNotFoundError(f"open_sweep: no such sweep: {path}")
+    shown = path
+    # the version current now: a lazy sweep keeps reading it, never a mix with a later save
+    path = os.path.realpath(open_folder(path, kind="deltakit sweep"))
     try:
         dataset = xr.open_zarr(path, consolidated=False, chunks=chunks)
     except Exception as err:
         raise DomainError(
-            f"open_sweep: {path} is not a readable Zarr store ({type(err).__name__}: {err})"
+            f"open_sweep: {shown} is not a readable Zarr store ({type(err).__name__}: {err})"
         ) from err
     version = dataset.attrs.get(_TAG)
     if version is None:
         dataset.close()
-        raise DomainError(f"open_sweep: {path} is not a deltakit sweep (no `{_TAG}` attribute)")
+        raise DomainError(f"open_sweep: {shown} is not a deltakit sweep (no `{_TAG}` attribute)")
     if not isinstance(version, (int, np.integer)) or not 1 <= version <= _FORMAT_VERSION:
         dataset.close()
         raise DomainError(
-            f"open_sweep: {path} has sweep format version {version!r}; this "
+            f"open_sweep: {shown} has sweep format version {version!r}; this "
             f"deltakit reads 1 to {_FORMAT_VERSION}"
         )
     try:
         missing = _missing_chunks(path)
     except Exception as err:
         dataset.close()
-        raise DomainError(f"open_sweep: {path} is corrupt ({type(err).__name__}: {err})") from err
+        raise DomainError(f"open_sweep: {shown} is corrupt ({type(err).__name__}: {err})") from err
     if missing:
         dataset.close()
-        raise DomainError(f"open_sweep: {path} is corrupt: chunks missing in {', '.join(missing)}")
+        raise DomainError(f"open_sweep: {shown} is corrupt: chunks missing in {', '.join(missing)}")
     if chunks is None:
         try:
             dataset = dataset.load()
         except Exception as err:
-            raise DomainError(f"open_sweep: {path} is corrupt ({type(err).__name__}: {err})") from err
+            raise DomainError(f"open_sweep: {shown} is corrupt ({type(err).__name__}: {err})") from err
         finally:
             dataset.close()
     return dataset
