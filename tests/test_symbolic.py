@@ -105,6 +105,20 @@ def test_import_deltakit_does_not_import_sympy():
     assert out.split() == ["False", "True"]
 
 
+def test_importing_the_symbolic_layer_derives_nothing():
+    # First use pays for the SymPy import and the one derivation asked for,
+    # never for the catalog (benchmarks/bench_symbolic.py measures the time).
+    out = _run_python(
+        """
+        import json
+        from deltakit.symbolic import _registry, titles
+        titles()  # the menu of the catalog needs no derivation either
+        print(json.dumps(_registry._derive.cache_info().currsize))
+        """
+    )
+    assert json.loads(out) == 0
+
+
 def test_symbolic_is_reachable_from_the_package():
     assert dk.symbolic.derive is symbolic.derive
 
