@@ -483,9 +483,11 @@ def sweep(
     of ``function`` and every field of a block comes from that one call. With a
     ``dask.distributed.Client`` active, ``.compute()`` runs on its workers; the
     function and the fixed values then travel by cloudpickle, which handles
-    lambdas and closures. The task graph holds one task per block (about
-    2^18 cases each by default), so past some 10^11 cases pass
-    a larger ``chunks=`` to keep the graph itself small.
+    lambdas and closures. The graph is made on demand, so building a sweep
+    costs next to nothing however large it is; blocks hold about 2^20 cases
+    by default, and more (up to 2^24) when the grid would otherwise need
+    more than 2^16 blocks, so that computing a huge sweep keeps the
+    scheduler's task list small too.
 
     Examples
     --------

@@ -223,6 +223,12 @@ print(data.size, data.npartitions, np.prod([max(c) for c in data.chunks]), built
     assert one == expected
 
 
+def test_the_docstring_states_the_block_sizes_the_code_uses():
+    doc = " ".join(dk.sweep.__doc__.split())
+    for constant in (sweep_module._BLOCK_CASES, sweep_module._LARGEST_BLOCK, sweep_module._MAX_BLOCKS):
+        assert f"2^{constant.bit_length() - 1}" in doc
+
+
 def test_block_size_grows_only_for_huge_grids():
     assert sweep_module._auto_block_cases(10**6) == sweep_module._BLOCK_CASES
     assert sweep_module._auto_block_cases(10**10) == sweep_module._BLOCK_CASES
