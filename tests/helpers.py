@@ -1,4 +1,4 @@
-"""References the tests share: the two-body equations of motion, integrated by scipy, once.
+"""What the tests share: the two-body equations of motion integrated by scipy, once, and small tools.
 
 Closed forms in deltakit are checked against an independent numerical route:
 the equations of motion of a point mass about one spherical body,
@@ -18,6 +18,7 @@ Use::
 from __future__ import annotations
 
 import math
+import subprocess
 from collections.abc import Callable, Sequence
 from typing import Any
 
@@ -29,6 +30,7 @@ __all__ = [
     "distance_event",
     "propagate",
     "specific_energy",
+    "stop",
     "two_body_rates",
 ]
 
@@ -101,3 +103,13 @@ def propagate(
     )  # fmt: skip
     assert sol.success, sol.message
     return sol
+
+
+def stop(process: subprocess.Popen, timeout: float = 20.0) -> None:
+    """End a server a test started: politely, then by force after ``timeout`` seconds."""
+    process.terminate()
+    try:
+        process.wait(timeout=timeout)
+    except subprocess.TimeoutExpired:
+        process.kill()
+        process.wait()

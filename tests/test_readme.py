@@ -22,6 +22,7 @@ from pathlib import Path
 
 import pytest
 from _jupyterlab import free_port, get
+from helpers import stop
 
 ROOT = Path(__file__).resolve().parent.parent
 README = ROOT / "README.md"
@@ -167,12 +168,7 @@ def test_the_notebook_command_starts_jupyterlab_as_printed(user, folder):
                 time.sleep(0.3)
         assert "started" in status
     finally:
-        process.terminate()
-        try:
-            process.wait(timeout=20)
-        except subprocess.TimeoutExpired:
-            process.kill()
-            process.wait()
+        stop(process)
 
 
 def _copy_of_the_setup(folder: Path, owner: int | None) -> Path:
