@@ -79,6 +79,16 @@ _NAMES: dict[str, str] = {
     "true_anomaly_from_mean": "kepler",
     "time_of_flight": "kepler",
     "propagate": "kepler",
+    # between the planets (needs the `planets` extra; maps also the `scale` extra)
+    "epoch": "timescales",
+    "planet_state": "ephemeris",
+    "lambert": "lambert_solver",
+    "LambertSolution": "lambert_solver",
+    "lambert_time_of_flight": "lambert_solver",
+    "transfer_map": "windows",
+    "transfer_pair": "windows",
+    "TransferPair": "windows",
+    "add_transfer": "windows",
     # trade-study sweeps (needs the `scale` extra)
     "sweep": "sweeps",
     "save_sweep": "sweeps",

@@ -19,6 +19,9 @@ Missions
     science orbit.
 ``CINDERWREN``
     A Jupiter flyby probe that burns deep in Jupiter's well to leave faster.
+``OCHREWING``
+    A Mars orbiter with its own kick stage: leaves a low Earth orbit, crosses
+    to Mars in a real opportunity (DE421 dates) and brakes into an ellipse.
 
 Examples
 --------
@@ -45,6 +48,8 @@ __all__ = [
     "LUNAR_ORBIT_ALTITUDE",
     "MISSIONS",
     "MOON_DISTANCE",
+    "OCHREWING",
+    "OCHREWING_CAPTURE_ALTITUDES",
     "RUSTLINE",
     "Mission",
     "Vehicle",
@@ -255,3 +260,30 @@ MISSIONS: dict[str, Mission] = {m.name: m for m in (HALYARD, RUSTLINE, CINDERWRE
 
 #: Halyard's target: a circular orbit this high above the Moon (invented), m.
 LUNAR_ORBIT_ALTITUDE: float = 100e3
+
+
+#: Ochrewing's capture orbit about Mars (invented): periapsis and apoapsis altitudes, m.
+OCHREWING_CAPTURE_ALTITUDES: tuple[float, float] = (400e3, 33_000e3)
+
+OCHREWING = Mission(
+    name="Ochrewing",
+    body=EARTH,
+    vehicle=Vehicle(
+        name="Ochrewing orbiter and kick stage",
+        dry_mass=1_650.0,
+        propellant_mass=6_100.0,
+        isp=326.0,
+        thrust=9_000.0,
+        note="a Mars orbiter whose own stage leaves Earth orbit and brakes at Mars (one shared tank)",
+    ),
+    periapsis_altitude=400e3,
+    apoapsis_altitude=400e3,
+    vinf=3_000.0,
+    story=(
+        "Ochrewing waits in a 400 km circular Earth orbit and must leave for Mars with its own "
+        "engine, then brake into a 400 km x 33,000 km orbit there, all from one 6.1 t tank. The "
+        "analyst asks which of the next Mars opportunities the tank affords, on which dates, "
+        "and what budget the chosen pair of dates leaves."
+    ),
+)
+MISSIONS[OCHREWING.name] = OCHREWING

@@ -31,6 +31,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ._checks import finite, nonnegative, positive, require, scalar_or_array
+from ._evaluate import ARRAY
 from .sweeps import sweep
 from .transfers import _tangent_burn
 
@@ -208,9 +209,10 @@ def _advantage(r2_ratio: np.ndarray, rb_ratio: np.ndarray) -> np.ndarray:
     one = 1.0
     with np.errstate(invalid="ignore"):
         rb = np.where(rb_ratio >= np.maximum(one, r2_ratio), rb_ratio, np.nan)
-    hohmann = _tangent_burn(one, one, r2_ratio, one) + _tangent_burn(r2_ratio, one, r2_ratio, one)
-    bielliptic = _tangent_burn(one, one, rb, one) + _tangent_burn(rb, one, r2_ratio, one)
-    bielliptic = bielliptic + _tangent_burn(r2_ratio, rb, r2_ratio, one)
+    m = ARRAY
+    hohmann = _tangent_burn(m, one, one, r2_ratio, one) + _tangent_burn(m, r2_ratio, one, r2_ratio, one)
+    bielliptic = _tangent_burn(m, one, one, rb, one) + _tangent_burn(m, rb, one, r2_ratio, one)
+    bielliptic = bielliptic + _tangent_burn(m, r2_ratio, rb, r2_ratio, one)
     return hohmann - bielliptic
 
 

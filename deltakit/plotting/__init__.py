@@ -27,12 +27,14 @@ from .orbits import (
     update_transfer,
 )
 from .waterfall import WaterfallArtists, plot_budget_waterfall, update_budget_waterfall
+from .windows import TransferMapArtists, map_minimum, plot_transfer_map
 
 __all__ = [
     "COLOURS",
     "BurnArtists",
     "ConicArtists",
     "TransferArtists",
+    "TransferMapArtists",
     "WaterfallArtists",
     "burn_at_angle",
     "conic_points",
@@ -40,8 +42,10 @@ __all__ = [
     "draw_conic",
     "draw_transfer",
     "energy_gain_curve",
+    "map_minimum",
     "plot_budget_waterfall",
     "plot_energy_gain",
+    "plot_transfer_map",
     "update_budget_waterfall",
     "update_burn",
     "update_conic",
