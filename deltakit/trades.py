@@ -31,7 +31,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ._checks import finite, nonnegative, positive, require, scalar_or_array
-from ._evaluate import ARRAY
+from ._evaluate import on_arrays
 from .sweeps import sweep
 from .transfers import _tangent_burn
 
@@ -44,36 +44,44 @@ _FULL_TURN = np.linspace(0.0, 2.0 * np.pi, 360, endpoint=False)
 
 
 # ---------------------------------------------------------------------- best burn point
-def _speed_terms(rp: np.ndarray, ra: np.ndarray, mu: Any) -> tuple[np.ndarray, np.ndarray]:
-    """``A, B`` with the squared speed ``v^2 = A + B cos^2(nu/2)`` on the ellipse of apsides ``rp, ra``.
+def _speed_terms(rp: np.ndarray, ra: np.ndarray, mu: Any) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``scale, slope, floor`` with the speed ``v = scale sqrt(slope cos^2(nu/2) + floor)``.
 
-    From ``v^2 = mu/p (1 + 2 e cos nu + e^2) = mu/p ((1 - e)^2 + 4 e cos^2(nu/2))``
-    with ``1 - e = 2 rp/(rp + ra)``: every term is positive, so the speed keeps
-    its digits at apoapsis of a very elongated orbit, where ``1 + 2 e cos nu + e^2``
-    would cancel. ``A`` is the apoapsis speed squared, ``A + B`` the periapsis
-    one. NaN where ``ra < rp`` (no such orbit).
+    On the ellipse of apsides ``rp, ra``: ``v^2 = mu/p (1 + 2 e cos nu + e^2) =
+    mu/p ((1 - e)^2 + 4 e cos^2(nu/2))`` with ``1 - e = 2 rp/(rp + ra)``, that is
+    ``v^2 = (2 mu/rp) ((ra - rp)/ra cos^2(nu/2) + (rp/ra) rp/(rp + ra))``. Every
+    term is positive, so the speed keeps its digits at apoapsis of a very
+    elongated orbit (where ``1 + 2 e cos nu + e^2`` would cancel), and every
+    factor lies in [0, 1] but the scale ``sqrt(2 mu)/sqrt(rp)``, so no
+    intermediate overflows or underflows where the speed itself fits a double.
+    ``floor`` is NaN where ``ra < rp`` (no such orbit).
     """
-    with np.errstate(invalid="ignore"):
-        apoapsis = np.where(ra >= rp, 2.0 * mu * rp / (ra * (rp + ra)), np.nan)
-        return apoapsis, 2.0 * mu * (ra - rp) / (rp * ra)
+    with np.errstate(all="ignore"):  # elements with ra < rp are NaN whatever they compute
+        scale = np.sqrt(2.0 * mu) / np.sqrt(rp)
+        slope = (ra - rp) / ra
+        floor = np.where(ra >= rp, (rp / ra) * (rp / (rp + ra)), np.nan)
+    return scale, slope, floor
 
 
 def _energy_change_kernel(nu: Any, dv: Any, rp: Any, ra: Any, mu: Any) -> np.ndarray:
     """The fused kernel of :func:`prograde_energy_change` on checked inputs (an open grid).
 
     Parts that depend on fewer axes are computed on those axes only; the full
-    grid sees six passes: speed squared, its root, ``v + dv/2``, the product
-    with ``dv``, the validity test and the NaN fill.
+    grid sees seven passes: the bracket of the speed (two), its root, the scale,
+    ``v + dv/2``, the product with ``dv``, and the NaN fill where the burn
+    would stop the vehicle. An energy change beyond the float range is inf.
     """
-    apoapsis, spread = _speed_terms(np.asarray(rp), np.asarray(ra), mu)
+    scale, slope, floor = _speed_terms(np.asarray(rp), np.asarray(ra), mu)
     half = np.cos(0.5 * np.asarray(nu))
-    speed = np.asarray(spread * (half * half))  # 0-d inputs: an array still, for the in-place steps
-    speed += apoapsis
+    speed = np.asarray(slope * (half * half))  # 0-d inputs: an array still, for the in-place steps
+    speed += floor
     np.sqrt(speed, out=speed)
+    speed *= scale
     dv = np.asarray(dv)
     # v dv + dv^2/2 as (v + dv/2) dv: no cancellation while v + dv > 0
-    gain = np.asarray(speed + 0.5 * dv)
-    gain *= dv
+    with np.errstate(over="ignore"):  # the product overflows only where the energy change does
+        gain = np.asarray(speed + 0.5 * dv)
+        gain *= dv
     np.copyto(gain, np.nan, where=~(speed > -dv))  # the burn would stop the vehicle (or no orbit)
     return gain
 
@@ -200,20 +208,24 @@ def best_burn_point(
 
 
 # ---------------------------------------------------------------------- bi-elliptic break-even
+def _advantage_kernel(m: Any, r2_ratio: Any, rb_ratio: Any) -> Any:
+    # r1 = 1 and mu = 1: radii in units of r1, delta-v in units of the circular speed at r1.
+    # Each burn is the transfers' own cancellation-free tangent burn.
+    one = r2_ratio * 0.0 + 1.0  # 1 in the inputs' precision (extended on the redo of extremes)
+    rb = m.where(rb_ratio >= m.maximum(one, r2_ratio), rb_ratio, np.nan)
+    hohmann = _tangent_burn(m, one, one, r2_ratio, one) + _tangent_burn(m, r2_ratio, one, r2_ratio, one)
+    bielliptic = _tangent_burn(m, one, one, rb, one) + _tangent_burn(m, rb, one, r2_ratio, one)
+    return hohmann - (bielliptic + _tangent_burn(m, r2_ratio, rb, r2_ratio, one))
+
+
 def _advantage(r2_ratio: np.ndarray, rb_ratio: np.ndarray) -> np.ndarray:
     """Hohmann total minus bi-elliptic total: the fused kernel on checked ratios.
 
-    r1 = 1 and mu = 1: radii in units of r1, delta-v in units of the circular
-    speed at r1. Each burn is the transfers' own cancellation-free tangent burn.
+    Ratios beyond 1e+-50 that over- or underflow are redone in extended
+    precision (:func:`deltakit._evaluate.on_arrays`), so extremes give the
+    right difference or NaN, never a warning.
     """
-    one = 1.0
-    with np.errstate(invalid="ignore"):
-        rb = np.where(rb_ratio >= np.maximum(one, r2_ratio), rb_ratio, np.nan)
-    m = ARRAY
-    hohmann = _tangent_burn(m, one, one, r2_ratio, one) + _tangent_burn(m, r2_ratio, one, r2_ratio, one)
-    bielliptic = _tangent_burn(m, one, one, rb, one) + _tangent_burn(m, rb, one, r2_ratio, one)
-    bielliptic = bielliptic + _tangent_burn(m, r2_ratio, rb, r2_ratio, one)
-    return hohmann - bielliptic
+    return on_arrays(_advantage_kernel, *np.broadcast_arrays(r2_ratio, rb_ratio))
 
 
 #: Differences in units of the circular speed at r1 below this are ties (round-off at rb = r2).
