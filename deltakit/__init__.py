@@ -64,8 +64,20 @@ _NAMES: dict[str, str] = {
     "burn_energy": "propulsion",
     "EnergySplit": "propulsion",
     "propulsive_efficiency": "propulsion",
-    # budgets
+    # budgets, vehicles, margins, staging and dispersions
     "Budget": "budget",
+    "BudgetLine": "budget",
+    "SystemUsage": "budget",
+    "PropulsionSystem": "vehicle",
+    "Stage": "vehicle",
+    "MarginPolicy": "margins",
+    "optimal_staging": "staging",
+    "StagingSplit": "staging",
+    "disperse": "dispersions",
+    "Normal": "dispersions",
+    "Uniform": "dispersions",
+    "Triangular": "dispersions",
+    "report": "reports",
     # finite burns and Kepler's equation
     "thrust_arc": "finite",
     "ArcOutcome": "finite",

@@ -1,4 +1,4 @@
-"""Plot helpers: orbits, burns, transfers, energy gain and budgets in matplotlib.
+"""Plot helpers: orbits, burns, transfers, energy gain, budgets and dispersions in matplotlib.
 
 Every helper takes the Axes first, keyword-only options after the data, passes
 ``**kwargs`` to one named Axes method, returns the artists it drew, and never
@@ -12,6 +12,7 @@ Results are for preliminary analysis, not for flight operations.
 from __future__ import annotations
 
 from ._style import COLOURS
+from .dispersion import LeftArtists, SensitivityArtists, plot_propellant_left, plot_sensitivity
 from .energy import energy_gain_curve, plot_energy_gain, update_energy_gain
 from .orbits import (
     BurnArtists,
@@ -33,6 +34,8 @@ __all__ = [
     "COLOURS",
     "BurnArtists",
     "ConicArtists",
+    "LeftArtists",
+    "SensitivityArtists",
     "TransferArtists",
     "TransferMapArtists",
     "WaterfallArtists",
@@ -45,6 +48,8 @@ __all__ = [
     "map_minimum",
     "plot_budget_waterfall",
     "plot_energy_gain",
+    "plot_propellant_left",
+    "plot_sensitivity",
     "plot_transfer_map",
     "update_budget_waterfall",
     "update_burn",
