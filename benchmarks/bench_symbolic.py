@@ -1,9 +1,15 @@
-"""Speed of the symbolic layer: first derive, cached derive, and its NumPy callables.
+"""Speed of the symbolic layer: the first formula, cached derive, and its NumPy callables.
 
-Run ``python benchmarks/bench_symbolic.py`` (``--quick`` for smaller sizes).
+Run ``python benchmarks/bench_symbolic.py`` (``--quick`` for fewer entries and sizes).
 
-* First ``derive`` of every catalog entry, each in a fresh interpreter (so
-  nothing is cached, SymPy already imported): target at most 1 s each (issue 3).
+* First use, as an analyst meets it: a fresh interpreter imports
+  ``deltakit.symbolic`` (NumPy and SymPy included: nothing is imported before
+  the clock starts) and derives one entry. Every catalog entry is measured
+  in its own fresh process, the README's first one (``hohmann``) several
+  times; the time is split into NumPy, SymPy, deltakit's own modules and the
+  derivation itself, and the interpreter's own start is printed apart (a
+  notebook kernel has paid it already). Target: at most 1.5 s for the import
+  and the first derive together.
 * Cached ``derive``: the second call against the first, side by side in one
   process: target at least 1000x faster.
 * ``derive("hohmann").function()`` on 1,000,000 transfers against a hand-fused
@@ -11,8 +17,9 @@ Run ``python benchmarks/bench_symbolic.py`` (``--quick`` for smaller sizes).
   ``deltakit.hohmann``: target within 3x of the fused expression (the lambdified
   form repeats square roots the hand-written one shares).
 
-Timings are medians; the machine is shared, so the ratios matter, not the times.
-The exit code is non-zero if a target fails.
+Timings are medians with their ranges; the machine is shared, so the ratios
+matter more than the times. The exit code is non-zero only if a target is
+missed (see ``_timing.Verdicts``).
 """
 
 from __future__ import annotations
@@ -25,28 +32,42 @@ import time
 from pathlib import Path
 
 import numpy as np
-from _timing import median_time
+from _timing import Verdicts, median_time, spread
 
 ROOT = Path(__file__).resolve().parent.parent
-FIRST_DERIVE_BUDGET = 1.0
+FIRST_USE_BUDGET = 1.5
 CACHE_TARGET = 1000.0
 FUSED_TARGET = 3.0
 
-_COLD = """
-import json, sys, time
-import sympy  # imported before the clock starts: the budget is for deriving
-from deltakit.symbolic import derive
+# Nothing is imported before the first clock reading: the analyst pays all of it.
+_FIRST_USE = """
+import time
 start = time.perf_counter()
+import json, sys
+import numpy
+numpy_done = time.perf_counter()
+import sympy
+sympy_done = time.perf_counter()
+from deltakit.symbolic import derive
+imported = time.perf_counter()
 derive(sys.argv[1])
-print(json.dumps(time.perf_counter() - start))
+derived = time.perf_counter()
+print(json.dumps({"numpy": numpy_done - start, "sympy": sympy_done - numpy_done,
+                  "deltakit": imported - sympy_done, "derive": derived - imported,
+                  "total": derived - start}))
 """
 
 
-def first_derive_seconds(name: str) -> float:
+def first_use(name: str) -> dict[str, float]:
+    """Seconds of each part of the first derive in a fresh interpreter, and the whole process."""
+    start = time.perf_counter()
     done = subprocess.run(
-        [sys.executable, "-c", _COLD, name], cwd=ROOT, capture_output=True, text=True, check=True, timeout=120
-    )
-    return float(json.loads(done.stdout))
+        [sys.executable, "-c", _FIRST_USE, name],
+        cwd=ROOT, capture_output=True, text=True, check=True, timeout=120,
+    )  # fmt: skip
+    parts = json.loads(done.stdout)
+    parts["process"] = time.perf_counter() - start
+    return parts
 
 
 def fused_hohmann(r1: np.ndarray, r2: np.ndarray, mu: float) -> np.ndarray:
@@ -65,14 +86,27 @@ def main(argv: list[str]) -> int:
     from deltakit.constants import EARTH
     from deltakit.symbolic import _registry, catalog, derive
 
-    ok = True
+    verdicts = Verdicts()
     names = catalog()[:4] if quick else catalog()
-    print(f"first derive, fresh interpreter each (target <= {FIRST_DERIVE_BUDGET:.1f} s):")
-    for name in names:
-        seconds = first_derive_seconds(name)
-        fine = seconds <= FIRST_DERIVE_BUDGET
-        ok &= fine
-        print(f"  {name:24s} {seconds:6.3f} s  {'OK' if fine else 'FAIL'}")
+    print("first use, fresh interpreter each: import numpy + sympy + deltakit.symbolic, then derive")
+    columns = ("numpy", "sympy", "deltakit", "derive", "total", "process")
+    print(f"  {'entry':24s} " + " ".join(f"{c:>{max(6, len(c))}s}" for c in columns))
+    runs = {name: [first_use(name)] for name in names}
+    for _ in range(2 if quick else 4):
+        runs["hohmann"].append(first_use("hohmann"))
+    for name, measured in runs.items():
+        for parts in measured:
+            print(
+                f"  {name:24s} {parts['numpy']:6.3f} {parts['sympy']:6.3f} {parts['deltakit']:8.3f} "
+                f"{parts['derive']:6.3f} {parts['total']:6.3f} {parts['process']:8.3f}  s"
+            )
+    totals = [parts["total"] for parts in runs["hohmann"]]
+    slowest = max(runs, key=lambda n: statistics.median(p["total"] for p in runs[n]))
+    print(f"  hohmann first use: {spread(totals, ' s')}; slowest entry: {slowest}")
+    verdicts.at_most("first formula (hohmann): import with SymPy + first derive", statistics.median(totals),
+                     FIRST_USE_BUDGET, unit=" s")  # fmt: skip
+    worst = statistics.median(p["total"] for p in runs[slowest])
+    verdicts.at_most(f"slowest first derive ({slowest}), import included", worst, FIRST_USE_BUDGET, unit=" s")
 
     _registry._derive.cache_clear()
     start = time.perf_counter()
@@ -80,12 +114,8 @@ def main(argv: list[str]) -> int:
     t_first = time.perf_counter() - start
     t_second = median_time(derive, "bielliptic", repeats=1001)
     assert derive("bielliptic") is first
-    ratio = t_first / t_second
-    ok &= ratio >= CACHE_TARGET
-    print(
-        f"cached derive: first {t_first * 1e3:.1f} ms, then {t_second * 1e6:.2f} us; "
-        f"ratio {ratio:,.0f}x, target >= {CACHE_TARGET:,.0f}x  {'OK' if ratio >= CACHE_TARGET else 'FAIL'}"
-    )
+    print(f"cached derive: first {t_first * 1e3:.1f} ms, then {t_second * 1e6:.2f} us")
+    verdicts.at_least("cached derive speed-up (first / second call)", t_first / t_second, CACHE_TARGET)
 
     n = 100_000 if quick else 1_000_000
     rng = np.random.default_rng(3)  # invented spread of Earth transfers (demo data)
@@ -98,18 +128,15 @@ def main(argv: list[str]) -> int:
         t_f.append(median_time(f, r1, r2, EARTH.mu, repeats=1))
         t_fused.append(median_time(fused_hohmann, r1, r2, EARTH.mu, repeats=1))
         t_twin.append(median_time(hohmann, r1, r2, EARTH.mu, repeats=1))
+    ratios = [a / b for a, b in zip(t_f, t_fused)]
     t_f, t_fused, t_twin = map(statistics.median, (t_f, t_fused, t_twin))
-    vs_fused = t_f / t_fused
-    ok &= vs_fused <= FUSED_TARGET
     print(f"hohmann total on {n:,} transfers:")
     print(f"  derive('hohmann').function()  {t_f * 1e3:8.1f} ms")
     print(f"  hand-fused NumPy              {t_fused * 1e3:8.1f} ms")
     print(f"  deltakit.hohmann (twin)       {t_twin * 1e3:8.1f} ms")
-    print(
-        f"  function / fused = {vs_fused:.2f}x   target <= {FUSED_TARGET}x   "
-        f"{'OK' if vs_fused <= FUSED_TARGET else 'FAIL'}"
-    )
-    return 0 if ok else 1
+    print(f"  function / fused: {spread(ratios)}")
+    verdicts.at_most("derive('hohmann').function() / hand-fused NumPy", t_f / t_fused, FUSED_TARGET)
+    return verdicts.finish()
 
 
 if __name__ == "__main__":

@@ -1,7 +1,9 @@
 #!/usr/bin/env bash
-# Run every benchmark in this folder and report which targets failed.
-# Each script prints its measurements side by side and exits non-zero when a
-# target ratio is missed. Pass --quick to use each script's smaller sizes.
+# Run every benchmark in this folder and report which targets were missed.
+# Each script prints its measurements side by side, one VERDICT line per
+# target (met, MISSED, or beyond a measured floor: reported, not failed; see
+# benchmarks/_timing.py), and exits non-zero only when a target it can meet
+# is missed. Pass --quick to use each script's smaller sizes.
 set -u
 cd "$(dirname "$0")/.."
 python=${PYTHON:-.venv/bin/python}
@@ -17,4 +19,4 @@ if [ ${#failed[@]} -gt 0 ]; then
     echo "targets missed in: ${failed[*]}"
     exit 1
 fi
-echo "all benchmark targets met"
+echo "no reachable target missed"

@@ -35,10 +35,8 @@ import inspect
 import itertools
 import math
 import os
-import shutil
-import tempfile
 import uuid
-from collections.abc import Callable, Mapping
+from collections.abc import Callable, Iterator, Mapping
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -49,7 +47,7 @@ from .errors import DomainError
 if TYPE_CHECKING:  # the `scale` extra; imported at run time only inside the functions
     import xarray
 
-__all__ = ["EAGER_LIMIT", "KNOWN_UNITS", "open_sweep", "save_sweep", "sweep"]
+__all__ = ["EAGER_LIMIT", "KNOWN_UNITS", "OPTIONS", "open_sweep", "save_sweep", "sweep"]
 
 #: Grids with at most this many cases are evaluated eagerly when ``chunks`` is None.
 EAGER_LIMIT: int = 1 << 22
@@ -61,6 +59,16 @@ EAGER_LIMIT: int = 1 << 22
 #: about 1.3 and nearly doubles the cases per second, and 2^22 gains little
 #: more while a wide result (seven fields of a burn) would need over 1 GB.
 _BLOCK_CASES: int = 1 << 20
+
+#: Grids so large that blocks of :data:`_BLOCK_CASES` would make more than this
+#: many tasks get larger blocks (fewer tasks for the scheduler to hold) ...
+_MAX_BLOCKS: int = 1 << 16
+#: ... up to this many cases per block (128 MB per float64 variable).
+_LARGEST_BLOCK: int = 1 << 24
+
+#: Keywords of :func:`sweep` itself. A parameter of the swept function with one
+#: of these names is given in the ``axes`` mapping or in ``fixed``.
+OPTIONS: tuple[str, ...] = ("chunks", "fixed", "units", "name")
 
 #: Units of the parameter and plain-result names of the numeric layer (DESIGN.md vocabulary).
 KNOWN_UNITS: dict[str, str] = {
@@ -201,6 +209,22 @@ def _check_parameters(function: Callable[..., Any], names: list[str]) -> None:
             )
 
 
+def _check_options(function: Callable[..., Any], options: dict[str, Any], given_names: set[str]) -> None:
+    """Refuse an option keyword that ``function`` would also take as its own parameter."""
+    try:
+        parameters = inspect.signature(function).parameters
+    except (TypeError, ValueError):
+        return
+    for option, value in options.items():
+        if value is None or option not in parameters or option in given_names:
+            continue
+        raise TypeError(
+            f"sweep: `{option}=` is sweep's own option, and {_function_name(function)} also has a "
+            f"parameter `{option}`; give that parameter in the axes mapping, "
+            f"sweep(f, {{{option!r}: ...}}), or in fixed={{{option!r}: ...}}"
+        )
+
+
 def _axis(value: Any, name: str) -> np.ndarray:
     array = np.asarray(value)
     if array.ndim != 1:
@@ -226,6 +250,11 @@ def _open_grid(
     return grid
 
 
+def _auto_block_cases(cases: int) -> int:
+    """Cases per block of the automatic layout: :data:`_BLOCK_CASES`, larger for huge grids."""
+    return int(min(max(_BLOCK_CASES, -(-cases // _MAX_BLOCKS)), _LARGEST_BLOCK))
+
+
 def _block_layout(axes: dict[str, np.ndarray], chunks: Any) -> dict[str, int]:
     """Chunk length per axis from ``chunks``: dict, int (cases per block) or "auto"."""
     sizes = {name: axis.size for name, axis in axes.items()}
@@ -242,7 +271,7 @@ def _block_layout(axes: dict[str, np.ndarray], chunks: Any) -> dict[str, int]:
             layout[name] = min(length, size)
         return layout
     if chunks is None or chunks == "auto":
-        target = _BLOCK_CASES
+        target = _auto_block_cases(math.prod(sizes.values()))
     elif isinstance(chunks, (int, np.integer)) and not isinstance(chunks, bool) and chunks >= 1:
         target = int(chunks)
     else:
@@ -285,6 +314,45 @@ def _evaluate_and_pick(
     return _pick(evaluate(*blocks), key)
 
 
+class _BlockTasks(Mapping):
+    """The tasks of one graph layer, one per block, made when asked for.
+
+    A sweep of 10^13 cases has some 10^6 blocks; holding a task for each
+    would take gigabytes before anything is computed. This mapping makes the
+    task of a block from its key on demand, so the graph costs a few numbers
+    per axis, and dask's culling asks only for the blocks a computation needs.
+    ``make(index, bounds)`` returns the task of the block at ``index``.
+    """
+
+    def __init__(self, name: str, bounds: list[list[tuple[int, int]]], make: Callable[..., Any]) -> None:
+        self.name, self.bounds, self.make = name, bounds, make
+        self.shape = tuple(len(axis) for axis in bounds)
+
+    def _index(self, key: Any) -> tuple[int, ...] | None:
+        if not (isinstance(key, tuple) and len(key) == len(self.shape) + 1 and key[0] == self.name):
+            return None
+        index = key[1:]
+        if all(isinstance(i, int) and 0 <= i < n for i, n in zip(index, self.shape)):
+            return index
+        return None
+
+    def __getitem__(self, key: Any) -> Any:
+        index = self._index(key)
+        if index is None:
+            raise KeyError(key)
+        return self.make(index, [self.bounds[d][i] for d, i in enumerate(index)])
+
+    def __contains__(self, key: object) -> bool:
+        return self._index(key) is not None
+
+    def __iter__(self) -> Iterator[tuple[Any, ...]]:
+        for index in itertools.product(*(range(n) for n in self.shape)):
+            yield (self.name, *index)
+
+    def __len__(self) -> int:
+        return math.prod(self.shape)
+
+
 def _lazy_fields(
     da: Any,
     evaluate: Callable[..., dict[str, np.ndarray]],
@@ -297,10 +365,13 @@ def _lazy_fields(
     Each block task holds its own slices of the axes (a few numbers), so the
     blocks are independent roots: no shared input tasks, nothing for the
     scheduler to fuse or order inside a task. With several fields, one task per
-    block calls the function and one small task per field picks its array.
+    block calls the function and one small task per field picks its array, so
+    a block is evaluated once however many fields are computed together. The
+    tasks are made on demand (:class:`_BlockTasks`): building a sweep costs the
+    same for 10^3 cases as for 10^13.
     """
     from dask.base import tokenize
-    from dask.highlevelgraph import HighLevelGraph
+    from dask.highlevelgraph import HighLevelGraph, MaterializedLayer
 
     names = list(swept)
     bounds = []
@@ -313,36 +384,51 @@ def _lazy_fields(
     except Exception:  # noqa: BLE001 - an object dask cannot hash: a fresh name is as good
         token = uuid.uuid4().hex
     raw_name = f"deltakit-sweep-{token}"
-    tasks = {}
-    for index in itertools.product(*(range(len(axis)) for axis in bounds)):
-        slices = [swept[key][slice(*bounds[d][i])] for d, (key, i) in enumerate(zip(names, index))]
-        tasks[(raw_name, *index)] = (evaluate, *slices)
+    axes = [swept[key] for key in names]
+
+    def slices(block_bounds: list[tuple[int, int]]) -> list[np.ndarray]:
+        return [axis[start:stop] for axis, (start, stop) in zip(axes, block_bounds)]
+
+    def meta(dtype: np.dtype) -> np.ndarray:
+        return np.empty((0,) * len(names), dtype=dtype)
+
     if len(fields) == 1:  # one field: the block task returns its array, nothing to pick
         ((key, (dtype, _)),) = fields.items()
-        single = {
-            k: (functools.partial(_evaluate_and_pick, evaluate, key), *task[1:]) for k, task in tasks.items()
-        }
-        graph = HighLevelGraph({raw_name: single}, {raw_name: set()})
-        return {key: da.Array(graph, raw_name, chunks, meta=np.empty((0,) * len(names), dtype=dtype))}
+        pick = functools.partial(_evaluate_and_pick, evaluate, key)
+        single = _BlockTasks(raw_name, bounds, lambda index, b: (pick, *slices(b)))
+        graph = HighLevelGraph({raw_name: MaterializedLayer(single)}, {raw_name: set()})
+        return {key: da.Array(graph, raw_name, chunks, meta=meta(dtype))}
+    tasks = MaterializedLayer(_BlockTasks(raw_name, bounds, lambda index, b: (evaluate, *slices(b))))
     data = {}
     for key, (dtype, _) in fields.items():
         name = f"{raw_name}-{key}"
-        picks = {(name, *k[1:]): (functools.partial(_pick, key=key), k) for k in tasks}
-        graph = HighLevelGraph({raw_name: tasks, name: picks}, {raw_name: set(), name: {raw_name}})
-        data[key] = da.Array(graph, name, chunks, meta=np.empty((0,) * len(names), dtype=dtype))
+        pick = functools.partial(_pick, key=key)
+        picks = _BlockTasks(name, bounds, lambda index, b, pick=pick: (pick, (raw_name, *index)))
+        graph = HighLevelGraph(
+            {raw_name: tasks, name: MaterializedLayer(picks)}, {raw_name: set(), name: {raw_name}}
+        )
+        data[key] = da.Array(graph, name, chunks, meta=meta(dtype))
     return data
 
 
 def sweep(
     function: Callable[..., Any],
+    axes: Mapping[str, Any] | None = None,
+    /,
     *,
     chunks: Any = None,
     fixed: Mapping[str, Any] | None = None,
     units: Mapping[str, str] | None = None,
     name: str | None = None,
-    **axes: Any,
+    **more_axes: Any,
 ) -> xarray.Dataset:
     """Evaluate ``function`` over the outer product of named 1-D axes.
+
+    The axes are given as keywords (``sweep(f, nu=..., dv=...)``) or as a
+    mapping (``sweep(f, {"nu": ..., "dv": ...})``), or both. Keywords named
+    like an option of ``sweep`` itself (``chunks``, ``fixed``, ``units``,
+    ``name``) are always the option: a parameter of ``function`` with such
+    a name goes in the mapping (an axis) or in ``fixed``.
 
     Parameters
     ----------
@@ -369,9 +455,12 @@ def sweep(
     name : str, optional
         Variable name for a plain-array result (default: the function's name,
         ``"value"`` for a lambda).
-    **axes : array_like, shape (n,)
+    axes : mapping of str to array_like, optional (positional only)
+        Axes by parameter name, any name allowed (``"units"`` too); they come
+        first in the output dimensions, then the keyword axes.
+    **more_axes : array_like, shape (n,)
         One 1-D axis per swept parameter, in the order of the output dimensions.
-        A scalar (0-d) value is a fixed parameter instead.
+        A scalar (0-d) value is a fixed parameter instead, in the mapping too.
 
     Returns
     -------
@@ -394,9 +483,11 @@ def sweep(
     of ``function`` and every field of a block comes from that one call. With a
     ``dask.distributed.Client`` active, ``.compute()`` runs on its workers; the
     function and the fixed values then travel by cloudpickle, which handles
-    lambdas and closures. The task graph holds one task per block (about
-    2^18 cases each by default), so past some 10^11 cases pass
-    a larger ``chunks=`` to keep the graph itself small.
+    lambdas and closures. The graph is made on demand, so building a sweep
+    costs next to nothing however large it is; blocks hold about 2^20 cases
+    by default, and more (up to 2^24) when the grid would otherwise need
+    more than 2^16 blocks, so that computing a huge sweep keeps the
+    scheduler's task list small too.
 
     Examples
     --------
@@ -416,8 +507,13 @@ def sweep(
         fixed = {**function.keywords, **fixed}
         function = function.func
     units = dict(units or {})
+    given = dict(axes or {})
+    for key in more_axes:
+        if key in given:
+            raise TypeError(f"sweep: axis `{key}` given both in the mapping and as a keyword")
+    given.update(more_axes)
     swept: dict[str, np.ndarray] = {}
-    for key, value in axes.items():
+    for key, value in given.items():
         if np.ndim(value) == 0:
             if key in fixed:
                 raise TypeError(f"sweep: `{key}` given both as a keyword and in `fixed`")
@@ -430,6 +526,11 @@ def sweep(
     if overlap:
         raise TypeError(f"sweep: {sorted(overlap)} given both as an axis and in `fixed`")
     _check_parameters(function, [*swept, *fixed])
+    _check_options(
+        function,
+        {"chunks": chunks, "fixed": fixed or None, "units": units or None, "name": name},
+        given_names={*swept, *fixed},
+    )
     result_name = name or _function_name(function)
 
     # Probe the first case: field names, units and dtypes, and an early error.
@@ -498,18 +599,21 @@ def _missing_chunks(path: Path) -> list[str]:
 def save_sweep(dataset: xarray.Dataset, path: str | os.PathLike[str]) -> Path:
     """Write a sweep to a Zarr store (a folder), atomically; lazy sweeps stream block by block.
 
-    The store is first written to a temporary folder beside ``path`` and then
-    renamed into place, so an interrupted save never leaves a half-written
-    sweep. An existing sweep at ``path`` is moved aside first and deleted only
-    once the new one is in place; anything at ``path`` that is not a deltakit
-    sweep is refused and left untouched.
+    The path becomes a symbolic link to a versioned folder beside it
+    (``.NAME.STAMP.v``). The new store is written and read back in full
+    before the link is swapped to it in one step, and the old version is
+    removed only after that: at every instant, a complete sweep (old or new)
+    opens at ``path``, even if the save is killed. Two saves of one path at
+    once run one after the other (a lock file ``.NAME.save.lock``); anything
+    at ``path`` that is not a deltakit sweep is refused and left untouched.
 
     Parameters
     ----------
     dataset : xarray.Dataset
         A result of :func:`sweep` (or a reduction of one that kept its attrs).
     path : str or path-like
-        Target folder, conventionally ``*.zarr``.
+        Target, conventionally ``*.zarr``. A symbolic link of your own is
+        followed and kept.
 
     Returns
     -------
@@ -533,32 +637,26 @@ def save_sweep(dataset: xarray.Dataset, path: str | os.PathLike[str]) -> Path:
     >>> back.identical(ds)
     True
     """
+    from ._folders import write_folder
+
     xr, _ = _import_scale()
     if not isinstance(dataset, xr.Dataset) or _TAG not in dataset.attrs:
         raise DomainError(
             "save_sweep: `dataset` must be a deltakit sweep (an xarray.Dataset made by deltakit.sweep)"
         )
-    path = Path(path)
-    if (path.exists() or path.is_symlink()) and _read_tag(path, xr) is None:
-        raise DomainError(f"save_sweep: refusing to overwrite {path}: it is not a deltakit sweep")
-    path.parent.mkdir(parents=True, exist_ok=True)
-    temporary = Path(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent))
-    try:
+
+    def fill(folder: Path) -> None:
         # every chunk written, even all-NaN ones, so a missing chunk reveals damage
-        dataset.to_zarr(temporary, mode="w", consolidated=False, write_empty_chunks=True)
-        if _read_tag(temporary, xr) != dataset.attrs[_TAG]:  # read back before it replaces anything
-            raise OSError(f"save_sweep: the store written to {temporary} does not read back")
-        if path.exists():
-            aside = Path(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".old", dir=path.parent))
-            os.replace(path, aside / "sweep")  # the old sweep survives until the new one is in place
-            os.replace(temporary, path)
-            shutil.rmtree(aside, ignore_errors=True)
-        else:
-            os.replace(temporary, path)
-    except BaseException:
-        shutil.rmtree(temporary, ignore_errors=True)
-        raise
-    return path
+        dataset.to_zarr(folder, mode="w", consolidated=False, write_empty_chunks=True)
+        if _read_tag(folder, xr) != dataset.attrs[_TAG]:  # read back before it replaces anything
+            raise OSError(f"save_sweep: the store written to {folder} does not read back")
+
+    try:
+        return write_folder(
+            path, fill, kind="deltakit sweep", same_kind=lambda p: _read_tag(p, xr) is not None
+        )
+    except FileExistsError:
+        raise DomainError(f"save_sweep: refusing to overwrite {path}: it is not a deltakit sweep") from None
 
 
 def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Dataset:
@@ -570,7 +668,8 @@ def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Da
         A Zarr store written by :func:`save_sweep`.
     chunks : dict or "auto", optional
         ``None`` (default) loads everything into memory; otherwise the
-        variables stay lazy dask arrays read block by block.
+        variables stay lazy dask arrays read block by block, from the
+        version that was at ``path`` when it was opened.
 
     Raises
     ------
@@ -578,45 +677,50 @@ def open_sweep(path: str | os.PathLike[str], *, chunks: Any = None) -> xarray.Da
         If there is nothing at ``path``.
     deltakit.DomainError
         If the store is unreadable, corrupt, not a deltakit sweep, or of a
-        newer format than this deltakit reads. The store is never modified.
+        newer format than this deltakit reads. The store is never modified;
+        what a killed save left beside it is removed, and if it left no
+        sweep at ``path``, the newest complete version is put back there
+        (with a warning).
 
     Examples
     --------
     See :func:`save_sweep`.
     """
+    from ._folders import open_folder
+
     xr, _ = _import_scale()
-    path = Path(path)
-    if not path.exists():
-        raise FileNotFoundError(f"open_sweep: no such sweep: {path}")
+    shown = path
+    # the version current now: a lazy sweep keeps reading it, never a mix with a later save
+    path = os.path.realpath(open_folder(path, kind="deltakit sweep"))
     try:
         dataset = xr.open_zarr(path, consolidated=False, chunks=chunks)
     except Exception as err:
         raise DomainError(
-            f"open_sweep: {path} is not a readable Zarr store ({type(err).__name__}: {err})"
+            f"open_sweep: {shown} is not a readable Zarr store ({type(err).__name__}: {err})"
         ) from err
     version = dataset.attrs.get(_TAG)
     if version is None:
         dataset.close()
-        raise DomainError(f"open_sweep: {path} is not a deltakit sweep (no `{_TAG}` attribute)")
+        raise DomainError(f"open_sweep: {shown} is not a deltakit sweep (no `{_TAG}` attribute)")
     if not isinstance(version, (int, np.integer)) or not 1 <= version <= _FORMAT_VERSION:
         dataset.close()
         raise DomainError(
-            f"open_sweep: {path} has sweep format version {version!r}; this "
+            f"open_sweep: {shown} has sweep format version {version!r}; this "
             f"deltakit reads 1 to {_FORMAT_VERSION}"
         )
     try:
         missing = _missing_chunks(path)
     except Exception as err:
         dataset.close()
-        raise DomainError(f"open_sweep: {path} is corrupt ({type(err).__name__}: {err})") from err
+        raise DomainError(f"open_sweep: {shown} is corrupt ({type(err).__name__}: {err})") from err
     if missing:
         dataset.close()
-        raise DomainError(f"open_sweep: {path} is corrupt: chunks missing in {', '.join(missing)}")
+        raise DomainError(f"open_sweep: {shown} is corrupt: chunks missing in {', '.join(missing)}")
     if chunks is None:
         try:
             dataset = dataset.load()
         except Exception as err:
-            raise DomainError(f"open_sweep: {path} is corrupt ({type(err).__name__}: {err})") from err
+            raise DomainError(f"open_sweep: {shown} is corrupt ({type(err).__name__}: {err})") from err
         finally:
             dataset.close()
     return dataset

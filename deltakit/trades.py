@@ -14,6 +14,12 @@ SI units throughout; delta-v is along the velocity (``dv < 0`` retrograde) as
 in :func:`deltakit.burn_prograde`. Large grids stay lazy (dask) until
 ``.compute()``; pass ``chunks=`` to choose the block layout.
 
+Each trade checks its inputs once, at the start, with the numeric layer's
+rules and messages, and then sweeps a fused kernel: plain NumPy arithmetic
+over the block, with no further checks, no result objects and no passes
+that the answer does not need (``benchmarks/bench_sweep.py`` holds it
+against a plain NumPy expression of the same maths).
+
 Results are for preliminary analysis, not for flight operations.
 """
 
@@ -24,12 +30,10 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import positive, require, scalar_or_array
-from .burns import energy_gain
-from .conic import Conic
-from .propulsion import propellant_mass
+from ._checks import finite, nonnegative, positive, require, scalar_or_array
+from ._evaluate import on_arrays
 from .sweeps import sweep
-from .transfers import bielliptic, hohmann
+from .transfers import _tangent_burn
 
 if TYPE_CHECKING:  # the `scale` extra; the sweep imports it at run time
     import xarray
@@ -40,6 +44,48 @@ _FULL_TURN = np.linspace(0.0, 2.0 * np.pi, 360, endpoint=False)
 
 
 # ---------------------------------------------------------------------- best burn point
+def _speed_terms(rp: np.ndarray, ra: np.ndarray, mu: Any) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``scale, slope, floor`` with the speed ``v = scale sqrt(slope cos^2(nu/2) + floor)``.
+
+    On the ellipse of apsides ``rp, ra``: ``v^2 = mu/p (1 + 2 e cos nu + e^2) =
+    mu/p ((1 - e)^2 + 4 e cos^2(nu/2))`` with ``1 - e = 2 rp/(rp + ra)``, that is
+    ``v^2 = (2 mu/rp) ((ra - rp)/ra cos^2(nu/2) + (rp/ra) rp/(rp + ra))``. Every
+    term is positive, so the speed keeps its digits at apoapsis of a very
+    elongated orbit (where ``1 + 2 e cos nu + e^2`` would cancel), and every
+    factor lies in [0, 1] but the scale ``sqrt(2 mu)/sqrt(rp)``, so no
+    intermediate overflows or underflows where the speed itself fits a double.
+    ``floor`` is NaN where ``ra < rp`` (no such orbit).
+    """
+    with np.errstate(all="ignore"):  # elements with ra < rp are NaN whatever they compute
+        scale = np.sqrt(2.0 * mu) / np.sqrt(rp)
+        slope = (ra - rp) / ra
+        floor = np.where(ra >= rp, (rp / ra) * (rp / (rp + ra)), np.nan)
+    return scale, slope, floor
+
+
+def _energy_change_kernel(nu: Any, dv: Any, rp: Any, ra: Any, mu: Any) -> np.ndarray:
+    """The fused kernel of :func:`prograde_energy_change` on checked inputs (an open grid).
+
+    Parts that depend on fewer axes are computed on those axes only; the full
+    grid sees seven passes: the bracket of the speed (two), its root, the scale,
+    ``v + dv/2``, the product with ``dv``, and the NaN fill where the burn
+    would stop the vehicle. An energy change beyond the float range is inf.
+    """
+    scale, slope, floor = _speed_terms(np.asarray(rp), np.asarray(ra), mu)
+    half = np.cos(0.5 * np.asarray(nu))
+    speed = np.asarray(slope * (half * half))  # 0-d inputs: an array still, for the in-place steps
+    speed += floor
+    np.sqrt(speed, out=speed)
+    speed *= scale
+    dv = np.asarray(dv)
+    # v dv + dv^2/2 as (v + dv/2) dv: no cancellation while v + dv > 0
+    with np.errstate(over="ignore"):  # the product overflows only where the energy change does
+        gain = np.asarray(speed + 0.5 * dv)
+        gain *= dv
+    np.copyto(gain, np.nan, where=~(speed > -dv))  # the burn would stop the vehicle (or no orbit)
+    return gain
+
+
 def prograde_energy_change(nu: ArrayLike, dv: ArrayLike, rp: ArrayLike, ra: ArrayLike, mu: ArrayLike) -> Any:
     """Specific energy change of a prograde burn on the ellipse with apsides ``rp``, ``ra``.
 
@@ -73,15 +119,13 @@ def prograde_energy_change(nu: ArrayLike, dv: ArrayLike, rp: ArrayLike, ra: Arra
     >>> float(prograde_energy_change(0.0, 100.0, 9000e3, 7000e3, 3.986004418e14))
     nan
     """
+    nu = finite(nu, "nu", "rad")
+    dv = finite(dv, "dv", "m/s")
     rp = positive(rp, "rp", "m")
     ra = positive(ra, "ra", "m")
-    orbit_exists = ra >= rp
-    with np.errstate(invalid="ignore"):
-        e = np.where(orbit_exists, (ra - rp) / (ra + rp), np.nan)
-    speed = Conic._trusted(rp, e, positive(mu, "mu", "m^3/s^2")).speed(nu)
-    valid = np.isfinite(speed)
-    gain = energy_gain(np.where(valid, speed, 0.0), dv)
-    return scalar_or_array(np.where(valid & (speed + dv > 0.0), gain, np.nan))
+    mu = positive(mu, "mu", "m^3/s^2")
+    shape = np.broadcast_shapes(nu.shape, dv.shape, rp.shape, ra.shape, mu.shape)
+    return scalar_or_array(np.broadcast_to(_energy_change_kernel(nu, dv, rp, ra, mu), shape))
 
 
 def best_burn_point(
@@ -129,16 +173,19 @@ def best_burn_point(
     >>> best["nu_best"].attrs["units"]
     'rad'
     """
-    nu = _FULL_TURN if nu is None else nu
+    nu = _FULL_TURN if nu is None else finite(nu, "nu", "rad")
+    # Checked once here; each block then runs the fused kernel alone.
+    dv, rp, ra = finite(dv, "dv", "m/s"), positive(rp, "rp", "m"), positive(ra, "ra", "m")
+    mu = positive(mu, "mu", "m^3/s^2")
     # nu last: the automatic block layout keeps trailing axes whole, so each
     # block holds whole nu rows and the reductions over nu stay inside blocks.
     grid = sweep(
-        prograde_energy_change,
+        _energy_change_kernel,
         dv=dv,
         rp=rp,
         ra=ra,
         nu=nu,
-        mu=mu,
+        mu=float(mu) if mu.ndim == 0 else mu,
         chunks=chunks,
         name="energy_change",
         units={"energy_change": "J/kg"},
@@ -161,9 +208,24 @@ def best_burn_point(
 
 
 # ---------------------------------------------------------------------- bi-elliptic break-even
-def _advantage(r2_ratio: ArrayLike, rb_ratio: ArrayLike) -> Any:
+def _advantage_kernel(m: Any, r2_ratio: Any, rb_ratio: Any) -> Any:
     # r1 = 1 and mu = 1: radii in units of r1, delta-v in units of the circular speed at r1.
-    return hohmann(1.0, r2_ratio, 1.0).total - bielliptic(1.0, r2_ratio, rb_ratio, 1.0).total
+    # Each burn is the transfers' own cancellation-free tangent burn.
+    one = r2_ratio * 0.0 + 1.0  # 1 in the inputs' precision (extended on the redo of extremes)
+    rb = m.where(rb_ratio >= m.maximum(one, r2_ratio), rb_ratio, np.nan)
+    hohmann = _tangent_burn(m, one, one, r2_ratio, one) + _tangent_burn(m, r2_ratio, one, r2_ratio, one)
+    bielliptic = _tangent_burn(m, one, one, rb, one) + _tangent_burn(m, rb, one, r2_ratio, one)
+    return hohmann - (bielliptic + _tangent_burn(m, r2_ratio, rb, r2_ratio, one))
+
+
+def _advantage(r2_ratio: np.ndarray, rb_ratio: np.ndarray) -> np.ndarray:
+    """Hohmann total minus bi-elliptic total: the fused kernel on checked ratios.
+
+    Ratios beyond 1e+-50 that over- or underflow are redone in extended
+    precision (:func:`deltakit._evaluate.on_arrays`), so extremes give the
+    right difference or NaN, never a warning.
+    """
+    return on_arrays(_advantage_kernel, *np.broadcast_arrays(r2_ratio, rb_ratio))
 
 
 #: Differences in units of the circular speed at r1 below this are ties (round-off at rb = r2).
@@ -290,9 +352,11 @@ def _holds_onward(flag: Any) -> Any:
 
 
 # ---------------------------------------------------------------------- propellant over vehicles
-def _propellant_books(dv: ArrayLike, m0: ArrayLike, ve: ArrayLike) -> dict[str, Any]:
-    propellant = propellant_mass(dv, ve, m0=m0)
-    return {"propellant": propellant, "final_mass": m0 - propellant, "propellant_fraction": propellant / m0}
+def _propellant_books(dv: np.ndarray, m0: np.ndarray, ve: np.ndarray) -> dict[str, Any]:
+    """The fused kernel of :func:`propellant_grid` on checked inputs (rocket equation)."""
+    ratio = dv / ve
+    fraction = -np.expm1(-ratio)  # 1 - exp(-dv/ve), its digits kept for small delta-v
+    return {"propellant": m0 * fraction, "final_mass": m0 * np.exp(-ratio), "propellant_fraction": fraction}
 
 
 def propellant_grid(dv: ArrayLike, m0: ArrayLike, ve: ArrayLike, *, chunks: Any = None) -> xarray.Dataset:
@@ -320,6 +384,9 @@ def propellant_grid(dv: ArrayLike, m0: ArrayLike, ve: ArrayLike, *, chunks: Any 
     >>> grid["propellant"].round(1).values.tolist()
     [[314.8, 299.4], [393.5, 374.2]]
     """
+    dv = nonnegative(dv, "dv", "m/s")
+    m0 = positive(m0, "m0", "kg")
+    ve = positive(ve, "ve", "m/s")
     grid = sweep(
         _propellant_books,
         dv=dv,

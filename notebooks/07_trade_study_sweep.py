@@ -191,15 +191,17 @@ plt.show()
 # %% [markdown]
 # ## Save and reopen
 #
-# `save_sweep` writes a Zarr store atomically (a temporary folder renamed into place) and refuses to
-# overwrite anything that is not a deltakit sweep; `open_sweep` refuses corrupt or foreign stores.
-# Values, coordinates and unit attributes come back unchanged.
+# `save_sweep` writes a Zarr store atomically: the path is a link, swapped in one step to a complete
+# versioned folder beside it, so a save killed at any moment leaves a whole sweep (old or new) there.
+# It refuses to overwrite anything that is not a deltakit sweep; `open_sweep` refuses corrupt or
+# foreign stores. Values, coordinates and unit attributes come back unchanged.
 
 # %%
 folder = Path(tempfile.mkdtemp())
 path = save_sweep(best, folder / "rustline_best_burn_point.zarr")
 back = open_sweep(path)
-print(path.name, "round trip identical:", back.identical(best))
+print(path.name, "->", path.readlink().name, "| round trip identical:", back.identical(best))
+assert back.identical(best)
 print(back["burn_point_benefit"].attrs)
 
 # %% [markdown]

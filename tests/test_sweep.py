@@ -10,7 +10,11 @@ from __future__ import annotations
 
 import functools
 import json
+import os
 import shutil
+import signal
+import subprocess
+import sys
 
 import numpy as np
 import pytest
@@ -183,6 +187,92 @@ def test_a_ten_billion_case_sweep_is_built_without_computing_it():
     assert float(one) == pytest.approx(float(expected), rel=1e-15)
 
 
+def test_a_sweep_far_beyond_memory_is_built_in_bounded_memory():
+    """9e12 cases (72 TB if materialised) under a 2 GiB address-space limit, in a fresh process.
+
+    Building the sweep must take a few seconds and little memory (the graph
+    is made on demand, in blocks grown so the task count stays bounded), and
+    one element computes one block.
+    """
+    script = """
+import resource, time
+resource.setrlimit(resource.RLIMIT_AS, (2 * 1024**3, 2 * 1024**3))
+import numpy as np, deltakit as dk
+import deltakit.sweeps as sweeps
+from deltakit.trades import prograde_energy_change
+start = time.perf_counter()
+n = 1733  # n**4 = 9.02e12 cases
+axes = dict(nu=np.linspace(0, 6.28, n), dv=np.linspace(1, 1000, n),
+            rp=np.linspace(6.6e6, 8e6, n), ra=np.linspace(8e6, 6e7, n))
+ds = dk.sweep(prograde_energy_change, mu=3.986004418e14, name="energy_change", **axes)
+built = time.perf_counter() - start
+data = ds["energy_change"].data
+one = float(ds["energy_change"].isel(nu=17, dv=200, rp=3, ra=n - 1).compute())
+expected = float(prograde_energy_change(axes["nu"][17], axes["dv"][200], axes["rp"][3], axes["ra"][n - 1],
+                                        3.986004418e14))
+print(data.size, data.npartitions, np.prod([max(c) for c in data.chunks]), built, one, expected)
+"""
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=300)
+    assert done.returncode == 0, done.stderr[-3000:]
+    size, blocks, block_cases, built, one, expected = (float(x) for x in done.stdout.split())
+    assert size > 9e12
+    # grown blocks: some 6e5 tasks of up to 2^24 cases, not 9e6 of 2^20
+    assert sweep_module._BLOCK_CASES < block_cases <= sweep_module._LARGEST_BLOCK
+    assert blocks <= 1.25 * size / sweep_module._LARGEST_BLOCK
+    assert built < 30.0, f"building the sweep took {built:.1f} s"
+    assert one == expected
+
+
+def test_the_docstring_states_the_block_sizes_the_code_uses():
+    doc = " ".join(dk.sweep.__doc__.split())
+    for constant in (sweep_module._BLOCK_CASES, sweep_module._LARGEST_BLOCK, sweep_module._MAX_BLOCKS):
+        assert f"2^{constant.bit_length() - 1}" in doc
+
+
+def test_block_size_grows_only_for_huge_grids():
+    assert sweep_module._auto_block_cases(10**6) == sweep_module._BLOCK_CASES
+    assert sweep_module._auto_block_cases(10**10) == sweep_module._BLOCK_CASES
+    grown = sweep_module._auto_block_cases(10**12)
+    assert sweep_module._BLOCK_CASES < grown <= sweep_module._LARGEST_BLOCK
+    assert 10**12 / grown <= sweep_module._MAX_BLOCKS
+    assert sweep_module._auto_block_cases(10**15) == sweep_module._LARGEST_BLOCK
+
+
+# ---------------------------------------------------------------------- axes apart from options
+def test_axes_named_like_options_go_in_the_mapping():
+    """An axis called `units` (or `name`, `chunks`, `fixed`) is given in the axes mapping."""
+
+    def cost(units, name, dv):  # an analyst's function whose parameters collide with sweep's options
+        return dv * units + name
+
+    ds = dk.sweep(cost, {"units": [1.0, 2.0], "name": [0.0, 10.0]}, dv=[5.0, 7.0], units={"dv": "m/s"})
+    assert ds["cost"].dims == ("units", "name", "dv")
+    grid = np.ix_([1.0, 2.0], [0.0, 10.0], [5.0, 7.0])
+    assert_same(ds["cost"], cost(*grid))
+    assert ds["dv"].attrs["units"] == "m/s"  # `units=` as a keyword is still the option
+    # fixed values by the mapping too (0-d), and option keywords keep their meaning
+    fixed = dk.sweep(cost, {"units": 3.0, "name": [1.0]}, dv=[2.0], name="price")
+    assert float(fixed["price"][0, 0]) == 7.0 and float(fixed["units"]) == 3.0
+
+
+def test_an_option_keyword_that_the_function_also_takes_is_refused():
+    def cost(units, dv):
+        return dv * units
+
+    with pytest.raises(TypeError, match=r"`units=` is sweep's own option.*sweep\(f, \{'units': \.\.\.\}\)"):
+        dk.sweep(cost, dv=[1.0, 2.0], units={"dv": "m/s"})
+    with pytest.raises(TypeError, match="axis `dv` given both in the mapping and as a keyword"):
+        dk.sweep(cost, {"dv": [1.0]}, dv=[2.0], fixed={"units": 1.0})
+    # given in `fixed`, the parameter is no longer ambiguous
+    ds = dk.sweep(cost, dv=[1.0, 2.0], fixed={"units": 3.0}, units={"dv": "m/s"})
+    assert ds["cost"].values.tolist() == [3.0, 6.0]
+
+
+def test_existing_keyword_calls_keep_working():
+    ds = dk.sweep(dk.hohmann, r1=R1, r2=R2, mu=MU, chunks=False, name="ignored", units={"total": "m/s"})
+    assert_same(ds["total"], dk.hohmann(R1[:, None], R2[None, :], MU).total)
+
+
 # ---------------------------------------------------------------------- on a cluster
 @pytest.mark.slow
 def test_local_cluster_run_equals_local_run():
@@ -240,6 +330,14 @@ def test_importing_the_modules_keeps_dk_sweep_the_function():
 
 
 # ---------------------------------------------------------------------- save and reopen
+def assert_only_the_sweep(path):
+    """Beside a saved sweep: its link, the one version it points to, and the save lock."""
+    version = os.readlink(path)
+    assert version.startswith(f".{path.name}.") and version.endswith(".v")
+    expected = {path.name, version, f".{path.name}.save.lock"}
+    assert {p.name for p in path.parent.iterdir()} == expected
+
+
 def test_round_trip_keeps_values_coords_and_attrs(tmp_path):
     gto = dk.Conic.from_apsides(EARTH.radius + 250e3, 42164e3, EARTH.mu)
     ds = dk.sweep(dk.burn_prograde, fixed={"conic": gto}, nu=NU, dv=DV)
@@ -248,7 +346,7 @@ def test_round_trip_keeps_values_coords_and_attrs(tmp_path):
     xr.testing.assert_identical(back, ds)
     assert back["energy_change"].attrs["units"] == "J/kg"
     assert back["nu"].attrs["units"] == "rad"
-    assert not list(tmp_path.glob(".*"))  # no temporary left behind
+    assert_only_the_sweep(path)  # no temporary left behind
 
 
 def test_lazy_sweep_streams_to_disk_and_reopens_lazily(tmp_path):
@@ -278,7 +376,7 @@ def test_overwrites_a_sweep_but_refuses_anything_else(tmp_path):
     save_sweep(first, path)
     save_sweep(second, path)
     xr.testing.assert_identical(open_sweep(path), second)
-    assert sorted(p.name for p in tmp_path.iterdir()) == ["s.zarr"]
+    assert_only_the_sweep(path)
 
     notes = tmp_path / "notes.zarr"
     notes.write_text("an analyst's notes")
@@ -310,7 +408,185 @@ def test_failed_save_leaves_the_old_sweep(tmp_path, monkeypatch):
         save_sweep(dk.sweep(dk.circular_speed, r=[9e6], mu=MU), path)
     monkeypatch.undo()
     xr.testing.assert_identical(open_sweep(path), old)
-    assert sorted(p.name for p in tmp_path.iterdir()) == ["s.zarr"]
+    assert_only_the_sweep(path)
+
+
+# ---------------------------------------------------------------------- killed and concurrent saves
+# A child process saves a sweep and stops itself (SIGSTOP) at a chosen moment
+# of the save, inside the real code path; the test then kills it with SIGKILL
+# there (or lets it go on). Nothing is mocked: the child's save really dies at
+# that instant, and the test opens whatever it left, as the next session would.
+_SAVING_CHILD = r"""
+import os, signal, sys
+import numpy as np
+import deltakit as dk
+import deltakit._folders as folders
+import xarray as xr
+
+path, stage, size = sys.argv[1], sys.argv[2], int(sys.argv[3])
+ds = dk.sweep(dk.circular_speed, r=np.linspace(7e6, 9e6, size), mu=3.986004418e14)
+
+def pause():
+    os.kill(os.getpid(), signal.SIGSTOP)
+
+swap, to_zarr = folders._swap_link, xr.Dataset.to_zarr
+if stage == "before-swap":     # the new version complete, the old one still at the path
+    folders._swap_link = lambda link, target: (pause(), swap(link, target))
+elif stage == "after-swap":    # the new version at the path, the old one not yet removed
+    folders._swap_link = lambda link, target: (swap(link, target), pause())
+elif stage == "while-writing":  # the new version half written
+    def writing(self, store, **kwargs):
+        to_zarr(self, store, **kwargs)
+        pause()
+    xr.Dataset.to_zarr = writing
+dk.save_sweep(ds, path)
+print("saved", flush=True)
+"""
+
+
+def _sweep_of(size):
+    return dk.sweep(dk.circular_speed, r=np.linspace(7e6, 9e6, size), mu=MU)
+
+
+def _saving_child(path, stage, size):
+    """A child saving ``_sweep_of(size)`` at ``path``, stopped at ``stage`` (or running, stage "none")."""
+    child = subprocess.Popen(
+        [sys.executable, "-c", _SAVING_CHILD, str(path), stage, str(size)],
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+    )
+    if stage != "none":
+        _, status = os.waitpid(child.pid, os.WUNTRACED)
+        assert os.WIFSTOPPED(status), f"the child did not stop at {stage}: {child.stderr.read()[-2000:]}"
+    return child
+
+
+def _kill(child):
+    child.send_signal(signal.SIGKILL)
+    child.wait(timeout=30)
+    assert child.returncode == -signal.SIGKILL
+
+
+def _old_style_sweep(dataset, path):
+    """A sweep saved as a plain folder at the path, as deltakit saved them before versioned links."""
+    dataset.to_zarr(path, mode="w", consolidated=False, write_empty_chunks=True)
+
+
+@pytest.mark.parametrize("legacy", [False, True], ids=["versioned", "old-style folder"])
+@pytest.mark.parametrize(
+    "stage, survivor", [("while-writing", "old"), ("before-swap", "old"), ("after-swap", "new")]
+)
+def test_a_save_killed_at_any_moment_leaves_a_complete_sweep(tmp_path, stage, survivor, legacy):
+    path = tmp_path / "s.zarr"
+    old, new = _sweep_of(3), _sweep_of(5)
+    if legacy:
+        _old_style_sweep(old, path)
+    else:
+        save_sweep(old, path)
+    child = _saving_child(path, stage, 5)
+    _kill(child)
+    # at the instant of the kill, a complete sweep opens at the path: old or new
+    assert path.exists()
+    expected = old if survivor == "old" else new
+    xr.testing.assert_identical(xr.open_zarr(path, consolidated=False).load(), expected)
+    # the next open removes what the killed save left beside it
+    left = {p.name for p in tmp_path.iterdir()} - {"s.zarr", ".s.zarr.save.lock"}
+    assert left, "the kill left nothing to clean: the child was not stopped inside the save"
+    xr.testing.assert_identical(open_sweep(path), expected)
+    if path.is_symlink():
+        assert_only_the_sweep(path)
+    else:  # the old-style folder, untouched by the killed save
+        assert {p.name for p in tmp_path.iterdir()} == {"s.zarr", ".s.zarr.save.lock"}
+    # and the next save works as usual
+    save_sweep(new, path)
+    xr.testing.assert_identical(open_sweep(path), new)
+    assert_only_the_sweep(path)
+
+
+def test_a_lost_link_is_restored_to_the_newest_complete_version(tmp_path):
+    # Where the system cannot swap a folder for a link in one step, converting
+    # an old-style folder moves it to a version first; a kill right then leaves
+    # no sweep at the path. The next open puts back the newest complete version.
+    path = tmp_path / "s.zarr"
+    old, new = _sweep_of(3), _sweep_of(4)
+    save_sweep(old, path)
+    older = tmp_path / os.readlink(path)
+    save_sweep(new, path)
+    newest = tmp_path / os.readlink(path)
+    shutil.copytree(newest, tmp_path / ".s.zarr.0000000000000001.1.abcd.v")  # an older complete version
+    path.unlink()
+    assert not path.exists() and not older.exists()
+    with pytest.warns(UserWarning, match="interrupted; the newest complete version"):
+        back = open_sweep(path)
+    xr.testing.assert_identical(back, new)
+    assert_only_the_sweep(path)
+
+
+def test_an_older_deltakits_set_aside_sweep_is_recovered(tmp_path):
+    # deltakit before versioned links moved the old sweep to .NAME.*.old/sweep
+    # and was killed before it renamed the new one into place.
+    path = tmp_path / "s.zarr"
+    old = _sweep_of(3)
+    aside = tmp_path / ".s.zarr.k2j4h1.old"
+    aside.mkdir()
+    _old_style_sweep(old, aside / "sweep")
+    (tmp_path / ".s.zarr.x81b2c.tmp").mkdir()  # its unfinished new store
+    with pytest.warns(UserWarning, match="interrupted"):
+        xr.testing.assert_identical(open_sweep(path), old)
+    assert {p.name for p in tmp_path.iterdir()} == {"s.zarr", ".s.zarr.save.lock"}
+
+
+def test_two_saves_at_once_run_one_after_the_other(tmp_path):
+    path = tmp_path / "s.zarr"
+    old = _sweep_of(2)
+    save_sweep(old, path)
+    first = _saving_child(path, "before-swap", 3)  # holds the lock, stopped
+    second = _saving_child(path, "none", 4)
+    try:
+        with pytest.raises(subprocess.TimeoutExpired):
+            second.wait(timeout=3.0)  # waits for the lock
+        # meanwhile readers see the old sweep, and leave the running save's files alone
+        xr.testing.assert_identical(open_sweep(path), old)
+        assert len([p for p in tmp_path.iterdir() if p.name.endswith(".v")]) == 2
+    finally:
+        first.send_signal(signal.SIGCONT)
+    assert first.wait(timeout=60) == 0 and first.stdout.read().strip() == "saved"
+    assert second.wait(timeout=60) == 0 and second.stdout.read().strip() == "saved"
+    xr.testing.assert_identical(open_sweep(path), _sweep_of(4))
+    assert_only_the_sweep(path)
+
+
+@pytest.mark.slow
+def test_saves_killed_at_random_moments_always_leave_a_sweep(tmp_path):
+    rng = np.random.default_rng(5)
+    path = tmp_path / "s.zarr"
+    sizes = {3, 5}
+    save_sweep(_sweep_of(3), path)
+    for round_number in range(12):
+        size = 5 if round_number % 2 else 3
+        child = _saving_child(path, "none", size)
+        try:
+            child.wait(timeout=rng.uniform(0.3, 3.0))
+        except subprocess.TimeoutExpired:
+            _kill(child)
+        back = xr.open_zarr(path, consolidated=False).load()  # a complete sweep, whatever the moment
+        assert back["r"].size in sizes
+        xr.testing.assert_identical(back, _sweep_of(back["r"].size))
+    open_sweep(path)
+    assert_only_the_sweep(path)
+
+
+def test_a_link_of_the_users_own_is_followed_and_kept(tmp_path):
+    data = tmp_path / "data"
+    data.mkdir()
+    users = tmp_path / "latest.zarr"
+    users.symlink_to(data / "run.zarr")
+    save_sweep(_sweep_of(3), users)
+    save_sweep(_sweep_of(4), users)
+    assert os.readlink(users) == str(data / "run.zarr")  # the user's link is left as it was
+    assert_only_the_sweep(data / "run.zarr")
+    xr.testing.assert_identical(open_sweep(users), _sweep_of(4))
 
 
 def test_corrupt_or_newer_store_is_refused_untouched(tmp_path):
@@ -368,9 +644,6 @@ def test_missing_scale_extra_gives_a_clear_message(monkeypatch):
 @pytest.mark.slow
 def test_reducing_a_lazy_sweep_keeps_memory_bounded():
     """2.5e8 cases (2 GB if materialised) reduced over nu in a fresh process: peak RSS well below."""
-    import subprocess
-    import sys
-
     script = """
 import resource, numpy as np, deltakit as dk
 from deltakit.trades import prograde_energy_change

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import inspect
 import json
 import os
 import shutil
@@ -102,6 +103,20 @@ def test_import_deltakit_does_not_import_sympy():
         """
     )
     assert out.split() == ["False", "True"]
+
+
+def test_importing_the_symbolic_layer_derives_nothing():
+    # First use pays for the SymPy import and the one derivation asked for,
+    # never for the catalog (benchmarks/bench_symbolic.py measures the time).
+    out = _run_python(
+        """
+        import json
+        from deltakit.symbolic import _registry, titles
+        titles()  # the menu of the catalog needs no derivation either
+        print(json.dumps(_registry._derive.cache_info().currsize))
+        """
+    )
+    assert json.loads(out) == 0
 
 
 def test_symbolic_is_reachable_from_the_package():
@@ -262,16 +277,107 @@ def test_function_takes_keywords_named_after_symbols():
 
 def test_function_reports_argument_mistakes():
     f = symbolic.derive("hohmann").function()
-    with pytest.raises(TypeError, match="missing mu"):
+    with pytest.raises(TypeError, match=r"hohmann\(r1, r2, mu\): missing a required argument: 'mu'"):
         f(r1=7e6, r2=4e7)
-    with pytest.raises(TypeError, match="unexpected keyword 'radius'"):
+    with pytest.raises(TypeError, match="unexpected keyword argument 'radius'"):
         f(radius=7e6, r2=4e7, mu=1.0)
-    with pytest.raises(TypeError, match="two values for 'r1'"):
+    with pytest.raises(TypeError, match="multiple values for argument 'r1'"):
         f(7e6, r1=7e6, r2=4e7, mu=1.0)
+    with pytest.raises(TypeError, match="too many positional arguments"):
+        f(7e6, 4e7, 1.0, 2.0)
     with pytest.raises(dk.DomainError, match="`r2`"):
         f(r1=7e6, r2="far", mu=1.0)
+    with pytest.raises(dk.DomainError, match=r"`r1` \(shape \(3,\)\) and `r2` \(shape \(2,\)\)"):
+        f(r1=np.ones(3), r2=np.ones(2), mu=1.0)
     with pytest.raises(KeyError, match="no output 'burn3'.*'burn1', 'burn2'"):
         symbolic.derive("hohmann").function("burn3")
+
+
+@pytest.mark.parametrize("name", sorted(REQUIRED))
+def test_function_carries_the_signature_of_its_parameters(name):
+    d = symbolic.derive(name)
+    for output in (None, *d.outputs):
+        f = d.function(output)
+        parameters = inspect.signature(f).parameters
+        assert list(parameters) == [str(p) for p in d.parameters]
+        assert all(p.kind is inspect.Parameter.POSITIONAL_OR_KEYWORD for p in parameters.values())
+        # the docstring is numpydoc: one entry per parameter, with its unit
+        for symbol in d.parameters:
+            unit = d.symbols[symbol].unit
+            assert f"\n{symbol} : array_like\n" in f.__doc__
+            assert unit == "1" or f", {unit} (" in f.__doc__
+        assert "Returns\n-------" in f.__doc__
+
+
+def test_positional_and_keyword_calls_agree():
+    f = symbolic.derive("bielliptic").function()
+    args = (7e6, 1.05e8, 2.1e8, dk.constants.EARTH.mu)
+    assert (
+        f(*args) == f(r1=args[0], r2=args[1], rb=args[2], mu=args[3]) == f(*args[:2], mu=args[3], rb=args[2])
+    )
+
+
+def test_sweep_sees_the_parameter_names():
+    pytest.importorskip("xarray")
+    f = symbolic.derive("hohmann").function()
+    ds = dk.sweep(f, r1=[7e6, 8e6], r2=[4.2e7], mu=dk.constants.EARTH.mu)
+    assert ds["hohmann"].dims == ("r1", "r2")
+    np.testing.assert_allclose(
+        ds["hohmann"].values[:, 0], dk.hohmann([7e6, 8e6], 4.2e7, dk.constants.EARTH.mu).total
+    )
+    with pytest.raises(TypeError, match=r"`radius` is not a keyword parameter of hohmann\(r1, r2, mu\)"):
+        dk.sweep(f, radius=[7e6, 8e6], r2=4.2e7, mu=1.0)
+
+
+# -- printing in the analyst's order ----------------------------------------------
+
+
+def _printed_relations(d):
+    yield d.result
+    yield from (relation for _, relation in d.steps)
+    yield from d.outputs.values()
+
+
+def test_differences_print_in_the_analysts_order():
+    escape = symbolic.derive("escape_burn")
+    assert r"{\Delta v} &= v_{p} - v_{c} \\" in escape.latex()
+    assert escape.result_tex().startswith(r"{\Delta v} = \frac{\sqrt{2\,\mu + r_{p}\,v_{\infty}^{2}}}")
+    vis_viva = symbolic.derive("vis_viva")
+    assert r"\varepsilon = \frac{v^{2}}{2} - \frac{\mu}{r}" in vis_viva.markdown()
+    assert "m_{v} - m_{e}" in symbolic.derive("ejection_energy").result_tex()
+    assert "dv = sqrt(2*mu + rp*vinf**2)/sqrt(rp) - sqrt(mu)/sqrt(rp)" in repr(escape)
+
+
+@pytest.mark.parametrize("name", sorted(REQUIRED))
+def test_no_sum_leads_with_a_minus_when_a_term_is_positive(name):
+    from deltakit.symbolic import _printing
+
+    d = symbolic.derive(name)
+    for expr in _printed_relations(d):
+        for add in sp.preorder_traversal(expr):
+            if isinstance(add, sp.Add) and not all(t.could_extract_minus_sign() for t in add.args):
+                assert not _printing.text(add).startswith("-"), (name, add)
+                assert not _printing.latex(add).startswith("-"), (name, add)
+
+
+@pytest.mark.parametrize("name", sorted(REQUIRED))
+def test_printed_text_reads_back_as_the_same_expression(name):
+    # The analyst's order is a printing choice only: the text printed in that
+    # order and the text SymPy prints in its own order read back (with the
+    # derivation's own symbols) as one and the same expression, equal to the
+    # printed one.
+    from deltakit.symbolic import _printing
+
+    d = symbolic.derive(name)
+    names = {str(s): s for s in d.symbols} | {"Integral": sp.Integral, "Abs": sp.Abs}
+    for expr in _printed_relations(d):
+        parts = (expr.lhs, expr.rhs) if isinstance(expr, sp.Rel) else (expr,)
+        for part in parts:
+            if part.atoms(sp.Function) - part.atoms(sp.Abs, sp.log, sp.cos, sp.sin, sp.asin, sp.acos):
+                continue  # an undefined function of time (nu(t)) does not read back by name
+            back = sp.sympify(_printing.text(part), locals=names)
+            assert back == sp.sympify(str(part), locals=names), (name, part, back)
+            assert sp.cancel(back - part) == 0, (name, part, back)
 
 
 def test_function_is_cached_per_output():

@@ -17,10 +17,7 @@ from deltakit.constants import EARTH, MARS
 symbolic = pytest.importorskip("deltakit.symbolic")
 integrate = pytest.importorskip("scipy.integrate")
 
-
-def _two_body(t, y, mu):
-    r = np.hypot(y[0], y[1])
-    return [y[2], y[3], -mu * y[0] / r**3, -mu * y[1] / r**3]
+from helpers import apsis_event, distance_event, propagate
 
 
 def test_burn_energy_ejecta_matches_quadrature():
@@ -61,14 +58,10 @@ def test_vis_viva_and_period_match_integrated_orbit():
     vp = np.sqrt(2.0 * mu * ra / (rp * (rp + ra)))  # from angular momentum and energy at the apsides
     period = float(symbolic.derive("orbital_period").function()(a=a, mu=mu))
 
-    def back_at_periapsis(t, y, mu):  # y crosses zero going up: one full revolution
-        return y[1]
-
-    back_at_periapsis.direction = 1.0
-    done = integrate.solve_ivp(
-        _two_body, (0.0, 1.5 * period), [rp, 0.0, 0.0, vp], args=(mu,), rtol=1e-12, atol=1e-6,
-        events=back_at_periapsis, dense_output=True,
-    )  # fmt: skip
+    # r . v rises through zero at each periapsis passage: the first after the start is one revolution
+    done = propagate(
+        [rp, 0.0], [0.0, vp], mu, 1.5 * period, events=apsis_event(direction=1.0), dense_output=True
+    )
     (returned,) = [t for t in done.t_events[0] if t > 0.5 * period]
     assert returned == pytest.approx(period, rel=1e-8)
     states = done.sol(np.linspace(0.0, period, 200))
@@ -85,16 +78,8 @@ def test_powered_flyby_matches_integrated_hyperbolas():
     vp = np.sqrt(vinf_in**2 + 2.0 * mu / rp)
     far = 3e9  # m: far enough that the direction of motion is the asymptote's to ~1e-4 rad
 
-    def leave(t, y, mu):
-        return np.hypot(y[0], y[1]) - far
-
-    leave.terminal = True
-    arriving = integrate.solve_ivp(
-        _two_body, (0.0, -1e8), [rp, 0.0, 0.0, vp], args=(mu,), rtol=1e-12, atol=1e-6, events=leave
-    )
-    leaving = integrate.solve_ivp(
-        _two_body, (0.0, 1e8), [rp, 0.0, 0.0, vp + dv], args=(mu,), rtol=1e-12, atol=1e-6, events=leave
-    )
+    arriving = propagate([rp, 0.0], [0.0, vp], mu, -1e8, events=distance_event(far))
+    leaving = propagate([rp, 0.0], [0.0, vp + dv], mu, 1e8, events=distance_event(far))
     v_in, v_out = arriving.y[2:, -1], leaving.y[2:, -1]
     turn = np.arccos(np.dot(v_in, v_out) / (np.linalg.norm(v_in) * np.linalg.norm(v_out)))
     speed_out = np.linalg.norm(v_out)

@@ -17,9 +17,10 @@ Outside sources
 
 from __future__ import annotations
 
+import mpmath
 import numpy as np
 import pytest
-from hypothesis import given
+from hypothesis import assume, given
 from hypothesis import strategies as st
 from scipy.optimize import brentq
 
@@ -174,20 +175,61 @@ def test_best_burn_point_lazy_equals_eager():
     xr.testing.assert_identical(lazy.compute(), eager)
 
 
+def _energy_change_exact(nu, dv, rp, ra, mu):
+    """v dv + dv^2/2 with vis-viva on the conic equation, in 40-digit arithmetic (mpmath).
+
+    Vis-viva and the conic equation (common practice; Curtis 3rd ed. Eq. 2.81
+    and 2.45); evaluated exactly enough that its own rounding is irrelevant.
+    """
+    with mpmath.workdps(40):
+        rp, ra, mu, nu, dv = (mpmath.mpf(x) for x in (rp, ra, mu, nu, dv))
+        e = (ra - rp) / (ra + rp)
+        a, p = (rp + ra) / 2, 2 * rp * ra / (rp + ra)
+        r = p / (1 + e * mpmath.cos(nu))
+        v = mpmath.sqrt(mu * (2 / r - 1 / a))
+        return float(v), float(v * dv + dv * dv / 2)
+
+
 @given(
     nu=st.floats(-7.0, 7.0),
     dv=st.floats(-3000.0, 3000.0),
     rp=st.floats(6500e3, 50000e3),
     span=st.floats(0.0, 400000e3),
 )
-def test_prograde_energy_change_equals_burn_prograde(nu, dv, rp, span):
+def test_prograde_energy_change_is_the_oberth_gain_at_the_conic_speed(nu, dv, rp, span):
     ra = rp + span
-    expected = dk.burn_prograde(dk.Conic.from_apsides(rp, ra, EARTH.mu), nu, dv).energy_change
-    got = prograde_energy_change(nu, dv, rp, ra, EARTH.mu)
-    if np.isnan(expected):
+    speed, expected = _energy_change_exact(nu, dv, rp, ra, EARTH.mu)
+    assume(abs(speed + dv) > 1e-9 * speed)  # not on the edge where the burn stops the vehicle
+    got = float(prograde_energy_change(nu, dv, rp, ra, EARTH.mu))
+    if speed + dv <= 0.0:
         assert np.isnan(got)
-    else:
-        assert float(got) == pytest.approx(float(expected), rel=1e-11, abs=1e-6)
+    else:  # relative: the gain dv (v + dv/2) has no cancellation while v + dv > 0
+        assert got == pytest.approx(expected, rel=1e-13, abs=0.0)
+
+
+def test_prograde_energy_change_equals_burn_prograde_and_keeps_apoapsis_digits():
+    rng = np.random.default_rng(8)  # invented Earth orbits, up to lunar distance
+    rp = rng.uniform(6600e3, 20000e3, 500)
+    ra = rp + rng.uniform(0.0, 4e8, 500)
+    nu, dv = rng.uniform(-np.pi, np.pi, 500), rng.uniform(-500.0, 3000.0, 500)
+    twin = dk.burn_prograde(dk.Conic.from_apsides(rp, ra, EARTH.mu), nu, dv).energy_change
+    np.testing.assert_allclose(prograde_energy_change(nu, dv, rp, ra, EARTH.mu), twin, rtol=1e-10)
+    # at apoapsis of an orbit reaching 1e6 periapsis radii the speed is tiny and exact here
+    _, exact = _energy_change_exact(np.pi, 1.0, 7000e3, 7e12, EARTH.mu)
+    assert float(prograde_energy_change(np.pi, 1.0, 7000e3, 7e12, EARTH.mu)) == pytest.approx(
+        exact, rel=1e-14
+    )
+
+
+def test_prograde_energy_change_checks_its_inputs():
+    with pytest.raises(dk.DomainError, match="`ra` must be > 0 m"):
+        prograde_energy_change(0.0, 10.0, 7e6, -1.0, EARTH.mu)
+    with pytest.raises(dk.DomainError, match="`nu` must be finite"):
+        prograde_energy_change(np.nan, 10.0, 7e6, 8e6, EARTH.mu)
+    with pytest.raises(dk.DomainError, match="`dv` must be finite"):
+        best_burn_point(7e6, 8e6, [np.inf], EARTH.mu)
+    with pytest.raises(dk.DomainError, match="`m0` must be > 0 kg"):
+        propellant_grid(100.0, [0.0, 1000.0], 3000.0)
 
 
 # ---------------------------------------------------------------------- propellant over vehicles

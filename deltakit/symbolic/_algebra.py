@@ -12,7 +12,17 @@ from typing import Any
 
 import sympy as sp
 
-__all__ = ["solve_for", "tidy"]
+__all__ = ["equation", "solve_for", "tidy"]
+
+
+def equation(lhs: Any, rhs: Any) -> sp.Equality:
+    """``lhs = rhs`` as a SymPy equation, unevaluated.
+
+    ``sympy.Eq`` otherwise tries to prove or refute the equation from the
+    symbols' assumptions, which costs a large part of a first derivation and
+    decides nothing for the relations a derivation states.
+    """
+    return sp.Eq(lhs, rhs, evaluate=False)
 
 
 def solve_for(equation: Any, unknown: sp.Symbol) -> list[sp.Expr]:

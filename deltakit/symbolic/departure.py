@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import sympy as sp
 
-from ._algebra import solve_for, tidy
+from ._algebra import equation, solve_for, tidy
 from ._builder import Builder
 from ._registry import derive, entry
 from .derivation import Derivation
@@ -28,7 +28,7 @@ _IMPULSIVE = "Impulsive burn along the velocity at periapsis."
 def _hyperbola_periapsis_speed(
     b: Builder, vp: sp.Symbol, vinf: sp.Symbol, rp: sp.Symbol, mu: sp.Symbol
 ) -> sp.Expr:
-    energy = sp.Eq(vp**2 / 2 - mu / rp, vinf**2 / 2)
+    energy = equation(vp**2 / 2 - mu / rp, vinf**2 / 2)
     b.relation("Energy conservation between periapsis and far away, where the potential vanishes.", energy)
     return b.step("Solve for the periapsis speed on the hyperbola.", vp, solve_for(energy, vp)[0])
 
@@ -130,7 +130,7 @@ def _powered_flyby() -> Derivation:
 
     before = _hyperbola_periapsis_speed(b, vp, vinf_in, rp, mu)
     after = vp + dv
-    out_energy = sp.Eq(after**2 / 2 - mu / rp, vinf_out**2 / 2)
+    out_energy = equation(after**2 / 2 - mu / rp, vinf_out**2 / 2)
     b.relation("After the burn at the same radius, energy conservation out to far away.", out_energy)
     out_value = solve_for(out_energy, vinf_out)[0]
     b.step("Solve for the excess speed on leaving.", vinf_out, out_value)
@@ -143,14 +143,14 @@ def _powered_flyby() -> Derivation:
     )
 
     # turn angle of a leg from the conic equation, with e from the periapsis state
-    conic = sp.Eq(rp, h**2 / (mu * (1 + e)))
+    conic = equation(rp, h**2 / (mu * (1 + e)))
     b.relation("Conic equation at periapsis for a leg with excess speed $v_\\infty$.", conic)
     vp_leg = sp.sqrt(vinf**2 + 2 * mu / rp)
     e_value = sp.expand(solve_for(conic.subs(h, rp * vp_leg), e)[0])
     b.step(
         "With $h = r_p v_p$ and $v_p^2 = v_\\infty^2 + 2\\mu/r_p$, solve for the eccentricity.", e, e_value
     )
-    nu_value = solve_for(sp.Eq(1 + e * sp.cos(nu_inf), 0), nu_inf)
+    nu_value = solve_for(equation(1 + e * sp.cos(nu_inf), 0), nu_inf)
     # two roots, +-nu_inf; the outgoing asymptote is the one in (pi/2, pi)
     nu_value = min(nu_value, key=lambda root: float(root.subs(e, 2)))
     b.step("The radius becomes infinite where $1 + e\\cos\\nu = 0$: the asymptote.", nu_inf, nu_value)

@@ -11,13 +11,14 @@ from __future__ import annotations
 
 import dataclasses
 import importlib
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Callable, Mapping
 from typing import Any, NamedTuple
 
-import numpy as np
 import sympy as sp
 
-from .._checks import finite, nonnegative, nonzero, positive, scalar_or_array
+from .._text import escape_latex
+from . import _printing
+from ._callable import Argument, numpy_function
 
 __all__ = ["Derivation", "Meaning"]
 
@@ -30,23 +31,17 @@ class Meaning(NamedTuple):
     latex: str
 
 
-_TEXT_ESCAPES = {
-    "\\": r"\textbackslash{}",
-    "&": r"\&",
-    "%": r"\%",
-    "$": r"\$",
-    "#": r"\#",
-    "_": r"\_",
-    "{": r"\{",
-    "}": r"\}",
-    "~": r"\textasciitilde{}",
-    "^": r"\textasciicircum{}",
-}
+#: Text-mode commands of :func:`~deltakit._text.escape_latex` that MathJax's ``\\text{}``
+#: does not know, as the inline math that LaTeX and MathJax both typeset.
+_MATHJAX_SAFE = {r"\textless{}": "$<$", r"\textgreater{}": "$>$", r"\textbar{}": "$|$"}
 
 
 def escape_text(text: str) -> str:
-    """Escape plain words for LaTeX text mode (also valid inside ``\\text{}``)."""
-    return "".join(_TEXT_ESCAPES.get(ch, ch) for ch in text)
+    """Plain words for LaTeX text mode, also inside ``\\text{}`` (:func:`deltakit._text.escape_latex`)."""
+    escaped = escape_latex(text)
+    for command, math in _MATHJAX_SAFE.items():
+        escaped = escaped.replace(command, math)
+    return escaped
 
 
 def _pieces(text: str) -> list[str]:
@@ -156,7 +151,7 @@ class Derivation:
     def _latex(self, expr: Any) -> str:
         # a thin space between factors keeps products of multi-letter symbols
         # readable (Delta v times v, not "Delta vv")
-        return sp.latex(expr, symbol_names=self._names(), mul_symbol=r"\,")
+        return _printing.latex(expr, symbol_names=self._names(), mul_symbol=r"\,")
 
     def tex(self, expr: Any) -> str:
         """LaTeX of an expression or relation with this derivation's symbol names."""
@@ -262,36 +257,53 @@ class Derivation:
 
     def __repr__(self) -> str:
         params = ", ".join(str(p) for p in self.parameters)
-        return f"Derivation({self.name!r}: {self.target} = {self.result}; f({params}); twin {self.twin})"
+        result = _printing.text(self.result)
+        return f"Derivation({self.name!r}: {self.target} = {result}; f({params}); twin {self.twin})"
 
     # -- numbers -----------------------------------------------------------
     def function(self, output: str | None = None) -> Callable[..., Any]:
-        """A NumPy callable of :attr:`parameters` (positional or keyword).
+        """A NumPy function of :attr:`parameters` (positional or keyword).
 
-        Made by ``sympy.lambdify``. Arguments broadcast like a ufunc; scalars
-        in give NumPy scalars out. ``output`` picks one of :attr:`outputs`
-        (default: :attr:`result`).
+        Made by ``sympy.lambdify``. It carries a real signature (``help()``,
+        tab completion and :func:`deltakit.sweep` see the parameter names)
+        and a docstring with each parameter's meaning, unit and rule.
+        Arguments broadcast like a ufunc; scalars in give NumPy scalars out.
+        ``output`` picks one of :attr:`outputs` (default: :attr:`result`).
 
         Examples
         --------
+        >>> import inspect
         >>> from deltakit.symbolic import derive
         >>> f = derive("hohmann").function()
+        >>> inspect.signature(f)
+        <Signature (r1, r2, mu)>
         >>> round(float(f(r1=6678137.0, r2=42164e3, mu=3.986004418e14)))
         3893
         """
         key = output
         if key not in self._functions:
             if output is None:
-                expr = self.result
+                expr, target = self.result, self.target
             elif output in self.outputs:
                 expr = self.outputs[output]
+                target = next((s for s in self.symbols if str(s) == output), self.target)
             else:
                 raise KeyError(
                     f"derivation {self.name!r} has no output {output!r}; choose from {sorted(self.outputs)}"
                 )
             label = self.name + (f"_{output}" if output else "")
-            rules = [(self.domain.get(str(p), "finite"), self.symbols[p].unit) for p in self.parameters]
-            self._functions[key] = _numpy_callable(self.parameters, expr, label, rules)
+            arguments = [
+                Argument(
+                    str(p), self.symbols[p].meaning, self.symbols[p].unit, self.domain.get(str(p), "finite")
+                )
+                for p in self.parameters
+            ]
+            about = self.symbols.get(target)
+            returns = f"{about.meaning}, {about.unit}." if about else f"{output or self.target}."
+            summary = f"{self.title}: {_printing.text(target)} = {_printing.text(expr)}"
+            self._functions[key] = numpy_function(
+                label, expr, self.parameters, arguments, summary=summary, returns=returns
+            )
         return self._functions[key]
 
     def twin_function(self) -> Callable[..., Any]:
@@ -311,39 +323,3 @@ class Derivation:
             return value
 
         return twin
-
-
-_CHECKS = {"> 0": positive, ">= 0": nonnegative, "finite": finite, "non-zero": nonzero}
-
-
-def _numpy_callable(
-    parameters: Sequence[sp.Symbol], expr: sp.Expr, name: str, rules: Sequence[tuple[str, str]]
-) -> Callable[..., Any]:
-    raw = sp.lambdify(list(parameters), expr, modules="numpy")
-    names = [str(p) for p in parameters]
-    checks = [(_CHECKS[rule], unit) for rule, unit in rules]
-
-    def evaluate(*args: Any, **kwargs: Any) -> Any:
-        if len(args) > len(names):
-            raise TypeError(f"{name}() takes {len(names)} arguments ({', '.join(names)}), got {len(args)}")
-        values = dict(zip(names, args))
-        for key, value in kwargs.items():
-            if key not in names:
-                raise TypeError(
-                    f"{name}() got an unexpected keyword {key!r}; its arguments are {', '.join(names)}"
-                )
-            if key in values:
-                raise TypeError(f"{name}() got two values for {key!r}")
-            values[key] = value
-        missing = [n for n in names if n not in values]
-        if missing:
-            raise TypeError(f"{name}() is missing {', '.join(missing)}")
-        arrays = [check(values[n], n, unit) for n, (check, unit) in zip(names, checks)]
-        shape = np.broadcast_shapes(*(a.shape for a in arrays))
-        with np.errstate(invalid="ignore", divide="ignore"):
-            out = np.asarray(raw(*arrays), dtype=float)
-        return scalar_or_array(np.broadcast_to(out, shape).copy())
-
-    evaluate.__name__ = name
-    evaluate.__doc__ = f"{name}({', '.join(names)}) = {expr}"
-    return evaluate

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import sympy as sp
 
-from ._algebra import solve_for
+from ._algebra import equation, solve_for
 from ._builder import Builder
 from ._registry import derive, entry
 from .derivation import Derivation
@@ -49,9 +49,9 @@ def _rocket_equation() -> Derivation:
     balance = balance.subs(dm * dv_small, 0)  # second-order small
     b.relation(
         "No external force: momentum is conserved; drop the second-order term $\\mathrm{d}m\\,\\mathrm{d}v$.",
-        sp.Eq(balance, 0),
+        equation(balance, 0),
     )
-    slope = solve_for(sp.Eq(balance, 0), dv_small)[0]
+    slope = solve_for(equation(balance, 0), dv_small)[0]
     b.step("Solve for the speed change.", dv_small, slope)
     integral = sp.Integral(slope / dm, (m, m0, mf))
     # ve is a constant factor: keep it outside the logarithm when combining.
@@ -100,7 +100,7 @@ def _ejection_energy() -> Derivation:
         p,
         m_rest * w - m_ejected * u,
     )
-    w_value = solve_for(sp.Eq(m_rest * w - m_ejected * u, 0), w)[0]
+    w_value = solve_for(equation(m_rest * w - m_ejected * u, 0), w)[0]
     b.step("Solve for the speed gained by the remaining mass.", w, w_value)
     vehicle = sp.Rational(1, 2) * m_rest * ((v0 + w) ** 2 - v0**2)
     b.step(

@@ -11,7 +11,7 @@ from typing import Any
 
 import sympy as sp
 
-from ._algebra import solve_for, tidy
+from ._algebra import equation, solve_for, tidy
 from ._builder import Builder
 from ._registry import derive, entry
 from .derivation import Derivation
@@ -38,9 +38,9 @@ def _vis_viva() -> Derivation:
     b.step("Specific energy: kinetic plus potential, per unit mass, is conserved.", energy, v**2 / 2 - mu / r)
     conserve_energy = b.relation(
         "Energy conservation between periapsis and apoapsis.",
-        sp.Eq(vp**2 / 2 - mu / rp, va**2 / 2 - mu / ra),
+        equation(vp**2 / 2 - mu / rp, va**2 / 2 - mu / ra),
     )
-    momentum = sp.Eq(rp * vp, ra * va)
+    momentum = equation(rp * vp, ra * va)
     b.relation(
         "Angular momentum conservation: at the apsides the velocity is perpendicular to the radius.", momentum
     )
@@ -51,7 +51,7 @@ def _vis_viva() -> Derivation:
     b.step("Energy evaluated at periapsis.", energy, energy_apsides)
     energy_a = tidy(energy_apsides.subs(ra, 2 * a - rp))
     b.step("The apsides are $2a$ apart along the major axis: $r_p + r_a = 2a$.", energy, energy_a)
-    speed = solve_for(sp.Eq(v**2 / 2 - mu / r, energy_a), v)[0]
+    speed = solve_for(equation(v**2 / 2 - mu / r, energy_a), v)[0]
     speed = sp.sqrt(sp.expand(speed**2))  # v > 0, so v = sqrt(v^2) in expanded form
     b.step("Solve the energy relation at radius $r$ for the speed.", v, speed)
     return b.build(
@@ -93,7 +93,7 @@ def _orbital_period() -> Derivation:
     ellipse_area = sp.pi * a * a * sp.sqrt(1 - e**2)
     conic = b.relation(
         "Periapsis from the conic equation ($\\nu = 0$) and from the geometry ($a(1 - e)$).",
-        sp.Eq(h**2 / (mu * (1 + e)), a * (1 - e)),
+        equation(h**2 / (mu * (1 + e)), a * (1 - e)),
     )
     h_value = b.step("Solve for the angular momentum.", h, solve_for(conic, h)[0])
     value = sp.powsimp(tidy(ellipse_area / rate.subs(h, h_value)), force=True)
@@ -203,7 +203,7 @@ def _inplane_burn() -> Derivation:
     radius = b.step(
         "The conic equation, with h the specific angular momentum.", r, h**2 / (mu * (1 + e * sp.cos(nu)))
     )
-    h_value = solve_for(sp.Eq(radius.subs(nu, 0), rp), h)[0]
+    h_value = solve_for(equation(radius.subs(nu, 0), rp), h)[0]
     b.step("At periapsis ($\\nu = 0$) the radius is $r_p$.", h, h_value)
     b.step("Angular momentum is r times the transverse velocity.", v_t, tidy(h / radius))
     nu_t = sp.Function("nu")(t)
@@ -260,9 +260,10 @@ def _apsis_change() -> Derivation:
     vp_value = tidy(vp_value)
     b.step("Periapsis speed from vis-viva with $a = (r_p + r_a)/2$.", vp, vp_value)
     b.step("A tangential burn at periapsis keeps the burn point an apsis and adds $\\Delta v$.", w, vp + dv)
-    momentum = b.relation("Angular momentum at the new apsides.", sp.Eq(rp * w, r_new * v_new))
+    momentum = b.relation("Angular momentum at the new apsides.", equation(rp * w, r_new * v_new))
     energy = b.relation(
-        "Energy conservation between the new apsides.", sp.Eq(w**2 / 2 - mu / rp, v_new**2 / 2 - mu / r_new)
+        "Energy conservation between the new apsides.",
+        equation(w**2 / 2 - mu / rp, v_new**2 / 2 - mu / r_new),
     )
     v_new_value = solve_for(momentum, v_new)[0]
     roots = solve_for(energy.subs(v_new, v_new_value), r_new)

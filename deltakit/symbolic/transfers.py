@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import sympy as sp
 
-from ._algebra import solve_for, tidy
+from ._algebra import equation, solve_for, tidy
 from ._builder import Builder
 from ._registry import derive, entry
 from .derivation import Derivation
@@ -39,7 +39,7 @@ def _circular_speed(b: Builder, r: sp.Symbol, mu: sp.Symbol) -> sp.Expr:
     """Record gravity = centripetal acceleration, solve it, return the speed."""
     v = b.symbol("v_circle", "speed on a circular orbit of radius r", "m/s", r"v_{c}")
     balance = b.relation(
-        "On a circular orbit gravity supplies the centripetal acceleration.", sp.Eq(mu / r**2, v**2 / r)
+        "On a circular orbit gravity supplies the centripetal acceleration.", equation(mu / r**2, v**2 / r)
     )
     return b.step("Solve for the circular speed.", v, solve_for(balance, v)[0])
 
