@@ -23,7 +23,7 @@ import numpy as np
 from ..constants import BODIES
 from ..demo import CINDERWREN
 from ..departure import escape_burn, powered_flyby
-from ..plotting._style import COLOURS, style_axes
+from ..plotting._style import COLOURS, plain_log_ticks, style_axes
 from ..units import deg, km, km_per_s
 from ._base import Computed, InputError, Panel, apsides_at, choice, follow_limits, number, radius_at, slider
 
@@ -215,6 +215,7 @@ class EscapeFlyby(Panel):
             [1.0], [0.0], "o", color=COLOURS["before"], markersize=7, label="this flyby", zorder=5
         )
         ax.set_xscale("log")
+        plain_log_ticks(ax.xaxis)
         ax.set_xlim(1.0, 50.0)
         style_axes(ax, xlabel="flyby periapsis radius (body radii)", ylabel="gain beyond v∞ + dv (m/s)")
         ax.set_title("powered flyby", fontsize="medium", pad=38)

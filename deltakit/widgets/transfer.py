@@ -28,7 +28,7 @@ import numpy as np
 from ..constants import BODIES, EARTH
 from ..demo import HALYARD
 from ..errors import DomainError
-from ..plotting._style import COLOURS, style_axes
+from ..plotting._style import COLOURS, plain_log_ticks, style_axes
 from ..plotting.orbits import draw_transfer, update_transfer
 from ..transfers import (
     BIELLIPTIC_ALWAYS_BETTER_RATIO,
@@ -309,6 +309,7 @@ class TransferTrade(Panel):
             )
         self._ratio_now = ax.axvline(1.0, color=COLOURS["burn"], linewidth=1.4, label="this r2/r1")
         ax.set_xscale("log")
+        plain_log_ticks(ax.xaxis)
         ax.set_xlim(1.0, 100.0)
         ax.set_ylim(0.0, 1.1 * float(np.nanmax(np.concatenate([hohmann_curve, limit_curve]))))
         style_axes(
