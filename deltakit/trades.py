@@ -45,9 +45,10 @@ def prograde_energy_change(nu: ArrayLike, dv: ArrayLike, rp: ArrayLike, ra: Arra
 
     Equal to ``burn_prograde(Conic.from_apsides(rp, ra, mu), nu, dv).energy_change``
     but computes only the speed and the Oberth relation, so a grid of a billion
-    cases stays cheap. Where ``ra < rp`` (no such orbit) or ``dv <= -v`` (the
+    cases stays cheap. Where ``ra < rp`` (no such orbit) or ``dv = -v`` (the
     burn would stop the vehicle) the element is NaN instead of an error, so a
-    grid of rp x ra may overlap.
+    grid of rp x ra may overlap; ``dv < -v`` reverses the motion, as in
+    ``burn_prograde``.
 
     Parameters
     ----------
@@ -81,7 +82,7 @@ def prograde_energy_change(nu: ArrayLike, dv: ArrayLike, rp: ArrayLike, ra: Arra
     speed = Conic._trusted(rp, e, positive(mu, "mu", "m^3/s^2")).speed(nu)
     valid = np.isfinite(speed)
     gain = energy_gain(np.where(valid, speed, 0.0), dv)
-    return scalar_or_array(np.where(valid & (speed + dv > 0.0), gain, np.nan))
+    return scalar_or_array(np.where(valid & (speed + dv != 0.0), gain, np.nan))
 
 
 def best_burn_point(
