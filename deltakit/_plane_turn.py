@@ -39,6 +39,8 @@ _TWO_PI = 2.0 * math.pi
 def turned_plane(
     inc: np.ndarray,
     raan: np.ndarray,
+    sin_i: np.ndarray,
+    cos_i: np.ndarray,
     u: np.ndarray,
     cos_u: np.ndarray,
     sin_u: np.ndarray,
@@ -47,19 +49,19 @@ def turned_plane(
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Inclination, node and argument of latitude after turning the plane by ``delta``.
 
-    Arrays broadcast; ``cos_u, sin_u`` are those of ``u`` and ``cos_d, sin_d``
-    those of the turn. Returns ``inc'`` in [0, pi], ``raan'`` (wrapped to
-    [0, 2 pi) where the node moved, unchanged where it did not) and ``u'``.
+    Arrays broadcast; ``sin_i, cos_i`` are those of ``inc`` (``sin_i`` exactly
+    0 at ``inc = pi``), ``cos_u, sin_u`` those of ``u`` and ``cos_d, sin_d``
+    those of the turn. Returns ``inc'`` in [0, pi], ``raan'`` in [0, 2 pi)
+    (unchanged where the plane did not turn) and ``u'``.
     """
-    sin_i = np.where(inc == np.pi, 0.0, np.sin(inc))
-    cos_i = np.cos(inc)
     tilt = sin_d * cos_u
     c = tilt * cos_i + cos_d * sin_i  # node direction of the new plane, along the old node
     s = sin_d * sin_u  # ... and a quarter turn ahead of it, both times sin(inc')
     w_z = cos_d * cos_i - tilt * sin_i
-    sin_new = np.hypot(c, s)
+    sin_new = np.sqrt(c * c + s * s)
     inc_new = np.arctan2(sin_new, w_z)
-    node_shift = np.arctan2(s, c)
+    raan_new = raan + np.arctan2(s, c)
+    raan_new -= _TWO_PI * np.floor(raan_new / _TWO_PI)
     # the radius projected on the new node line and on the line a quarter turn ahead
     along = cos_u * c + (sin_u * cos_i) * s
     ahead = (cos_d * sin_u) * c - (cos_d * cos_u * cos_i - sin_d * sin_i) * s
@@ -67,13 +69,12 @@ def turned_plane(
     flat = np.asarray(sin_new == 0.0)
     if flat.any():  # the new plane is equatorial: keep the old node as reference
         u_new = np.where(flat, np.where(cos_i * w_z < 0.0, -u, u), u_new)
-        node_shift = np.where(flat, 0.0, node_shift)
+        raan_new = np.where(flat, raan, raan_new)
     unturned = np.asarray((sin_d == 0.0) & (cos_d > 0.0))
     if unturned.any():  # no turn at all: the old plane exactly
         inc_new = np.where(unturned, inc, inc_new)
         u_new = np.where(unturned, u, u_new)
-        node_shift = np.where(unturned, 0.0, node_shift)
-    raan_new = np.where(node_shift == 0.0, raan, np.mod(raan + node_shift, _TWO_PI))
+        raan_new = np.where(unturned, raan, raan_new)
     return inc_new, raan_new, u_new
 
 

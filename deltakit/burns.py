@@ -237,7 +237,7 @@ def _space_kernel(rp, e, mu, argp, inc, raan, nu, radial, transverse, normal, ou
     # transverse part s vt with s = |(1 + x, y)|; the plane turns about the radius
     # by delta, cos delta = (1 + x) / s, sin delta = y / s.
     along = 1.0 + x
-    scale_t = np.hypot(along, y)
+    scale_t = np.sqrt(along * along + y * y)
     if not (np.min(q) > 0.0 and np.min(scale_t) > 0.0):
         bad = ~(q > 0.0) | ~(scale_t > 0.0)
         scale_t = np.where(bad, np.nan, scale_t)
@@ -249,7 +249,12 @@ def _space_kernel(rp, e, mu, argp, inc, raan, nu, radial, transverse, normal, ou
     cos_a, sin_a = _cos_sin(argp)
     cos_u = cos_a * cos_nu - sin_a * sin_nu
     sin_u = sin_a * cos_nu + cos_a * sin_nu
-    inc_b, raan_b, u_new = turned_plane(inc, raan, u, cos_u, sin_u, along / scale_t, y / scale_t)
+    cos_i, sin_i = _cos_sin(inc)
+    sin_i = np.where(inc == np.pi, 0.0, sin_i)  # exactly 0 for a retrograde equatorial orbit
+    inverse = 1.0 / scale_t
+    inc_b, raan_b, u_new = turned_plane(
+        inc, raan, sin_i, cos_i, u, cos_u, sin_u, along * inverse, y * inverse
+    )
     np.copyto(inc_new, inc_b)
     np.copyto(raan_new, raan_b)
     np.subtract(u_new, out[3], out=out[2])
@@ -268,7 +273,11 @@ def _reversed_planes(
     where = np.nonzero(reversed_)
     _, _, _, argp, inc, raan = (np.broadcast_to(a, shape) for a in elements)
     u = argp[where] + np.broadcast_to(nu, shape)[where]
-    inc_b, raan_b, u_new = turned_plane(inc[where], raan[where], u, np.cos(u), np.sin(u), -1.0, 0.0)
+    inc_w = inc[where]
+    sin_i = np.where(inc_w == np.pi, 0.0, np.sin(inc_w))
+    inc_b, raan_b, u_new = turned_plane(
+        inc_w, raan[where], sin_i, np.cos(inc_w), u, np.cos(u), np.sin(u), -1.0, 0.0
+    )
     results[2][where] = u_new - results[3][where]
     inc_all, raan_all = np.array(inc), np.array(raan)
     inc_all[where], raan_all[where] = inc_b, raan_b
