@@ -29,7 +29,7 @@ def blockwise(
     """Run ``kernel`` over the broadcast of ``arrays``; return its outputs.
 
     ``floats`` float outputs of the broadcast shape are made with
-    ``np.empty``; with ``flags`` one boolean output is added, made with
+    ``np.empty``; with ``flags`` one ``int8`` output is added, made with
     ``np.zeros`` (its pages cost no memory until a kernel writes to them).
     Inputs of size 1 (scalars) stay size 1. Small inputs run in one call.
     """
@@ -39,7 +39,7 @@ def blockwise(
         return tuple(o.reshape(()) for o in outputs)
     outputs = [np.empty(shape) for _ in range(floats)]
     if flags:
-        outputs.append(np.zeros(shape, dtype=bool))
+        outputs.append(np.zeros(shape, dtype=np.int8))
     ndim = len(shape)
     arrays = [a.reshape((1,) * (ndim - a.ndim) + a.shape) for a in arrays]
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):

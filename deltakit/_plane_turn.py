@@ -20,7 +20,7 @@ point's new argument of latitude follows from the projections of the radius
 on the new node line.
 
 Conventions (those of :mod:`deltakit.conic`): when the new plane is
-equatorial, its node is undefined; the old node is kept as the reference
+equatorial (its tilt zero, or too small to square), its node is undefined; the old node is kept as the reference
 direction, and the latitude is measured from it in the new direction of
 motion. A turn of exactly zero keeps the old elements bit for bit.
 """
@@ -34,6 +34,9 @@ import numpy as np
 __all__ = ["turned_plane", "turned_plane_number"]
 
 _TWO_PI = 2.0 * math.pi
+#: Below this tilt (its square is subnormal, its digits gone) the new plane
+#: counts as equatorial, in both the array and the scalar path.
+_FLAT = 1e-150
 
 
 def turned_plane(
@@ -66,10 +69,11 @@ def turned_plane(
     along = cos_u * c + (sin_u * cos_i) * s
     ahead = (cos_d * sin_u) * c - (cos_d * cos_u * cos_i - sin_d * sin_i) * s
     u_new = np.arctan2(ahead, along)
-    flat = np.asarray(sin_new == 0.0)
+    flat = np.asarray(sin_new < _FLAT)
     if flat.any():  # the new plane is equatorial: keep the old node as reference
         u_new = np.where(flat, np.where(cos_i * w_z < 0.0, -u, u), u_new)
         raan_new = np.where(flat, raan, raan_new)
+        inc_new = np.where(flat, np.where(w_z < 0.0, np.pi, 0.0), inc_new)
     unturned = np.asarray((sin_d == 0.0) & (cos_d > 0.0))
     if unturned.any():  # no turn at all: the old plane exactly
         inc_new = np.where(unturned, inc, inc_new)
@@ -92,9 +96,9 @@ def turned_plane_number(
     s = sin_d * sin_u
     w_z = cos_d * cos_i - tilt * sin_i
     sin_new = math.hypot(c, s)
+    if sin_new < _FLAT:
+        return (math.pi if w_z < 0.0 else 0.0), raan, -u if cos_i * w_z < 0.0 else u
     inc_new = math.atan2(sin_new, w_z)
-    if sin_new == 0.0:
-        return inc_new, raan, -u if cos_i * w_z < 0.0 else u
     node_shift = math.atan2(s, c)
     along = cos_u * c + (sin_u * cos_i) * s
     ahead = (cos_d * sin_u) * c - (cos_d * cos_u * cos_i - sin_d * sin_i) * s

@@ -128,6 +128,16 @@ def _all_ordinary(q: np.ndarray, dv: np.ndarray, v: np.ndarray, x: np.ndarray) -
     return False
 
 
+#: Flags of a planar burn: the plane is kept (0), turned over by a reversal (1) or there is no orbit (2).
+_REVERSED, _NO_ORBIT = 1, 2
+
+
+def _flag(flags: np.ndarray, bad: np.ndarray, scale_t: np.ndarray) -> None:
+    """Mark the burns that reverse the motion and those that leave no orbit."""
+    np.copyto(flags, _REVERSED, where=scale_t < 0.0)
+    np.copyto(flags, _NO_ORBIT, where=bad)
+
+
 def _after_elements(
     scale_t2: np.ndarray,
     e_cos_new: np.ndarray,
@@ -155,7 +165,7 @@ def _after_elements(
 
 # ---------------------------------------------------------------------- kernels
 def _prograde_kernel(rp, e, mu, argp, nu, dv, out):
-    """Prograde burns: write rp, e, argp, nu_after, energy_change and the reversal flags."""
+    """Prograde burns: write rp, e, argp, nu_after, energy_change and the flags (see :func:`_flag`)."""
     energy_change = out[4]
     p = rp * (1.0 + e)
     cos_nu, sin_nu = _cos_sin(nu)
@@ -182,7 +192,7 @@ def _prograde_kernel(rp, e, mu, argp, nu, dv, out):
         e_sin_new = scale_t * (e * sin_nu)
     else:
         bad = ~(q > 0.0) | ~(scale_t != 0.0)
-        np.copyto(out[5], (scale_t < 0.0) & ~bad)
+        _flag(out[5], bad, scale_t)
         factor = np.where(bad, np.nan, scale_t * np.abs(scale_t))
         np.copyto(energy_change, np.nan, where=bad)
         e_sin_new = factor * (e * sin_nu)
@@ -191,7 +201,7 @@ def _prograde_kernel(rp, e, mu, argp, nu, dv, out):
 
 
 def _rtn_kernel(rp, e, mu, argp, nu, radial, transverse, out):
-    """In-plane RTN burns: write rp, e, argp, nu_after, energy_change and the reversal flags."""
+    """In-plane RTN burns: write rp, e, argp, nu_after, energy_change and the flags (see :func:`_flag`)."""
     energy_change = out[4]
     p = rp * (1.0 + e)
     cos_nu, sin_nu = _cos_sin(nu)
@@ -206,7 +216,7 @@ def _rtn_kernel(rp, e, mu, argp, nu, radial, transverse, out):
     scale_t = 1.0 + x
     if not _all_ordinary(q, transverse, vt, x):
         bad = ~(q > 0.0) | ~(scale_t != 0.0)
-        np.copyto(out[5], (scale_t < 0.0) & ~bad)
+        _flag(out[5], bad, scale_t)
         # a reversed burn flies the new plane (turned over) with transverse speed |s| vt
         scale_t = np.where(bad, np.nan, np.abs(scale_t))
         np.copyto(energy_change, np.nan, where=bad)
@@ -261,26 +271,30 @@ def _space_kernel(rp, e, mu, argp, inc, raan, nu, radial, transverse, normal, ou
 
 
 # ---------------------------------------------------------------------- assembling outcomes
-def _reversed_planes(
+def _flagged_planes(
     elements: tuple[np.ndarray, ...], nu: np.ndarray, results: tuple[np.ndarray, ...]
 ) -> tuple[np.ndarray, np.ndarray]:
-    """Turn over the planes of the burns that reversed the motion (``results[5]``).
+    """The planes after the flagged planar burns (``results[5]``): turned over, or NaN.
 
-    Rewrites their ``argp`` in ``results[2]``; returns full ``inc`` and ``raan``.
+    Rewrites the ``argp`` of reversed burns in ``results[2]``; returns full
+    ``inc`` and ``raan`` arrays.
     """
-    reversed_ = results[5]
-    shape = reversed_.shape
-    where = np.nonzero(reversed_)
+    flags = results[5]
+    shape = flags.shape
     _, _, _, argp, inc, raan = (np.broadcast_to(a, shape) for a in elements)
-    u = argp[where] + np.broadcast_to(nu, shape)[where]
-    inc_w = inc[where]
-    sin_i = np.where(inc_w == np.pi, 0.0, np.sin(inc_w))
-    inc_b, raan_b, u_new = turned_plane(
-        inc_w, raan[where], sin_i, np.cos(inc_w), u, np.cos(u), np.sin(u), -1.0, 0.0
-    )
-    results[2][where] = u_new - results[3][where]
     inc_all, raan_all = np.array(inc), np.array(raan)
-    inc_all[where], raan_all[where] = inc_b, raan_b
+    where = np.nonzero(flags == _REVERSED)
+    if where[0].size:
+        u = argp[where] + np.broadcast_to(nu, shape)[where]
+        inc_w = inc[where]
+        sin_i = np.where(inc_w == np.pi, 0.0, np.sin(inc_w))
+        inc_b, raan_b, u_new = turned_plane(
+            inc_w, raan[where], sin_i, np.cos(inc_w), u, np.cos(u), np.sin(u), -1.0, 0.0
+        )
+        results[2][where] = u_new - results[3][where]
+        inc_all[where], raan_all[where] = inc_b, raan_b
+    no_orbit = flags == _NO_ORBIT
+    inc_all[no_orbit] = raan_all[no_orbit] = np.nan
     return inc_all, raan_all
 
 
@@ -312,7 +326,7 @@ def _outcome(
 def _planar_outcome(conic, elements, nu, dv, results) -> BurnOutcome:
     inc, raan = elements[4], elements[5]
     if results[5].any():
-        inc, raan = _reversed_planes(elements, nu, results)
+        inc, raan = _flagged_planes(elements, nu, results)
     return _outcome(conic, nu, dv, *results[:5], inc, raan)
 
 

@@ -697,7 +697,8 @@ def _elements_3d(r_vec: np.ndarray, v_vec: np.ndarray, mu: np.ndarray) -> tuple:
     h = np.hypot(tilt, hz)
     with np.errstate(invalid="ignore", divide="ignore"):
         inc = np.arctan2(tilt, hz)
-        inclined = tilt > 0.0
+        # a tilt in the subnormal range has lost its digits: no node to speak of
+        inclined = tilt > 1e-290 * h
         cos_raan = np.where(inclined, -hy / tilt, 1.0)  # the equatorial convention: node along +x
         sin_raan = np.where(inclined, hx / tilt, 0.0)
         raan = np.where(inclined, np.arctan2(hx, -hy), 0.0)
