@@ -20,9 +20,10 @@ point's new argument of latitude follows from the projections of the radius
 on the new node line.
 
 Conventions (those of :mod:`deltakit.conic`): when the new plane is
-equatorial (its tilt zero, or too small to square), its node is undefined; the old node is kept as the reference
-direction, and the latitude is measured from it in the new direction of
-motion. A turn of exactly zero keeps the old elements bit for bit.
+equatorial (its tilt zero, or too small to square), its node is undefined;
+the old node is kept as the reference direction, and the latitude is
+measured from it in the new direction of motion. A turn of exactly zero
+keeps the old elements bit for bit.
 """
 
 from __future__ import annotations

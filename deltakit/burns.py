@@ -62,7 +62,7 @@ from ._checks import (
 )
 from ._plane_turn import turned_plane, turned_plane_number
 from ._results import Result, quantity
-from .conic import Conic
+from .conic import Conic, _half_angle, _half_angle_number
 from .errors import DomainError
 
 __all__ = ["BurnOutcome", "burn", "burn_at_angle", "burn_prograde", "energy_gain"]
@@ -98,16 +98,8 @@ class BurnOutcome(Result):
 
 # ---------------------------------------------------------------------- shared steps
 def _cos_sin(nu: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """cos and sin of ``nu`` from one tangent of the half angle.
-
-    On NumPy builds with a vectorised ``tan`` this costs a fraction of ``cos``
-    and ``sin`` apart; the two agree with them to an ulp or two over (-pi, pi].
-    """
-    t = np.tan(0.5 * nu)
-    t2 = t * t
-    inverse = 1.0 / (1.0 + t2)
-    cos_nu = (1.0 - t2) * inverse
-    sin_nu = (2.0 * t) * inverse
+    """cos and sin of ``nu`` from one tangent of the half angle (see :func:`deltakit.conic._half_angle`)."""
+    cos_nu, sin_nu, _ = _half_angle(nu)
     return cos_nu, sin_nu
 
 
@@ -168,12 +160,13 @@ def _prograde_kernel(rp, e, mu, argp, nu, dv, out):
     """Prograde burns: write rp, e, argp, nu_after, energy_change and the flags (see :func:`_flag`)."""
     energy_change = out[4]
     p = rp * (1.0 + e)
-    cos_nu, sin_nu = _cos_sin(nu)
+    cos_nu, sin_nu, half_cos2 = _half_angle(nu)
     e_cos = e * cos_nu
-    q = 1.0 + e_cos
-    # v = sqrt(mu/p (1 + 2 e cos nu + e^2))
-    v = q + e_cos
-    v += e * e
+    one_minus_e = 1.0 - e
+    e_half = (2.0 * e) * half_cos2  # e (1 + cos nu), free of cancellation near apoapsis
+    q = one_minus_e + e_half  # 1 + e cos nu
+    # v = sqrt(mu/p ((1 - e)^2 + 4 e cos^2(nu/2))), the sum of two terms >= 0
+    v = one_minus_e * one_minus_e + 2.0 * e_half
     v = v * (mu / p)  # may broadcast up
     np.sqrt(v, out=v)
     x = dv / v
@@ -204,8 +197,8 @@ def _rtn_kernel(rp, e, mu, argp, nu, radial, transverse, out):
     """In-plane RTN burns: write rp, e, argp, nu_after, energy_change and the flags (see :func:`_flag`)."""
     energy_change = out[4]
     p = rp * (1.0 + e)
-    cos_nu, sin_nu = _cos_sin(nu)
-    q = 1.0 + e * cos_nu  # p / r, > 0 where the conic reaches nu
+    cos_nu, sin_nu, half_cos2 = _half_angle(nu)
+    q = (1.0 - e) + (2.0 * e) * half_cos2  # 1 + e cos nu = p / r, > 0 where the conic reaches nu
     root_p_mu = np.sqrt(p / mu)
     vr = e * sin_nu / root_p_mu
     vt = q / root_p_mu
@@ -231,8 +224,8 @@ def _space_kernel(rp, e, mu, argp, inc, raan, nu, radial, transverse, normal, ou
     """Full RTN burns: write rp, e, argp, nu_after, energy_change, inc, raan."""
     energy_change, inc_new, raan_new = out[4], out[5], out[6]
     p = rp * (1.0 + e)
-    cos_nu, sin_nu = _cos_sin(nu)
-    q = 1.0 + e * cos_nu
+    cos_nu, sin_nu, half_cos2 = _half_angle(nu)
+    q = (1.0 - e) + (2.0 * e) * half_cos2
     root_p_mu = np.sqrt(p / mu)
     vr = e * sin_nu / root_p_mu
     vt = q / root_p_mu
@@ -542,13 +535,6 @@ def burn_at_angle(conic: Conic, nu: Any, dv: Any, angle: Any = 0.0, *, reference
 # The same steps as the kernels above, with math on Python floats: a scalar call
 # costs microseconds, not the set-up of a dozen arrays. Results agree with the
 # array path to rounding (tests/test_burns.py checks it on random inputs).
-def _half_angle_cos_sin(nu: float) -> tuple[float, float]:
-    t = math.tan(0.5 * nu)
-    t2 = t * t
-    inverse = 1.0 / (1.0 + t2)
-    return (1.0 - t2) * inverse, (2.0 * t) * inverse
-
-
 def _number_outcome(
     conic: Conic,
     nu: float,
@@ -590,10 +576,12 @@ def _prograde_number(conic: Conic, nu: Any, dv: Any) -> BurnOutcome:
     dv = finite_number(dv, "dv", "m/s")
     rp, e, mu, argp, inc, raan = conic._numbers
     p = rp * (1.0 + e)
-    cos_nu, sin_nu = _half_angle_cos_sin(nu)
+    cos_nu, sin_nu, half_cos2 = _half_angle_number(nu)
     e_cos = e * cos_nu
-    q = 1.0 + e_cos
-    v = math.sqrt((q + e_cos + e * e) * (mu / p))
+    one_minus_e = 1.0 - e
+    e_half = (2.0 * e) * half_cos2
+    q = one_minus_e + e_half
+    v = math.sqrt((one_minus_e * one_minus_e + 2.0 * e_half) * (mu / p))
     x = dv / v
     energy_change = dv * (v + 0.5 * dv)
     scale_t = 1.0 + x
@@ -617,8 +605,8 @@ def _burn_number(conic: Conic, nu: Any, radial: Any, transverse: Any, normal: An
     normal = finite_number(normal, "normal", "m/s")
     rp, e, mu, argp, inc, raan = conic._numbers
     p = rp * (1.0 + e)
-    cos_nu, sin_nu = _half_angle_cos_sin(nu)
-    q = 1.0 + e * cos_nu
+    cos_nu, sin_nu, half_cos2 = _half_angle_number(nu)
+    q = (1.0 - e) + (2.0 * e) * half_cos2
     root_p_mu = math.sqrt(p / mu)
     vr = e * sin_nu / root_p_mu
     vt = q / root_p_mu
