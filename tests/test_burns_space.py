@@ -168,20 +168,26 @@ def test_energy_change_is_the_difference_of_orbit_energies(rp, e, argp, inc, nu,
 
 @given(rp=radii, e=st.floats(0.0, 0.95), argp=angles, nu=angles, radial=components, transverse=components)
 def test_normal_zero_in_the_space_kernel_equals_the_planar_kernel(rp, e, argp, nu, radial, transverse):
-    # normal=0.0 (a scalar) takes the planar kernel of the planar versions; an
-    # array of zeros goes through the 3-D kernel: the two agree to 1e-15.
+    # normal=0.0 (a scalar) takes the planar steps of the planar versions (here
+    # the scalar path, with math.tan); an array of zeros goes through the 3-D
+    # kernel: the two agree to 1e-15, or an ulp or two.
     before = Conic(rp, e, MU, argp)
     assume(_reachable(before, nu))
     planar = burn(before, nu, radial, transverse)
     spatial = burn(before, nu, radial, transverse, np.zeros(1))
     for name in ("rp", "e"):
         a, b = float(getattr(planar.after, name)), float(getattr(spatial.after, name)[0])
-        assert a == pytest.approx(b, rel=1e-15, abs=1e-15, nan_ok=True), name
-    for a, b in ((planar.after.argp, spatial.after.argp[0]), (planar.nu_after, spatial.nu_after[0])):
-        assume(np.isfinite(a))
+        assert a == pytest.approx(b, rel=3e-15, abs=1e-15, nan_ok=True), name
+    assume(np.isfinite(planar.nu_after))
+    # the burn point's argument of latitude agrees always; periapsis (argp, nu_after)
+    # only where there is one (a circle's is a convention, down to the sign of a zero)
+    pairs = [(planar.after.argp + planar.nu_after, spatial.after.argp[0] + spatial.nu_after[0])]
+    if float(planar.after.e) > 1e-12:
+        pairs += [(planar.after.argp, spatial.after.argp[0]), (planar.nu_after, spatial.nu_after[0])]
+    for a, b in pairs:
         assert abs(math.remainder(float(a) - float(b), 2 * math.pi)) <= 2e-15 * max(1.0, abs(float(a)))
     assert spatial.after.inc[0] == planar.after.inc
-    assert planar.energy_change == pytest.approx(float(spatial.energy_change[0]), rel=1e-15, abs=1e-15)
+    assert planar.energy_change == pytest.approx(float(spatial.energy_change[0]), rel=3e-15, abs=1e-15)
 
 
 @given(
