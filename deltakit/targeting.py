@@ -17,9 +17,9 @@ Conventions
   the burn point, a periapsis above ``r cos gamma`` (the closest approach of
   the straight line along the velocity), a period whose semi-major axis is
   below ``r / 2``, a point a hyperbola never reaches. Where the burn point is
-  already an apsis (``gamma = 0``) and the target is its own radius, the
-  answer is the least burn: none if the point is already that apsis,
-  otherwise the burn to the circular speed.
+  already an apsis (``gamma = 0``, to 1e-15) and the target is its own radius
+  (to 4 ulp), the answer is the least burn: none if the point is already that
+  apsis, otherwise the burn to the circular speed.
 * Broadcasts like a ufunc; one orbit of plain numbers takes a scalar path
   written with :mod:`math` (same checks, messages and results).
 
@@ -45,7 +45,7 @@ from ._checks import (
     positive_number,
     scalar_or_array,
 )
-from .conic import Conic
+from .conic import Conic, _half_angle, _half_angle_number
 from .errors import DomainError
 
 __all__ = ["burn_to"]
@@ -128,17 +128,25 @@ def burn_to(
     rp0, e, mu = (np.asarray(x) for x in conic._elements()[:3])
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         p = rp0 * (1.0 + e)
-        q = 1.0 + e * np.cos(nu)
+        _, sin_nu, half_cos2 = _half_angle(nu)
+        q = (1.0 - e) + (2.0 * e) * half_cos2  # 1 + e cos nu, as Conic computes it
         reachable = q > 0.0
         r = p / q
         scale = np.sqrt(mu / p)
-        vr, vt = scale * e * np.sin(nu), scale * q
+        vr, vt = scale * e * sin_nu, scale * q
         v2 = vr * vr + vt * vt
         sin2 = vr * vr / v2  # sin^2 of the flight-path angle
         w2 = _target_speed_squared(kind, value, r, sin2, mu, v2)
         dv = (w2 - v2) / (np.sqrt(w2) + np.sqrt(v2))  # w - v without cancellation
         dv = np.where(reachable & (w2 > 0.0), dv, np.nan)
     return scalar_or_array(dv)
+
+
+#: The burn point counts as an apsis when |sin(flight-path angle)| is below 1e-15
+#: (at nu = pi the sine of the float pi is 1.2e-16, not 0).
+_APSIS_SIN2 = 1e-30
+#: ... and a target counts as the radius of the burn point within 4 ulp.
+_SAME_RADIUS = 4.0 * np.finfo(float).eps
 
 
 def _target_speed_squared(kind: str, value: Any, r: Any, sin2: Any, mu: Any, v2: Any) -> Any:
@@ -149,29 +157,31 @@ def _target_speed_squared(kind: str, value: Any, r: Any, sin2: Any, mu: Any, v2:
         a = np.cbrt(mu * (value / (2.0 * np.pi)) ** 2)
         return mu * (2.0 / r - 1.0 / a)
     reach = value - r  # >= 0 for an apoapsis, <= 0 for a periapsis
-    general = 2.0 * mu * value * reach / (r * (reach * (value + r) + r * r * sin2))
+    denominator = reach * (value + r) + r * r * sin2
+    general = 2.0 * mu * value * reach / (r * denominator)
+    apsis = sin2 <= _APSIS_SIN2
     at_apsis = 2.0 * mu * value / (r * (value + r))  # gamma = 0: the general form with reach cancelled
-    circular = mu / r
+    own = apsis & (np.abs(reach) <= _SAME_RADIUS * r)  # the burn point is the target apsis already
+    w2 = np.where(apsis, at_apsis, general)
     if kind == "ra":
-        w2 = np.where(sin2 == 0.0, at_apsis, general)
-        w2 = np.where((sin2 == 0.0) & (reach == 0.0), np.minimum(v2, circular), w2)
-        return np.where(reach >= 0.0, w2, np.nan)
-    w2 = np.where(sin2 == 0.0, at_apsis, general)
-    w2 = np.where((sin2 == 0.0) & (reach == 0.0), np.maximum(v2, circular), w2)
-    # a periapsis at or above r cos(gamma) is not reached: the denominator is not positive there
-    return np.where((reach <= 0.0) & ((sin2 == 0.0) | (reach * (value + r) + r * r * sin2 < 0.0)), w2, np.nan)
+        w2 = np.where(own, np.minimum(v2, mu / r), w2)
+        return np.where(own | (reach >= 0.0), w2, np.nan)
+    w2 = np.where(own, np.maximum(v2, mu / r), w2)
+    # a periapsis at or above r cos(gamma) is not reached: the denominator is not negative there
+    return np.where(own | ((reach <= 0.0) & (apsis | (denominator < 0.0))), w2, np.nan)
 
 
 def _burn_to_number(numbers: tuple[float, ...], nu: float, kind: str, value: float) -> float:
     """:func:`burn_to` for one orbit and one burn point, with :mod:`math`."""
     rp0, e, mu = numbers[:3]
     p = rp0 * (1.0 + e)
-    q = 1.0 + e * math.cos(nu)
+    _, sin_nu, half_cos2 = _half_angle_number(nu)
+    q = (1.0 - e) + (2.0 * e) * half_cos2
     if not q > 0.0:
         return math.nan
     r = p / q
     scale = math.sqrt(mu / p)
-    vr, vt = scale * e * math.sin(nu), scale * q
+    vr, vt = scale * e * sin_nu, scale * q
     v2 = vr * vr + vt * vt
     sin2 = vr * vr / v2
     if kind == "vinf":
@@ -182,13 +192,14 @@ def _burn_to_number(numbers: tuple[float, ...], nu: float, kind: str, value: flo
     else:
         reach = value - r
         denominator = reach * (value + r) + r * r * sin2
-        if (kind == "ra" and reach < 0.0) or (
-            kind == "rp" and (reach > 0.0 or (sin2 != 0.0 and denominator >= 0.0))
-        ):
-            return math.nan
-        if sin2 == 0.0 and reach == 0.0:
+        apsis = sin2 <= _APSIS_SIN2
+        if apsis and abs(reach) <= _SAME_RADIUS * r:
             w2 = min(v2, mu / r) if kind == "ra" else max(v2, mu / r)
-        elif sin2 == 0.0:
+        elif kind == "ra" and reach < 0.0:
+            return math.nan
+        elif kind == "rp" and (reach > 0.0 or not (apsis or denominator < 0.0)):
+            return math.nan
+        elif apsis:
             w2 = 2.0 * mu * value / (r * (value + r))
         else:
             w2 = 2.0 * mu * value * reach / (r * denominator)
