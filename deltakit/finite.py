@@ -27,8 +27,9 @@ Conventions
 * ``loss`` is a delta-v (m/s): ``dv`` minus the impulse at ``nu_center``
   that would do what the arc did. For the in-plane laws that impulse is along
   the velocity (against it for ``"retrograde"``) and gives the same energy
-  change; for ``"normal"`` and ``"antinormal"`` it is along the normal and
-  turns the plane by the same angle. The loss is positive when the arc does
+  change; for ``"normal"`` and ``"antinormal"`` it is the pure plane change
+  (the velocity turned at constant speed, ``2 v_t sin(turn / 2)``) that turns
+  the plane by the same angle. The loss is positive when the arc does
   worse than the impulse, the rule near periapsis; an arc centred near
   apoapsis spends part of its propellant where the vehicle is faster than at
   the centre, so its loss can be slightly negative.
@@ -111,9 +112,9 @@ class ArcOutcome(Result):
         Specific orbital energy gained over the whole manoeuvre, J/kg
         (negative for a braking arc).
     ideal_energy_change : ndarray or numpy scalar
-        What the impulse ``dv`` at ``nu_center`` in the steering direction would
-        give: ``v dv + dv^2 / 2`` along the velocity, ``-v dv + dv^2 / 2``
-        against it, ``dv^2 / 2`` along the normal, J/kg.
+        What the impulsive ideal at ``nu_center`` would give: ``v dv + dv^2 / 2``
+        for ``dv`` along the velocity, ``-v dv + dv^2 / 2`` against it, 0 for a
+        plane change (normal steering turns the velocity, it does no work), J/kg.
     loss : ndarray or numpy scalar
         ``dv`` minus the impulse at ``nu_center`` that does what the arc did
         (see the module notes), m/s.
@@ -448,15 +449,16 @@ def _impulse_equivalent(steering, speed, dv, energy_change, before, nu_center, a
     """The ideal impulse's energy change, and the impulse at the centre doing what the arc did."""
     if steering in ("normal", "antinormal"):
         rp, e, mu, argp, inc, raan = before
-        # the plane turned by the angle between the normals; a normal impulse N at
-        # the centre turns it by atan(N / v_transverse)
+        # the plane turned by the angle between the normals; the impulsive ideal is the
+        # pure plane change at the centre, the transverse velocity turned at constant
+        # speed: 2 v_t sin(turn / 2), no energy change (a normal thrust does no work)
         w_before = np.stack(_normal_components(inc, raan, 0.0), axis=-1)
         w_after = np.stack(_normal_components(after[3], after[4], 0.0), axis=-1)
         turn = np.arctan2(
             np.linalg.norm(np.cross(w_before, w_after), axis=-1), np.sum(w_before * w_after, -1)
         )
         transverse = np.sqrt(mu / (rp * (1.0 + e))) * (1.0 + e * np.cos(nu_center))
-        return 0.5 * dv * dv, transverse * np.tan(turn)
+        return np.zeros_like(dv), 2.0 * transverse * np.sin(0.5 * turn)
     if steering == "retrograde":
         # -v x + x^2/2 = dE: x = -2 dE / (v + sqrt(v^2 + 2 dE)), free of cancellation
         root = np.sqrt(speed * speed + 2.0 * energy_change)
