@@ -26,18 +26,22 @@ from .orbits import (
     update_conic,
     update_transfer,
 )
+from .space import Conic3DArtists, conic_points_3d, draw_conic_3d, update_conic_3d
 from .waterfall import WaterfallArtists, plot_budget_waterfall, update_budget_waterfall
 
 __all__ = [
     "COLOURS",
     "BurnArtists",
+    "Conic3DArtists",
     "ConicArtists",
     "TransferArtists",
     "WaterfallArtists",
     "burn_at_angle",
     "conic_points",
+    "conic_points_3d",
     "draw_burn",
     "draw_conic",
+    "draw_conic_3d",
     "draw_transfer",
     "energy_gain_curve",
     "plot_budget_waterfall",
@@ -45,6 +49,7 @@ __all__ = [
     "update_budget_waterfall",
     "update_burn",
     "update_conic",
+    "update_conic_3d",
     "update_energy_gain",
     "update_transfer",
 ]
