@@ -263,6 +263,15 @@ def _space_kernel(rp, e, mu, argp, inc, raan, nu, radial, transverse, normal, ou
     np.subtract(u_new, out[3], out=out[2])
 
 
+def _magnitude_kernel(radial, transverse, normal, out):
+    """|dv| of RTN components."""
+    magnitude = out[0]
+    np.multiply(radial, radial, out=magnitude)
+    magnitude += transverse * transverse
+    magnitude += normal * normal
+    np.sqrt(magnitude, out=magnitude)
+
+
 # ---------------------------------------------------------------------- assembling outcomes
 def _flagged_planes(
     elements: tuple[np.ndarray, ...], nu: np.ndarray, results: tuple[np.ndarray, ...]
@@ -409,7 +418,7 @@ def burn(
         results = blockwise(_rtn_kernel, (*elements[:4], nu, radial, transverse), 5, flags=True)
         return _planar_outcome(conic, elements, nu, np.hypot(radial, transverse), results)
     results = blockwise(_space_kernel, (*elements, nu, radial, transverse, normal), 7)
-    dv = np.sqrt(radial * radial + transverse * transverse + normal * normal)
+    (dv,) = blockwise(_magnitude_kernel, (radial, transverse, normal), 1)  # no full-size temporaries
     return _outcome(conic, nu, dv, *results)
 
 
