@@ -20,7 +20,7 @@ import numpy as np
 __all__ = ["BLOCK", "blockwise"]
 
 #: Cases per block: the temporaries of one block stay in the CPU cache.
-BLOCK = 32768
+BLOCK = 16384
 
 
 def blockwise(
