@@ -63,6 +63,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ._checks import (
+    NUMBER_TYPES,
     finite,
     finite_number,
     is_number,
@@ -79,6 +80,7 @@ from .errors import DomainError
 __all__ = ["Conic", "elements_from_state"]
 
 _TWO_PI = 2.0 * np.pi
+_INF = math.inf
 _FIELDS = ("rp", "e", "mu", "argp", "inc", "raan")
 #: Eccentricities up to this are rounding noise of a circular state: e = 0 there.
 _CIRCULAR = 4.0 * np.finfo(float).eps
@@ -145,15 +147,37 @@ class Conic(Result):
         inc: ArrayLike = 0.0,
         raan: ArrayLike = 0.0,
     ) -> None:
-        if is_number(rp, e, mu, argp, inc, raan):  # one orbit of plain numbers: no arrays at all
-            self._set_numbers(
-                positive_number(rp, "rp", "m"),
-                nonnegative_number(e, "e"),
-                positive_number(mu, "mu", "m^3/s^2"),
-                finite_number(argp, "argp", "rad"),
-                _inclination_number(inc),
-                finite_number(raan, "raan", "rad"),
-            )
+        numbers = NUMBER_TYPES
+        if (
+            type(rp) in numbers
+            and type(e) in numbers
+            and type(mu) in numbers
+            and type(argp) in numbers
+            and type(inc) in numbers
+            and type(raan) in numbers
+        ):  # one orbit of plain numbers: no arrays at all
+            try:
+                values = (float(rp), float(e), float(mu), float(argp), float(inc), float(raan))
+            except OverflowError:  # an int beyond a float: the checks below say which
+                values = (math.nan,) * 6
+            x_rp, x_e, x_mu, x_argp, x_inc, x_raan = values
+            if not (
+                0.0 < x_rp < _INF
+                and 0.0 <= x_e < _INF
+                and 0.0 < x_mu < _INF
+                and -_INF < x_argp < _INF
+                and 0.0 <= x_inc <= math.pi
+                and -_INF < x_raan < _INF
+            ):  # something breaks a rule: the helpers raise its message
+                values = (
+                    positive_number(rp, "rp", "m"),
+                    nonnegative_number(e, "e"),
+                    positive_number(mu, "mu", "m^3/s^2"),
+                    finite_number(argp, "argp", "rad"),
+                    _inclination_number(inc),
+                    finite_number(raan, "raan", "rad"),
+                )
+            self._set_numbers(*values)
             return
         self._store(
             (
