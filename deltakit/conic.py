@@ -480,11 +480,9 @@ class Conic(Result):
         >>> Conic.circular(7000e3, 3.986e14).normal.tolist()
         [0.0, -0.0, 1.0]
         """
-        sin_i, cos_i = _sin_cos_inclination(np.asarray(self.inc))
-        raan = np.asarray(self.raan)
-        # + 0.0 turns the -0.0 of an equatorial orbit into 0.0
-        components = np.broadcast_arrays(sin_i * np.sin(raan) + 0.0, 0.0 - sin_i * np.cos(raan), cos_i)
-        return np.stack(components, axis=-1)
+        return np.stack(
+            np.broadcast_arrays(*_unit_normal(np.asarray(self.inc), np.asarray(self.raan))), axis=-1
+        )
 
     @property
     def nodes(self) -> tuple[Any, Any]:
@@ -770,6 +768,16 @@ def _half_angle_number(nu: float) -> tuple[float, float, float]:
 def _sin_cos_inclination(inc: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """sin and cos of the inclination, with sin exactly 0 at inc = pi (np.sin(pi) is 1.2e-16)."""
     return np.where(inc == np.pi, 0.0, np.sin(inc)), np.cos(inc)
+
+
+def _unit_normal(inc: Any, raan: Any) -> tuple[Any, Any, Any]:
+    """Components of the unit normal ``(sin i sin raan, -sin i cos raan, cos i)`` of planes.
+
+    Exact for the planar (+z) and the retrograde equatorial (-z) orbit; the
+    ``+ 0.0`` turns an equatorial orbit's -0.0 into 0.0.
+    """
+    sin_i, cos_i = _sin_cos_inclination(inc)
+    return sin_i * np.sin(raan) + 0.0, 0.0 - sin_i * np.cos(raan), cos_i
 
 
 def _plane_to_inertial(inc: np.ndarray, raan: np.ndarray):

@@ -59,7 +59,7 @@ from numpy.typing import ArrayLike
 from ._checks import finite, instance_of, nonnegative, positive, require, scalar_or_array
 from ._results import Result, quantity
 from ._rk853 import integrate
-from .conic import Conic, _elements_3d, _plane_to_inertial, elements_from_state
+from .conic import Conic, _elements_3d, _plane_to_inertial, _unit_normal, elements_from_state
 from .constants import G0
 from .errors import DomainError
 from .kepler import propagate
@@ -246,15 +246,10 @@ def _burn(conic_elements, nu_center, thrust, ve, mass_end, propellant, steering)
     to_inertial = _plane_to_inertial(inc, raan)
     r_in, v_in = to_inertial(px, py), to_inertial(pvx, pvy)
     if steering not in _IN_PLANE:  # the out-of-plane part along the old normal
-        normal = np.stack(_normal_components(inc, raan, zero), axis=-1)
+        normal = np.stack(np.broadcast_arrays(*_unit_normal(inc, raan), zero)[:3], axis=-1)
         r_in = r_in + pz[:, None] * normal
         v_in = v_in + pvz[:, None] * normal
     return r_in, v_in, energy_gain, plane
-
-
-def _normal_components(inc, raan, like):
-    sin_i = np.where(inc == np.pi, 0.0, np.sin(inc))
-    return (sin_i * np.sin(raan) + like, -sin_i * np.cos(raan) + like, np.cos(inc) + like)
 
 
 def _next_elements(conic_elements, r_in, v_in, plane, steering):
@@ -452,8 +447,8 @@ def _impulse_equivalent(steering, speed, dv, energy_change, before, nu_center, a
         # the plane turned by the angle between the normals; the impulsive ideal is the
         # pure plane change at the centre, the transverse velocity turned at constant
         # speed: 2 v_t sin(turn / 2), no energy change (a normal thrust does no work)
-        w_before = np.stack(_normal_components(inc, raan, 0.0), axis=-1)
-        w_after = np.stack(_normal_components(after[3], after[4], 0.0), axis=-1)
+        w_before = np.stack(np.broadcast_arrays(*_unit_normal(inc, raan)), axis=-1)
+        w_after = np.stack(np.broadcast_arrays(*_unit_normal(after[3], after[4])), axis=-1)
         turn = np.arctan2(
             np.linalg.norm(np.cross(w_before, w_after), axis=-1), np.sum(w_before * w_after, -1)
         )

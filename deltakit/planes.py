@@ -47,7 +47,7 @@ from numpy.typing import ArrayLike
 from ._checks import finite, instance_of, scalar_or_array
 from ._plane_turn import turned_plane
 from ._results import Result, quantity
-from .conic import Conic, _inclination, _sin_cos_inclination, _wrap
+from .conic import Conic, _inclination, _sin_cos_inclination, _unit_normal, _wrap
 from .targeting import burn_to
 from .transfers import _combined
 
@@ -113,10 +113,6 @@ class InclinationChange(Result):
     raan: Any = quantity("rad")
 
 
-def _normal(sin_i: Any, cos_i: Any, raan: Any) -> tuple[Any, Any, Any]:
-    return sin_i * np.sin(raan), -sin_i * np.cos(raan), cos_i
-
-
 def plane_change_burns(
     conic: Conic,
     inc: ArrayLike,
@@ -175,9 +171,8 @@ def plane_change_burns(
     target = {k: v for k, v in (("ra", ra), ("rp", rp), ("period", period), ("vinf", vinf)) if v is not None}
     _, _, _, argp, inc_old, raan_old = conic._elements()
     sin1, cos1 = _sin_cos_inclination(inc_old)
-    sin2, cos2 = _sin_cos_inclination(inc_new)
-    w1 = _normal(sin1, cos1, raan_old)
-    w2 = _normal(sin2, cos2, raan_new)
+    w1 = _unit_normal(inc_old, raan_old)
+    w2 = _unit_normal(inc_new, raan_new)
     d = (w1[1] * w2[2] - w1[2] * w2[1], w1[2] * w2[0] - w1[0] * w2[2], w1[0] * w2[1] - w1[1] * w2[0])
     sin_turn = np.sqrt(d[0] * d[0] + d[1] * d[1] + d[2] * d[2])
     turn = np.arctan2(sin_turn, w1[0] * w2[0] + w1[1] * w2[1] + w1[2] * w2[2])

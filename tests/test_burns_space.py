@@ -305,3 +305,19 @@ def test_scalar_outcome_of_a_burn_that_leaves_no_angular_momentum_is_nan():
     out = burn(circle, 0.0, radial=10.0, transverse=-v)
     assert np.isnan(out.after.rp) and np.isnan(out.nu_after) and np.isnan(out.energy_change)
     assert out.dv == pytest.approx(math.hypot(10.0, v))
+
+
+@given(v=st.floats(0.0, 2e4), dv=st.floats(-3e4, 3e4))
+def test_energy_gain_scalar_path_equals_array_path(v, dv):
+    one = energy_gain(v, dv)
+    assert isinstance(one, np.float64)
+    assert one == energy_gain(np.array([v]), np.array([dv]))[0]
+
+
+@pytest.mark.parametrize("arguments", [(-1.0, 1.0), (1.0, math.inf), (math.nan, 1.0)])
+def test_energy_gain_paths_raise_the_same_errors(arguments):
+    with pytest.raises(DomainError) as scalar:
+        energy_gain(*arguments)
+    with pytest.raises(DomainError) as array:
+        energy_gain(*(np.asarray(x) for x in arguments))
+    assert str(scalar.value) == str(array.value)
