@@ -39,7 +39,7 @@ from deltakit.constants import EARTH
 
 N = 1_000_000
 LOOP_N = 20_000
-BLOCK = 32768  # cases per block of the hand-written versions: their temporaries stay in cache
+BLOCK = 16384  # cases per block of the hand-written versions: their temporaries stay in cache
 FUSED_TARGET = 1.5
 
 
