@@ -19,7 +19,7 @@ Missions
     science orbit.
 ``CINDERWREN``
     A Jupiter flyby probe that burns deep in Jupiter's well to leave faster.
-``QUILLMERE``
+``LARKSPAN``
     An Earth relay satellite that must turn its orbit into a new plane
     (inclination and node) with a small tank: where, when, and at what cost.
 
@@ -48,13 +48,13 @@ __all__ = [
     "LUNAR_ORBIT_ALTITUDE",
     "MISSIONS",
     "MOON_DISTANCE",
-    "QUILLMERE",
-    "QUILLMERE_ORIENTATION",
-    "QUILLMERE_TARGET_PLANE",
+    "LARKSPAN",
+    "LARKSPAN_ORIENTATION",
+    "LARKSPAN_TARGET_PLANE",
     "RUSTLINE",
     "Mission",
     "Vehicle",
-    "quillmere_orbit",
+    "larkspan_orbit",
 ]
 
 #: Mean Earth-Moon distance (semi-major axis of the lunar orbit), m.
@@ -264,21 +264,21 @@ MISSIONS: dict[str, Mission] = {m.name: m for m in (HALYARD, RUSTLINE, CINDERWRE
 LUNAR_ORBIT_ALTITUDE: float = 100e3
 
 # ---------------------------------------------------------------------- a mission in space
-#: Quillmere's working orbit in space (invented): argument of perigee, inclination
-#: and node, rad, of the 500 x 26,000 km orbit of :data:`QUILLMERE`.
-QUILLMERE_ORIENTATION: dict[str, float] = {
+#: Larkspan's working orbit in space (invented): argument of perigee, inclination
+#: and node, rad, of the 500 x 26,000 km orbit of :data:`LARKSPAN`.
+LARKSPAN_ORIENTATION: dict[str, float] = {
     "argp": float(np.radians(200.0)),
     "inc": float(np.radians(28.5)),
     "raan": float(np.radians(40.0)),
 }
-#: The plane Quillmere must move to (invented): inclination and node, rad.
-QUILLMERE_TARGET_PLANE: tuple[float, float] = (float(np.radians(32.0)), float(np.radians(45.0)))
+#: The plane Larkspan must move to (invented): inclination and node, rad.
+LARKSPAN_TARGET_PLANE: tuple[float, float] = (float(np.radians(32.0)), float(np.radians(45.0)))
 
-QUILLMERE = Mission(
-    name="Quillmere",
+LARKSPAN = Mission(
+    name="Larkspan",
     body=EARTH,
     vehicle=Vehicle(
-        name="Quillmere relay",
+        name="Larkspan relay",
         dry_mass=780.0,
         propellant_mass=140.0,
         isp=230.0,
@@ -289,26 +289,26 @@ QUILLMERE = Mission(
     apoapsis_altitude=26_000e3,
     vinf=0.0,
     story=(
-        "Quillmere relays data from a 500 x 26,000 km orbit inclined 28.5 deg. A new ground "
+        "Larkspan relays data from a 500 x 26,000 km orbit inclined 28.5 deg. A new ground "
         "station needs it in a plane of 32 deg whose node lies 5 deg further east, and, while "
         "it is at it, a perigee 300 km higher. The analyst must say where on the orbit to turn "
         "the plane, when the vehicle gets there, whether the small tank suffices, and what the "
         "220 N thrusters lose against the impulsive ideal."
     ),
 )
-MISSIONS[QUILLMERE.name] = QUILLMERE
+MISSIONS[LARKSPAN.name] = LARKSPAN
 
 
-def quillmere_orbit():  # -> Conic; imported lazily to keep this module light
-    """Quillmere's working orbit in space (:data:`QUILLMERE` oriented by :data:`QUILLMERE_ORIENTATION`).
+def larkspan_orbit():  # -> Conic; imported lazily to keep this module light
+    """Larkspan's working orbit in space (:data:`LARKSPAN` oriented by :data:`LARKSPAN_ORIENTATION`).
 
     Examples
     --------
     >>> import numpy as np
-    >>> from deltakit.demo import quillmere_orbit
-    >>> round(float(np.degrees(quillmere_orbit().inc)), 1)
+    >>> from deltakit.demo import larkspan_orbit
+    >>> round(float(np.degrees(larkspan_orbit().inc)), 1)
     28.5
     """
     from .conic import Conic
 
-    return Conic.from_apsides(QUILLMERE.rp, QUILLMERE.ra, QUILLMERE.body.mu, **QUILLMERE_ORIENTATION)
+    return Conic.from_apsides(LARKSPAN.rp, LARKSPAN.ra, LARKSPAN.body.mu, **LARKSPAN_ORIENTATION)

@@ -20,7 +20,7 @@
 # > are invented for demonstration; the bodies and their constants are real and cited in
 # > `deltakit.constants`. Defer to the mission's verified tools, local rules and licensed practice.
 #
-# **Mission (invented):** the *Quillmere* relay flies a 500 x 26,000 km Earth orbit inclined 28.5°,
+# **Mission (invented):** the *Larkspan* relay flies a 500 x 26,000 km Earth orbit inclined 28.5°,
 # its ascending node at 40°. A new ground station needs it in a plane inclined 32° whose node lies
 # 5° further east, and a perigee 300 km higher would cut the drag on its solar arrays. Its tank holds
 # 140 kg of hydrazine. Where on the orbit should it turn the plane, when does it get there, does the
@@ -38,10 +38,10 @@ np.set_printoptions(precision=4, suppress=True)
 print(demo.CAUTION)
 
 # %%
-mission = demo.QUILLMERE
+mission = demo.LARKSPAN
 relay = mission.vehicle
-orbit = demo.quillmere_orbit()
-inc_new, raan_new = demo.QUILLMERE_TARGET_PLANE
+orbit = demo.larkspan_orbit()
+inc_new, raan_new = demo.LARKSPAN_TARGET_PLANE
 ve = relay.exhaust_velocity
 print(mission.story)
 low, high = (orbit.rp - mission.body.radius) / km, (orbit.ra - mission.body.radius) / km
@@ -98,7 +98,7 @@ handles, labels = ax.get_legend_handles_labels()
 keep = [i for i, text in enumerate(labels) if text not in ("ascending node", "periapsis") or i < 3]
 ax.legend([handles[i] for i in keep], [labels[i] for i in keep], loc="upper left", fontsize=8)
 ax.view_init(elev=22, azim=-60)
-ax.set_title("Quillmere: where the old orbit meets the new plane", fontsize=10)
+ax.set_title("Larkspan: where the old orbit meets the new plane", fontsize=10)
 plt.show()
 
 # %% [markdown]
