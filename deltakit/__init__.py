@@ -71,8 +71,20 @@ _NAMES: dict[str, str] = {
     "burn_energy": "propulsion",
     "EnergySplit": "propulsion",
     "propulsive_efficiency": "propulsion",
-    # budgets
+    # budgets, vehicles, margins, staging and dispersions
     "Budget": "budget",
+    "BudgetLine": "budget",
+    "SystemUsage": "budget",
+    "PropulsionSystem": "vehicle",
+    "Stage": "vehicle",
+    "MarginPolicy": "margins",
+    "optimal_staging": "staging",
+    "StagingSplit": "staging",
+    "disperse": "dispersions",
+    "Normal": "dispersions",
+    "Uniform": "dispersions",
+    "Triangular": "dispersions",
+    "report": "reports",
     # finite burns and Kepler's equation
     "thrust_arc": "finite",
     "ArcOutcome": "finite",
@@ -86,6 +98,16 @@ _NAMES: dict[str, str] = {
     "true_anomaly_from_mean": "kepler",
     "time_of_flight": "kepler",
     "propagate": "kepler",
+    # between the planets (needs the `planets` extra; maps also the `scale` extra)
+    "epoch": "timescales",
+    "planet_state": "ephemeris",
+    "lambert": "lambert_solver",
+    "LambertSolution": "lambert_solver",
+    "lambert_time_of_flight": "lambert_solver",
+    "transfer_map": "windows",
+    "transfer_pair": "windows",
+    "TransferPair": "windows",
+    "add_transfer": "windows",
     # trade-study sweeps (needs the `scale` extra)
     "sweep": "sweeps",
     "save_sweep": "sweeps",

@@ -7,7 +7,8 @@ then computes. Two paths, one set of rules and messages:
   :func:`as_float`) turns any array-like into a float array and checks it with
   a few whole-array reductions, never a Python loop over elements;
 * the scalar fast path (:func:`is_number`, :func:`finite_number`,
-  :func:`positive_number`, :func:`nonnegative_number`) checks one plain number
+  :func:`positive_number`, :func:`nonnegative_number`,
+  :func:`nonzero_number`) checks one plain number
   (``float``, ``int``, ``numpy.float64``) in a few hundred nanoseconds, and
   raises exactly the array path's error when the number breaks a rule.
 
@@ -42,6 +43,7 @@ __all__ = [
     "nonnegative",
     "nonnegative_number",
     "nonzero",
+    "nonzero_number",
     "positive",
     "positive_number",
     "require",
@@ -50,15 +52,25 @@ __all__ = [
 
 #: Types the scalar fast path takes as they are (``bool`` is not among them).
 NUMBER_TYPES = frozenset({float, int, np.float64})
+#: The band of magnitudes the scalar fast path takes: ``BAND[0] <= |x| <= BAND[1]``, or 0.
+#: Products and quotients of up to six such numbers stay inside the normal float
+#: range, so a formula on plain floats can neither over- nor underflow there.
+BAND = (1e-50, 1e50)
 
 _INF = math.inf
+_LOW, _HIGH = BAND
 _ENDS_IN_NUMBER = re.compile(r"[0-9.]$")
 
 
 def is_number(*values: Any) -> bool:
-    """True when every value is a plain real number the scalar fast path takes."""
-    for value in values:
-        if type(value) not in NUMBER_TYPES:
+    """True when every value is a plain real number the scalar fast path takes.
+
+    Plain: ``float``, ``int`` or ``numpy.float64`` (not ``bool``), and of a
+    magnitude in :data:`BAND` or zero. Anything else (an array, a quantity, NaN,
+    1e300, text) takes the array path, which checks and handles every value.
+    """
+    for x in values:
+        if type(x) not in NUMBER_TYPES or not (_LOW <= x <= _HIGH or -_HIGH <= x <= -_LOW or x == 0.0):
             return False
     return True
 
@@ -184,9 +196,8 @@ def as_float(value: Any, name: str, unit: str = "") -> np.ndarray:
     try:
         return np.asarray(array, dtype=np.float64)
     except OverflowError:
-        raise DomainError(
-            f"`{name}` holds an integer too large for a float (more than about 1.8e308)"
-        ) from None
+        what = "is" if array.ndim == 0 else "holds an integer"  # one number: the scalar path's words
+        raise DomainError(f"`{name}` {what} too large for a float (more than about 1.8e308)") from None
     except (TypeError, ValueError) as err:
         raise _refuse(name, value, "something else:") from err
 
@@ -227,6 +238,7 @@ def nonzero(value: Any, name: str, unit: str = "") -> np.ndarray:
 
 # ---------------------------------------------------------------------- scalar fast path
 def _as_python_float(value: Any, name: str) -> float:
+    # (the helpers below skip this call for a float, the common case: it is the hot path)
     try:
         return float(value)
     except OverflowError:
@@ -235,7 +247,7 @@ def _as_python_float(value: Any, name: str) -> float:
 
 def finite_number(value: Any, name: str, unit: str = "") -> float:
     """One plain number (see :func:`is_number`) as a float, checked finite."""
-    x = _as_python_float(value, name)
+    x = value if type(value) is float else _as_python_float(value, name)
     if -_INF < x < _INF:
         return x
     finite(x, name, unit)  # raises the array path's message
@@ -244,7 +256,7 @@ def finite_number(value: Any, name: str, unit: str = "") -> float:
 
 def positive_number(value: Any, name: str, unit: str = "") -> float:
     """One plain number as a float, checked finite and > 0."""
-    x = _as_python_float(value, name)
+    x = value if type(value) is float else _as_python_float(value, name)
     if 0.0 < x < _INF:
         return x
     positive(x, name, unit)
@@ -253,10 +265,19 @@ def positive_number(value: Any, name: str, unit: str = "") -> float:
 
 def nonnegative_number(value: Any, name: str, unit: str = "") -> float:
     """One plain number as a float, checked finite and >= 0."""
-    x = _as_python_float(value, name)
+    x = value if type(value) is float else _as_python_float(value, name)
     if 0.0 <= x < _INF:
         return x
     nonnegative(x, name, unit)
+    raise AssertionError("unreachable")
+
+
+def nonzero_number(value: Any, name: str, unit: str = "") -> float:
+    """One plain number as a float, checked non-zero and not NaN (``inf`` allowed, as :func:`nonzero`)."""
+    x = value if type(value) is float else _as_python_float(value, name)
+    if x != 0.0 and x == x:
+        return x
+    nonzero(x, name, unit)
     raise AssertionError("unreachable")
 
 

@@ -19,6 +19,9 @@ Missions
     science orbit.
 ``CINDERWREN``
     A Jupiter flyby probe that burns deep in Jupiter's well to leave faster.
+``OCHREWING``
+    A Mars orbiter with its own kick stage: leaves a low Earth orbit, crosses
+    to Mars in a real opportunity (DE421 dates) and brakes into an ellipse.
 ``LARKSPAN``
     An Earth relay satellite that must turn its orbit into a new plane
     (inclination and node) with a small tank: where, when, and at what cost.
@@ -39,20 +42,24 @@ from dataclasses import dataclass
 import numpy as np
 
 from ._text import CAUTION as _CAUTION
-from .constants import EARTH, G0, JUPITER, MARS, CentralBody
+from .constants import EARTH, G0, JUPITER, MARS, MOON, CentralBody
 
 __all__ = [
     "CAUTION",
     "CINDERWREN",
     "HALYARD",
-    "LUNAR_ORBIT_ALTITUDE",
-    "MISSIONS",
-    "MOON_DISTANCE",
     "LARKSPAN",
     "LARKSPAN_ORIENTATION",
     "LARKSPAN_TARGET_PLANE",
+    "LUNAR_ORBIT_ALTITUDE",
+    "MISSIONS",
+    "MOON_DISTANCE",
+    "OCHREWING",
+    "OCHREWING_CAPTURE_ALTITUDES",
+    "QUILLWORT",
     "RUSTLINE",
     "Mission",
+    "StagedLanding",
     "Vehicle",
     "larkspan_orbit",
 ]
@@ -262,6 +269,167 @@ MISSIONS: dict[str, Mission] = {m.name: m for m in (HALYARD, RUSTLINE, CINDERWRE
 
 #: Halyard's target: a circular orbit this high above the Moon (invented), m.
 LUNAR_ORBIT_ALTITUDE: float = 100e3
+
+
+#: Ochrewing's capture orbit about Mars (invented): periapsis and apoapsis altitudes, m.
+OCHREWING_CAPTURE_ALTITUDES: tuple[float, float] = (400e3, 33_000e3)
+
+OCHREWING = Mission(
+    name="Ochrewing",
+    body=EARTH,
+    vehicle=Vehicle(
+        name="Ochrewing orbiter and kick stage",
+        dry_mass=1_650.0,
+        propellant_mass=6_100.0,
+        isp=326.0,
+        thrust=9_000.0,
+        note="a Mars orbiter whose own stage leaves Earth orbit and brakes at Mars (one shared tank)",
+    ),
+    periapsis_altitude=400e3,
+    apoapsis_altitude=400e3,
+    vinf=3_000.0,
+    story=(
+        "Ochrewing waits in a 400 km circular Earth orbit and must leave for Mars with its own "
+        "engine, then brake into a 400 km x 33,000 km orbit there, all from one 6.1 t tank. The "
+        "analyst asks which of the next Mars opportunities the tank affords, on which dates, "
+        "and what budget the chosen pair of dates leaves."
+    ),
+)
+MISSIONS[OCHREWING.name] = OCHREWING
+
+
+@dataclass(frozen=True)
+class StagedLanding:
+    """An invented two-stage delivery: a carrier stage takes a lander to orbit around a body and lets it go.
+
+    The carrier (a stage with its own engine and thrusters) flies the
+    departure from a circular parking orbit, the mid-course corrections and
+    the capture into a low circular orbit, then releases the lander; the
+    lander (engine and thrusters of its own) de-orbits, lands, and unloads
+    its cargo. Masses in kg, specific impulses in s, altitudes in m.
+
+    Examples
+    --------
+    >>> from deltakit.demo import QUILLWORT
+    >>> b = QUILLWORT.budget()
+    >>> list(b.systems), list(b.stages)
+    (['lander engine', 'lander thrusters', 'carrier engine', 'carrier thrusters'], ['carrier'])
+    >>> b.closes
+    True
+    """
+
+    name: str
+    departure: CentralBody
+    target: CentralBody
+    parking_altitude: float
+    orbit_altitude: float
+    periapsis_altitude: float  # of the de-orbit ellipse, where powered descent starts
+    arrival_vinf: float
+    carrier_dry: float
+    carrier_propellant: float
+    carrier_isp: float
+    carrier_thruster_propellant: float
+    carrier_thruster_isp: float
+    lander_dry: float
+    cargo: float
+    lander_propellant: float
+    lander_isp: float
+    lander_thruster_propellant: float
+    lander_thruster_isp: float
+    residual: float
+    descent_loss: float  # planning allowance for gravity and steering losses, fraction of the descent
+    story: str = ""
+
+    def burns(self) -> dict[str, float]:
+        """The nominal delta-v of each burn, m/s (two-body formulas of deltakit)."""
+        from .departure import capture_burn
+        from .transfers import hohmann
+        from .twobody import vis_viva
+
+        parking = self.departure.radius + self.parking_altitude
+        orbit = self.target.radius + self.orbit_altitude
+        low = self.target.radius + self.periapsis_altitude
+        ellipse = 0.5 * (orbit + low)
+        circular = float(vis_viva(orbit, orbit, self.target.mu))
+        deorbit = circular - float(vis_viva(orbit, ellipse, self.target.mu))
+        return {
+            "departure": float(hohmann(parking, MOON_DISTANCE, self.departure.mu).burns[0]),
+            "capture": float(capture_burn(orbit, self.arrival_vinf, self.target.mu)),
+            "de-orbit": deorbit,
+            "powered descent": float(vis_viva(low, ellipse, self.target.mu)),
+        }
+
+    def budget(self, policy=None):  # -> Budget; imported lazily to keep this module light
+        """The staged budget of the mission, margins from ``policy`` (default deltakit's study policy)."""
+        from .budget import Budget
+        from .margins import STUDY_POLICY
+
+        policy = STUDY_POLICY if policy is None else policy
+        g0 = G0
+        dv = self.burns()
+        b = Budget(
+            name=f"{self.name} carrier and lander",
+            dry_mass=self.lander_dry + self.cargo,
+            dry_maturity="new design",
+            policy=policy,
+        )
+        b.stage("carrier", self.carrier_dry, maturity="modified")
+        b.system("lander engine", self.lander_isp * g0, self.lander_propellant, self.residual)
+        b.system("lander thrusters", self.lander_thruster_isp * g0, self.lander_thruster_propellant)
+        b.system(
+            "carrier engine", self.carrier_isp * g0, self.carrier_propellant, self.residual, stage="carrier"
+        )
+        b.system(
+            "carrier thrusters",
+            self.carrier_thruster_isp * g0,
+            self.carrier_thruster_propellant,
+            stage="carrier",
+        )
+        b.add("departure burn", dv["departure"], system="carrier engine", category="deterministic")
+        b.add("mid-course corrections", 18.0, system="carrier thrusters", category="statistical")
+        b.add("capture into low orbit", dv["capture"], system="carrier engine", category="deterministic")
+        b.add("carrier attitude control", 6.0, system="carrier thrusters", category="attitude control")
+        b.drop_stage("release the lander", "carrier")
+        b.add("de-orbit", dv["de-orbit"], category="deterministic")
+        b.add("powered descent", dv["powered descent"] * (1.0 + self.descent_loss), category="deterministic")
+        b.add("hover and touchdown", 45.0, category="statistical")
+        b.add("lander attitude control", 12.0, system="lander thrusters", category="attitude control")
+        b.jettison("unload the cargo", self.cargo)
+        return b
+
+
+#: An invented delivery to the Moon: the Quillwort carrier takes a lander from a 300 km Earth
+#: orbit to a 100 km lunar orbit and lets it go; the lander lands 240 kg of cargo.
+QUILLWORT = StagedLanding(
+    name="Quillwort",
+    departure=EARTH,
+    target=MOON,
+    parking_altitude=300e3,
+    orbit_altitude=100e3,
+    periapsis_altitude=15e3,
+    arrival_vinf=820.0,
+    carrier_dry=610.0,
+    carrier_propellant=8900.0,
+    carrier_isp=322.0,
+    carrier_thruster_propellant=110.0,
+    carrier_thruster_isp=226.0,
+    lander_dry=560.0,
+    cargo=240.0,
+    lander_propellant=1250.0,
+    lander_isp=316.0,
+    lander_thruster_propellant=30.0,
+    lander_thruster_isp=224.0,
+    residual=0.015,
+    descent_loss=0.12,
+    story=(
+        "Quillwort must put 240 kg of cargo on the Moon. A carrier stage flies the departure from a "
+        "300 km Earth orbit and the capture into a 100 km lunar orbit, then lets the lander go; the "
+        "lander de-orbits, flies a powered descent and lands. The review asks whether the budget "
+        "closes with the project's margins, how likely it is to close once engines, masses and "
+        "corrections disperse, and what drives the spread."
+    ),
+)
+
 
 # ---------------------------------------------------------------------- a mission in space
 #: Larkspan's working orbit in space (invented): argument of perigee, inclination

@@ -29,7 +29,7 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import finite_number, is_number, positive, positive_number, scalar_or_array
+from ._checks import broadcast_shape, finite_number, is_number, positive, positive_number, scalar_or_array
 from .transfers import _check_angle, _combined
 
 __all__ = ["EDELBAUM_ANGLE_LIMIT", "edelbaum"]
@@ -72,11 +72,12 @@ def edelbaum(v1: ArrayLike, v2: ArrayLike, angle: ArrayLike) -> Any:
         v2 = positive_number(v2, "v2", "m/s")
         angle = finite_number(angle, "angle", "rad")
         if 0.0 <= angle <= math.pi:
-            stretched = 0.5 * math.pi * min(angle, EDELBAUM_ANGLE_LIMIT)
-            half = math.sin(0.5 * stretched)
-            difference = v1 - v2
-            return np.float64(math.sqrt(difference * difference + 4.0 * v1 * v2 * half * half))
+            return np.float64(_combined(math, v1, v2, 0.5 * math.pi * min(angle, EDELBAUM_ANGLE_LIMIT)))
     v1 = positive(v1, "v1", "m/s")
     v2 = positive(v2, "v2", "m/s")
     angle = _check_angle(angle, "angle")
-    return scalar_or_array(_combined(v1, v2, 0.5 * np.pi * np.minimum(angle, EDELBAUM_ANGLE_LIMIT)))
+    broadcast_shape(v1=v1, v2=v2, angle=angle)
+    # in units of the larger speed, so that speeds near the top of the float range do not overflow
+    scale = np.maximum(v1, v2)
+    stretched = 0.5 * np.pi * np.minimum(angle, EDELBAUM_ANGLE_LIMIT)
+    return scalar_or_array(scale * _combined(np, v1 / scale, v2 / scale, stretched))

@@ -44,7 +44,7 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import finite, instance_of, scalar_or_array
+from ._checks import broadcast_shape, finite, instance_of, scalar_or_array
 from ._plane_turn import turned_plane
 from ._results import Result, quantity
 from .conic import Conic, _inclination, _sin_cos_inclination, _unit_normal, _wrap
@@ -168,6 +168,7 @@ def plane_change_burns(
     instance_of(conic, Conic, "conic")
     inc_new = _inclination(inc)
     raan_new = finite(raan, "raan", "rad")
+    broadcast_shape(conic=np.broadcast_to(0.0, conic.shape), inc=inc_new, raan=raan_new)
     target = {k: v for k, v in (("ra", ra), ("rp", rp), ("period", period), ("vinf", vinf)) if v is not None}
     _, _, _, argp, inc_old, raan_old = conic._elements()
     sin1, cos1 = _sin_cos_inclination(inc_old)
@@ -221,7 +222,7 @@ def _burn_at(conic: Conic, nu: np.ndarray, delta: np.ndarray, target: dict[str, 
     ratio = w / v
     with np.errstate(invalid="ignore"):
         alpha = 2.0 * np.arcsin(np.minimum(vt / v * np.abs(half), 1.0))
-    magnitude = _combined(v, w, alpha)
+    magnitude = _combined(np, v, w, alpha)
     radial = (ratio - 1.0) * vr
     transverse = (ratio - 1.0) * vt - 2.0 * ratio * vt * half * half
     return magnitude, radial, transverse, ratio * vt * np.sin(delta)
@@ -267,6 +268,7 @@ def inclination_change_cost(conic: Conic, nu: ArrayLike, inc: ArrayLike) -> Incl
     instance_of(conic, Conic, "conic")
     nu = finite(nu, "nu", "rad")
     target = _inclination(inc)
+    broadcast_shape(conic=np.broadcast_to(0.0, conic.shape), nu=nu, inc=target)
     _, _, _, argp, inc_old, raan_old = conic._elements()
     sin_i, cos_i = _sin_cos_inclination(inc_old)
     u = argp + nu

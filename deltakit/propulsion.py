@@ -9,6 +9,15 @@ Conventions
   direction. The vehicle's starting speed ``v0`` may be negative (moving against
   the thrust); the ejecta leave backwards, at ``v - ve`` (or ``v0 - u``).
 * All functions broadcast like NumPy ufuncs; scalars in give NumPy scalars out.
+  Plain numbers take a scalar fast path with the same checks and results;
+  shapes that do not broadcast raise DomainError naming them.
+* No result here is ever NaN: every valid input has an answer. Extreme but
+  finite inputs (1e300, 1e-300) give the right answer where it fits a double
+  and +-inf where it does not, never a warning.
+* The rocket equation's ``ln(m0 / mf)`` is evaluated as
+  ``log1p((m0 - mf) / mf)``, which keeps its digits for a burn of a
+  millimetre per second (``m0 / mf`` within 1e-12 of 1), and the propellant
+  as ``expm1``, for the same reason.
 
 Energy accounting
 -----------------
@@ -31,7 +40,19 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import finite, nonnegative, positive, require, scalar_or_array
+from ._checks import (
+    broadcast_shape,
+    finite,
+    finite_number,
+    is_number,
+    nonnegative,
+    nonnegative_number,
+    positive,
+    positive_number,
+    require,
+    scalar_or_array,
+)
+from ._evaluate import on_arrays, on_numbers
 from ._results import Result, quantity
 from .constants import G0
 from .errors import DomainError
@@ -45,6 +66,55 @@ __all__ = [
     "burn_energy",
     "propulsive_efficiency",
 ]
+
+_MF_RULE = "<= m0 (the final mass cannot exceed the initial mass)"
+_EJECTED_RULE = "< m_vehicle (some mass must remain after the ejection)"
+
+
+# ---------------------------------------------------------------------- kernels (one for both paths)
+def _exhaust_velocity(m, isp):
+    return isp * G0
+
+
+def _ideal_dv(m, ve, m0, mf):
+    """``ve ln(m0 / mf)`` as ``ve log1p((m0 - mf) / mf)``: exact for m0 close to mf."""
+    return ve * m.log1p((m0 - mf) / mf)
+
+
+def _propellant_from_m0(m, dv, ve, m0):
+    return -m0 * m.expm1(-dv / ve)
+
+
+def _propellant_from_mf(m, dv, ve, mf):
+    return mf * m.expm1(dv / ve)
+
+
+def _ejection(m, m_vehicle, m_ejected, u, v0):
+    m_rest = m_vehicle - m_ejected
+    dv = m_ejected * u / m_rest
+    vehicle = m_rest * dv * (v0 + 0.5 * dv)
+    ejecta = m_ejected * u * (0.5 * u - v0)
+    total = 0.5 * m_ejected * u * u * m_vehicle / m_rest
+    return vehicle, ejecta, total
+
+
+def _burn(m, m0, mf, ve, v0):
+    dv = _ideal_dv(m, ve, m0, mf)
+    vehicle = mf * dv * (v0 + 0.5 * dv)
+    total = 0.5 * (m0 - mf) * ve * ve
+    return vehicle, total - vehicle, total
+
+
+def _efficiency(m, v, ve):
+    ratio = v / ve
+    return 2.0 * ratio / (1.0 + ratio * ratio)
+
+
+def _split(parts: tuple[Any, Any, Any]) -> EnergySplit:
+    if not isinstance(parts[0], np.ndarray):  # scalar path: NumPy scalars already
+        return EnergySplit(*parts)
+    vehicle, ejecta, total = np.broadcast_arrays(*parts)
+    return EnergySplit(scalar_or_array(vehicle), scalar_or_array(ejecta), scalar_or_array(total))
 
 
 @dataclass(frozen=True, repr=False, eq=False)
@@ -76,20 +146,35 @@ def exhaust_velocity(isp: ArrayLike) -> np.floating | np.ndarray:
     isp : array_like, shape (...)
         Specific impulse, s (> 0).
 
+    Returns
+    -------
+    ndarray or numpy scalar
+        m/s. Never NaN.
+
     Examples
     --------
     >>> from deltakit import exhaust_velocity
     >>> round(float(exhaust_velocity(320.0)), 3)
     3138.128
     """
-    isp = positive(isp, "isp", "s")
-    return scalar_or_array(isp * G0)
+    if is_number(isp):
+        return on_numbers(_exhaust_velocity, positive_number(isp, "isp", "s"))
+    return scalar_or_array(on_arrays(_exhaust_velocity, positive(isp, "isp", "s")))
+
+
+def _mass_numbers(m0: Any, mf: Any) -> tuple[float, float]:
+    m0 = positive_number(m0, "m0", "kg")
+    mf = positive_number(mf, "mf", "kg")
+    if mf > m0:
+        require(mf, True, "mf", _MF_RULE, "kg")
+    return m0, mf
 
 
 def _masses(m0: ArrayLike, mf: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     m0 = positive(m0, "m0", "kg")
     mf = positive(mf, "mf", "kg")
-    require(mf, mf > m0, "mf", "<= m0 (the final mass cannot exceed the initial mass)", "kg")
+    broadcast_shape(m0=m0, mf=mf)
+    require(mf, mf > m0, "mf", _MF_RULE, "kg")
     return m0, mf
 
 
@@ -106,15 +191,24 @@ def rocket_dv(ve: ArrayLike, m0: ArrayLike, mf: ArrayLike) -> np.floating | np.n
         Mass after the burn, kg (> 0 and <= m0; a larger ``mf`` raises
         :class:`~deltakit.DomainError` naming ``mf``).
 
+    Returns
+    -------
+    ndarray or numpy scalar
+        m/s, >= 0. Never NaN.
+
     Examples
     --------
     >>> from deltakit import rocket_dv
     >>> round(float(rocket_dv(3000.0, 1000.0, 500.0)), 3)
     2079.442
     """
+    if is_number(ve, m0, mf):
+        ve = positive_number(ve, "ve", "m/s")
+        return on_numbers(_ideal_dv, ve, *_mass_numbers(m0, mf))
     ve = positive(ve, "ve", "m/s")
     m0, mf = _masses(m0, mf)
-    return scalar_or_array(ve * np.log(m0 / mf))
+    broadcast_shape(ve=ve, m0=m0, mf=mf)
+    return scalar_or_array(on_arrays(_ideal_dv, ve, m0, mf))
 
 
 def propellant_mass(
@@ -134,6 +228,13 @@ def propellant_mass(
     m0, mf : array_like, shape (...), optional
         Mass before or after the burn, kg (> 0).
 
+    Returns
+    -------
+    ndarray or numpy scalar
+        Propellant, kg, >= 0 (below ``m0`` when ``m0`` is given). Never NaN;
+        from ``mf`` it is inf where it exceeds the float range (``dv / ve``
+        above about 709).
+
     Examples
     --------
     >>> from deltakit import propellant_mass
@@ -144,13 +245,22 @@ def propellant_mass(
     """
     if (m0 is None) == (mf is None):
         raise DomainError("give exactly one of `m0` (mass before the burn) and `mf` (mass after), in kg")
+    if m0 is not None:
+        name, mass, kernel = "m0", m0, _propellant_from_m0
+    else:
+        name, mass, kernel = "mf", mf, _propellant_from_mf
+    if is_number(dv, ve, mass):
+        return on_numbers(
+            kernel,
+            nonnegative_number(dv, "dv", "m/s"),
+            positive_number(ve, "ve", "m/s"),
+            positive_number(mass, name, "kg"),
+        )
     dv = nonnegative(dv, "dv", "m/s")
     ve = positive(ve, "ve", "m/s")
-    if m0 is not None:
-        m0 = positive(m0, "m0", "kg")
-        return scalar_or_array(-m0 * np.expm1(-dv / ve))
-    mf = positive(mf, "mf", "kg")
-    return scalar_or_array(mf * np.expm1(dv / ve))
+    mass = positive(mass, name, "kg")
+    broadcast_shape(dv=dv, ve=ve, **{name: mass})
+    return scalar_or_array(on_arrays(kernel, dv, ve, mass))
 
 
 def ejection_energy(m_vehicle: ArrayLike, m_ejected: ArrayLike, u: ArrayLike, v0: ArrayLike) -> EnergySplit:
@@ -184,7 +294,7 @@ def ejection_energy(m_vehicle: ArrayLike, m_ejected: ArrayLike, u: ArrayLike, v0
     Returns
     -------
     EnergySplit
-        ``vehicle``, ``ejecta`` and ``total``, J.
+        ``vehicle``, ``ejecta`` and ``total``, J. Never NaN.
 
     Examples
     --------
@@ -198,24 +308,22 @@ def ejection_energy(m_vehicle: ArrayLike, m_ejected: ArrayLike, u: ArrayLike, v0
     >>> float(slow.total), float(fast.total)
     (1.0, 1.0)
     """
+    if is_number(m_vehicle, m_ejected, u, v0):
+        m_vehicle = positive_number(m_vehicle, "m_vehicle", "kg")
+        m_ejected = nonnegative_number(m_ejected, "m_ejected", "kg")
+        if m_ejected >= m_vehicle:
+            require(m_ejected, True, "m_ejected", _EJECTED_RULE, "kg")
+        u = nonnegative_number(u, "u", "m/s")
+        v0 = finite_number(v0, "v0", "m/s")
+        return _split(on_numbers(_ejection, m_vehicle, m_ejected, u, v0))
     m_vehicle = positive(m_vehicle, "m_vehicle", "kg")
     m_ejected = nonnegative(m_ejected, "m_ejected", "kg")
-    require(
-        m_ejected,
-        m_ejected >= m_vehicle,
-        "m_ejected",
-        "< m_vehicle (some mass must remain after the ejection)",
-        "kg",
-    )
+    broadcast_shape(m_vehicle=m_vehicle, m_ejected=m_ejected)
+    require(m_ejected, m_ejected >= m_vehicle, "m_ejected", _EJECTED_RULE, "kg")
     u = nonnegative(u, "u", "m/s")
     v0 = finite(v0, "v0", "m/s")
-    m_rest = m_vehicle - m_ejected
-    dv = m_ejected * u / m_rest
-    vehicle = m_rest * dv * (v0 + 0.5 * dv)
-    ejecta = m_ejected * u * (0.5 * u - v0)
-    total = 0.5 * m_ejected * u * u * m_vehicle / m_rest
-    vehicle, ejecta, total = np.broadcast_arrays(vehicle, ejecta, total)
-    return EnergySplit(scalar_or_array(vehicle), scalar_or_array(ejecta), scalar_or_array(total))
+    broadcast_shape(m_vehicle=m_vehicle, m_ejected=m_ejected, u=u, v0=v0)
+    return _split(on_arrays(_ejection, m_vehicle, m_ejected, u, v0))
 
 
 def burn_energy(m0: ArrayLike, mf: ArrayLike, ve: ArrayLike, v0: ArrayLike) -> EnergySplit:
@@ -240,6 +348,11 @@ def burn_energy(m0: ArrayLike, mf: ArrayLike, ve: ArrayLike, v0: ArrayLike) -> E
     v0 : array_like, shape (...)
         Speed at the start of the burn, m/s, signed along the thrust.
 
+    Returns
+    -------
+    EnergySplit
+        ``vehicle``, ``ejecta`` and ``total``, J. Never NaN.
+
     Examples
     --------
     >>> from deltakit import burn_energy
@@ -249,15 +362,15 @@ def burn_energy(m0: ArrayLike, mf: ArrayLike, ve: ArrayLike, v0: ArrayLike) -> E
     >>> (split.vehicle / 1e6).round(1).tolist()
     [179.3, 4195.8]
     """
+    if is_number(m0, mf, ve, v0):
+        m0, mf = _mass_numbers(m0, mf)
+        ve = positive_number(ve, "ve", "m/s")
+        return _split(on_numbers(_burn, m0, mf, ve, finite_number(v0, "v0", "m/s")))
     m0, mf = _masses(m0, mf)
     ve = positive(ve, "ve", "m/s")
     v0 = finite(v0, "v0", "m/s")
-    dv = ve * np.log(m0 / mf)
-    vehicle = mf * dv * (v0 + 0.5 * dv)
-    total = 0.5 * (m0 - mf) * ve * ve
-    ejecta = total - mf * dv * (v0 + 0.5 * dv)
-    vehicle, ejecta, total = np.broadcast_arrays(vehicle, ejecta, total)
-    return EnergySplit(scalar_or_array(vehicle), scalar_or_array(ejecta), scalar_or_array(total))
+    broadcast_shape(m0=m0, mf=mf, ve=ve, v0=v0)
+    return _split(on_arrays(_burn, m0, mf, ve, v0))
 
 
 def propulsive_efficiency(v: ArrayLike, ve: ArrayLike) -> np.floating | np.ndarray:
@@ -274,6 +387,11 @@ def propulsive_efficiency(v: ArrayLike, ve: ArrayLike) -> np.floating | np.ndarr
     ve : array_like, shape (...)
         Effective exhaust velocity, m/s (> 0).
 
+    Returns
+    -------
+    ndarray or numpy scalar
+        A pure number in [-1, 1]. Never NaN.
+
     Examples
     --------
     >>> from deltakit import propulsive_efficiency
@@ -282,7 +400,9 @@ def propulsive_efficiency(v: ArrayLike, ve: ArrayLike) -> np.floating | np.ndarr
     >>> round(float(propulsive_efficiency(1500.0, 3000.0)), 3)
     0.8
     """
+    if is_number(v, ve):
+        return on_numbers(_efficiency, finite_number(v, "v", "m/s"), positive_number(ve, "ve", "m/s"))
     v = finite(v, "v", "m/s")
     ve = positive(ve, "ve", "m/s")
-    ratio = v / ve
-    return scalar_or_array(2.0 * ratio / (1.0 + ratio * ratio))
+    broadcast_shape(v=v, ve=ve)
+    return scalar_or_array(on_arrays(_efficiency, v, ve))

@@ -22,8 +22,8 @@
 #
 # **Mission (invented):** the *Halyard* tug takes a cargo pallet from a 400 km circular Earth orbit to a
 # 100 km circular lunar orbit. The analyst builds the delta-v budget line by line from the manoeuvre
-# formulas, checks it against the tank, and writes a report in Markdown and LaTeX that carries the
-# derivations of every formula it used.
+# formulas, checks it against the tank, and writes the report in one call (Markdown, self-contained HTML,
+# LaTeX and PDF) that carries the derivations of every formula it used.
 
 # %%
 import matplotlib.pyplot as plt
@@ -114,65 +114,46 @@ sheet
 # %% [markdown]
 # ## The report
 #
-# The report holds the caution, the budget table and the derivation of each formula the budget used,
-# in Markdown (shown here) and as a LaTeX document. Both are written atomically to a folder of their own.
+# One call writes the report: the caution, the budget's tables and mass waterfall, the derivation of each
+# formula the budget used, and the sources of the constants (standard gravity, Earth and Moon). Markdown
+# is shown here; the same call writes the self-contained HTML and, with pdflatex, the PDF. Files are
+# written atomically, and a file that is not one of deltakit's reports is never overwritten.
 
 # %%
-import json
 import os
+import shutil
+import subprocess
 import tempfile
 from pathlib import Path
 
-from deltakit.symbolic import report
-
 used = ["hohmann", "capture_burn", "plane_change", "rocket_equation", "oberth"]
-title = "Halyard delta-v budget"
-derivations_md = report(used, "markdown", title="Derivations used")
-report_md = "\n\n".join([f"# {title}", f"*{demo.CAUTION}*", budget.to_markdown(), derivations_md])
-
-
-def save_text(path: Path, text: str) -> None:
-    # Atomic: a temporary file in the same folder, then a rename over the target.
-    temporary = path.with_name(f".{path.name}.tmp")
-    temporary.write_text(text, encoding="utf-8")
-    os.replace(temporary, path)
-
-
 out = Path(os.environ.get("DELTAKIT_REPORT_DIR") or tempfile.mkdtemp(prefix="halyard-report-"))
 out.mkdir(parents=True, exist_ok=True)
-save_text(out / "halyard_budget.md", report_md)
-budget.save(out / "halyard_budget.json")
-save_text(out / "budget_panel.json", json.dumps(builder.export(), indent=1))
-print(f"written to {out}")
-display(Markdown(report_md))
+formats = ("markdown", "html", "latex") + (("pdf",) if shutil.which("pdflatex") else ())
+written = dk.report(
+    budget,
+    derivations=used,
+    constants=[EARTH, MOON],
+    title="Halyard delta-v budget",
+    fmt=formats,
+    path=out / "halyard_budget",
+    overwrite=True,
+)
+budget.save(out / "halyard_budget.json", overwrite=True)
+for fmt, path in written.items():
+    print(f"{fmt:8s} {path}")
+if "pdf" in written:
+    text = subprocess.run(["pdftotext", str(written["pdf"]), "-"], capture_output=True, text=True).stdout
+    assert f"{float(budget.propellant):.2f}" in text, "the PDF carries the budget totals"
+report_md = written["markdown"].read_text(encoding="utf-8")
+display(Markdown(report_md.split("## Derivations")[0]))
+
+# %% [markdown]
+# The LaTeX source (with the figure beside it) is there for a document of the project's own; the budget's
+# tables alone come from `budget.to_latex()` (each a table with its caption) and `budget.to_markdown()`.
 
 # %%
-import shutil
-import subprocess
-
-latex = report(used, "latex", title=title)
-# Put the budget table (shrunk to the text width) in front of the derivations.
-table = (
-    "\\section*{Budget}\n\\noindent\\resizebox{\\textwidth}{!}{%\n" + budget.to_latex() + "}\n\n"
-    "\\noindent\\emph{" + demo.CAUTION + "}\n\n"
-)
-latex = latex.replace("\\maketitle\n", "\\maketitle\n" + table, 1)
-latex = latex.replace("\\usepackage{amsmath", "\\usepackage{graphicx}\n\\usepackage{amsmath", 1)
-tex = out / "halyard_budget.tex"
-save_text(tex, latex)
-print(latex[:1500])
-if shutil.which("pdflatex"):
-    run = subprocess.run(
-        ["pdflatex", "-interaction=nonstopmode", "-halt-on-error", tex.name],
-        cwd=out,
-        capture_output=True,
-        text=True,
-        timeout=120,
-    )
-    print("pdflatex:", "ok" if run.returncode == 0 else run.stdout[-2000:])
-    assert run.returncode == 0, "the LaTeX report did not compile"
-else:
-    print("pdflatex not found: the .tex file is written but not compiled")
+print(written["latex"].read_text(encoding="utf-8")[:1500])
 
 # %% [markdown]
 # ## Decision

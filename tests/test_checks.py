@@ -8,8 +8,22 @@ import numpy as np
 import pytest
 
 import deltakit as dk
-from deltakit._checks import as_float, finite, nonnegative, positive, require, scalar_or_array
+from deltakit._checks import (
+    as_float,
+    finite,
+    finite_number,
+    is_number,
+    nonnegative,
+    nonnegative_number,
+    nonzero,
+    nonzero_number,
+    positive,
+    positive_number,
+    require,
+    scalar_or_array,
+)
 from deltakit.constants import EARTH
+from deltakit.errors import DomainError
 
 MU = EARTH.mu
 
@@ -131,3 +145,42 @@ def test_scalar_or_array():
     assert isinstance(scalar_or_array(np.asarray(2.0)), np.floating)
     assert isinstance(scalar_or_array(np.array([2.0])), np.ndarray)
     assert isinstance(dk.circular_speed(7e6, MU), np.floating)
+
+
+# ---------------------------------------------------------------------- the scalar fast path's helpers
+@pytest.mark.parametrize("value", [7e6, 7, np.float64(7e6), 0.0, -3.5, 1e-50, 1e50, -1e50])
+def test_is_number_takes_plain_numbers_in_the_band(value):
+    assert is_number(value, 1.0)
+
+
+@pytest.mark.parametrize(
+    "value",
+    [True, np.True_, np.float32(7.0), np.array(7.0), np.array([7.0]), "7000", None, 7 + 0j]
+    + [1e300, 1e-300, -1e300, 1e51, 1e-51, np.nan, np.inf, 10**400],
+)
+def test_is_number_sends_everything_else_to_the_array_path(value):
+    # Not a plain number, or beyond the band where plain-float formulas could
+    # over- or underflow: the array path checks and handles it.
+    assert not is_number(1.0, value)
+
+
+@pytest.mark.parametrize("value", [-1.0, 0.0, -0.0, np.nan, np.inf, -np.inf, 10**400, -5])
+@pytest.mark.parametrize(
+    "fast, slow",
+    [
+        (finite_number, finite),
+        (positive_number, positive),
+        (nonnegative_number, nonnegative),
+        (nonzero_number, nonzero),
+    ],
+)
+def test_number_helpers_raise_the_array_paths_message(fast, slow, value):
+    try:
+        expected = slow(np.asarray(value), "x", "m")
+    except DomainError as error:
+        with pytest.raises(DomainError) as info:
+            fast(value, "x", "m")
+        assert str(info.value) == str(error)
+    else:
+        assert fast(value, "x", "m") == expected
+        assert type(fast(value, "x", "m")) is float

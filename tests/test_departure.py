@@ -4,14 +4,16 @@ from __future__ import annotations
 
 import math
 
+import mpmath
 import numpy as np
 import pytest
+from _rounding import assert_same_to_rounding
 from hypothesis import given
 from hypothesis import strategies as st
 from scipy.integrate import solve_ivp
 
 from deltakit import Conic, DomainError, Flyby, capture_burn, energy_gain, escape_burn, powered_flyby
-from deltakit.constants import EARTH, JUPITER, MARS
+from deltakit.constants import EARTH, JUPITER, MARS, MOON
 
 radii = st.floats(1e6, 1e8)
 excess = st.floats(0.0, 20000.0)
@@ -59,6 +61,25 @@ def test_capture_equals_escape_and_energy_matches(rp, vinf, mu):
     assert added == pytest.approx(0.5 * vinf**2 + 0.5 * mu / rp, rel=1e-12)
 
 
+@pytest.mark.parametrize("ratio", [1.0, 3.0, 1e3, 1e6, 1e9])
+@pytest.mark.parametrize("vinf", [0.0, 1.0, 150.0, 3000.0])
+def test_escape_from_an_elongated_parking_orbit_keeps_its_digits(ratio, vinf):
+    # The exact value of the textbook form sqrt(vinf^2 + 2 mu/rp) - v_park for
+    # these very float inputs, by mpmath at 50 digits. With ra/rp = 1e6 both
+    # speeds agree to 1e-6 of each other: subtracting them in doubles lost
+    # 1.4e-10 (an outside audit); the quotient form keeps a few ulp.
+    rp, mu = EARTH.radius + 300e3, EARTH.mu
+    ra = rp * ratio
+    with mpmath.workdps(50):
+        r_p, r_a, m_u, v = (mpmath.mpf(x) for x in (rp, ra, mu, vinf))
+        hyperbola = mpmath.sqrt(v * v + 2 * m_u / r_p)
+        exact = hyperbola - mpmath.sqrt(2 * m_u * r_a / (r_p * (r_p + r_a)))
+        exact_circle = hyperbola - mpmath.sqrt(m_u / r_p)
+    assert escape_burn(rp, vinf, mu, ra=ra) == pytest.approx(float(exact), rel=2e-15, abs=0.0)
+    assert capture_burn(rp, vinf, mu, ra=ra) == pytest.approx(float(exact), rel=2e-15, abs=0.0)
+    assert capture_burn(rp, vinf, mu) == pytest.approx(float(exact_circle), rel=2e-15, abs=0.0)
+
+
 # ---------------------------------------------------------------- powered flyby
 def test_unpowered_flyby_turn_angle():
     # Curtis, Sec. 8.9 (from memory): the turn angle of an unpowered flyby is
@@ -101,6 +122,41 @@ def test_flyby_capture_and_reversal_are_nan_rest_untouched():
     good = powered_flyby(vinf, rp, dv[[0, 3]], mu)
     np.testing.assert_array_equal(f.vinf_out[[0, 3]], good.vinf_out)
     np.testing.assert_array_equal(f.deflection[[0, 3]], good.deflection)
+
+
+def _exact_flyby(vinf, rp, dv, mu):
+    """Excess speed out, turn and gain of a powered flyby for these float inputs, mpmath at 50 digits."""
+    with mpmath.workdps(50):
+        v, r, d, m = (mpmath.mpf(x) for x in (vinf, rp, dv, mu))
+        vp = mpmath.sqrt(v * v + 2 * m / r)
+        # (vp + dv)^2 - 2 mu / rp, written so that even mpmath does not cancel at vinf = dv = 0
+        v_out = mpmath.sqrt(v * v + d * (2 * vp + d))
+        turn = mpmath.asin(1 / (1 + r * v * v / m)) + mpmath.asin(1 / (1 + r * v_out**2 / m))
+        return float(v_out), float(turn), float(v_out - v - d)
+
+
+@pytest.mark.parametrize("vinf", [0.0, 1e-6, 1e-3, 1.0, 100.0, 5000.0])
+@pytest.mark.parametrize("dv", [0.0, 1e-3, 50.0])
+def test_flyby_turn_near_a_parabola_keeps_its_digits(vinf, dv):
+    # Near a parabola e = 1 + rp vinf^2 / mu is within 1e-14 of 1, and asin(1/e)
+    # loses about half the digits (an outside audit: about sqrt(eps)); the turn
+    # from e - 1 keeps them. Reference: the textbook asin form in mpmath.
+    rp, mu = EARTH.radius + 500e3, EARTH.mu
+    vinf_out, turn, _ = _exact_flyby(vinf, rp, dv, mu)
+    f = powered_flyby(vinf, rp, dv, mu)
+    assert f.deflection == pytest.approx(turn, rel=2e-15, abs=0.0)
+    assert f.vinf_out == pytest.approx(vinf_out, rel=2e-15, abs=0.0)
+
+
+@pytest.mark.parametrize("vinf", [1000.0, 3e4, 1e5])
+@pytest.mark.parametrize("dv", [-0.5, 1e-3, 1.0, 100.0])
+def test_flyby_gain_in_a_shallow_well_keeps_its_digits(vinf, dv):
+    # At the Moon with a fast approach the gain vinf_out - vinf - dv is a small
+    # remainder of dv (1e-4 of it at 100 km/s): it is computed as a difference of
+    # squares over a sum, never by subtracting dv. Reference: mpmath, 50 digits.
+    rp, mu = MOON.radius + 100e3, MOON.mu
+    _, _, gain = _exact_flyby(vinf, rp, dv, mu)
+    assert powered_flyby(vinf, rp, dv, mu).gain == pytest.approx(gain, rel=4e-15, abs=0.0)
 
 
 def _two_body(t, y, mu):
@@ -153,9 +209,11 @@ def test_arrays_equal_loop_of_scalar_calls(rows):
     escapes = escape_burn(rp, vinf, MARS.mu, ra=rp * 3.0)
     for i in range(len(rows)):
         one = powered_flyby(vinf[i], rp[i], dv[i], MARS.mu)
+        # equal to rounding: the turn uses atan2, where math and NumPy may differ in
+        # the last bit, and tiny inputs (1e-127) may be redone in extended precision
         for name in ("vinf_out", "deflection", "gain"):
-            np.testing.assert_array_equal(getattr(many, name)[i], getattr(one, name))
-        assert escapes[i] == escape_burn(rp[i], vinf[i], MARS.mu, ra=rp[i] * 3.0)
+            assert_same_to_rounding(getattr(many, name)[i], getattr(one, name))
+        assert_same_to_rounding(escapes[i], escape_burn(rp[i], vinf[i], MARS.mu, ra=rp[i] * 3.0))
 
 
 def test_types_broadcasting_and_repr():

@@ -2,8 +2,12 @@
 
 from __future__ import annotations
 
+from fractions import Fraction
+
+import mpmath
 import numpy as np
 import pytest
+from _rounding import assert_same_to_rounding
 from hypothesis import given
 from hypothesis import strategies as st
 from scipy.integrate import quad
@@ -53,6 +57,23 @@ def test_rocket_equation_e_folding():
     assert dk.rocket_dv(3000.0, 100.0, 100.0) == 0.0
 
 
+@pytest.mark.parametrize("spent", [1e-12, 1e-9, 1e-3, 1.0, 500.0, 999.0, 999.999])
+def test_rocket_equation_keeps_its_digits_for_tiny_burns(spent):
+    # ln(m0 / mf) for these float masses, by mpmath at 50 digits. With mf within
+    # 1e-12 of m0 the quotient m0 / mf rounds to 1 + 1e-12 +- 1e-16: taking its
+    # log lost four digits (relative error 1e-4); log1p((m0 - mf) / mf) keeps them.
+    m0, ve = 1000.0, 3200.0
+    mf = m0 - spent
+    with mpmath.workdps(50):
+        exact = float(mpmath.mpf(ve) * mpmath.log(mpmath.mpf(m0) / mpmath.mpf(mf)))
+    assert dk.rocket_dv(ve, m0, mf) == pytest.approx(exact, rel=1e-15, abs=0.0)
+    split = dk.burn_energy(m0, mf, ve, 7700.0)
+    with mpmath.workdps(50):
+        dv = mpmath.mpf(exact)
+        vehicle = float(mpmath.mpf(mf) * dv * (mpmath.mpf(7700.0) + dv / 2))
+    assert split.vehicle == pytest.approx(vehicle, rel=4e-15, abs=0.0)
+
+
 @given(ratio=st.floats(0.0, 8.0), ve=exhaust, m=masses)
 def test_propellant_mass_round_trips(ratio, ve, m):
     # Mass ratios up to e^8 (about 3000) cover every real stage; beyond that,
@@ -69,7 +90,9 @@ def test_propellant_mass_round_trips(ratio, ve, m):
 
 def test_propellant_mass_small_delta_v_keeps_precision():
     # expm1 keeps the leading term dm = m0 dv / ve for tiny burns (common practice).
-    assert dk.propellant_mass(1e-9, 3000.0, m0=1000.0) == pytest.approx(1000.0 * 1e-9 / 3000.0, rel=1e-9)
+    assert dk.propellant_mass(1e-9, 3000.0, m0=1000.0) == pytest.approx(
+        1000.0 * 1e-9 / 3000.0, rel=1e-9, abs=0.0
+    )
 
 
 # ---------------------------------------------------------------------- ejection energy
@@ -84,37 +107,48 @@ def test_cart_gains_more_energy_when_moving_fast():
     np.testing.assert_allclose(split.ejecta, split.total - split.vehicle, rtol=1e-15)
 
 
-def _first_principles(m_vehicle, m_ejected, u, v0):
-    """Momentum conservation in the pre-ejection frame, then kinetic energies."""
-    m_rest = m_vehicle - m_ejected
+def _exact_ejection(m_vehicle, m_ejected, u, v0):
+    """Momentum conservation in the lab frame, then kinetic energies, in exact rational arithmetic.
+
+    Every float is an exact rational, so this reference has no rounding at all:
+    no difference of large numbers can cost it a digit, however close ``v_rest``
+    and ``v_ejecta`` lie or however fast the frame moves.
+    """
+    m, m_ej, u, v0 = (Fraction(x) for x in (m_vehicle, m_ejected, u, v0))
+    m_rest = m - m_ej
     v_ejecta = v0 - u
-    v_rest = (m_vehicle * v0 - m_ejected * v_ejecta) / m_rest
-    vehicle = 0.5 * m_rest * (v_rest**2 - v0**2)
-    ejecta = 0.5 * m_ejected * (v_ejecta**2 - v0**2)
+    v_rest = (m * v0 - m_ej * v_ejecta) / m_rest  # total momentum m v0 is kept
+    vehicle = m_rest * (v_rest**2 - v0**2) / 2
+    ejecta = m_ej * (v_ejecta**2 - v0**2) / 2
     return vehicle, ejecta, v_rest - v_ejecta
 
 
 @given(m=masses, f=fractions, u=st.floats(0.0, 1e4), v0=speeds, v1=speeds)
 def test_ejection_total_independent_of_frame_speed(m, f, u, v0, v1):
     m_ej = f * m
-    m_rest = m - m_ej
     a = dk.ejection_energy(m, m_ej, u, v0)
     b = dk.ejection_energy(m, m_ej, u, v1)
-    scale = 0.5 * m_ej * u * u * m / m_rest + 1e-300
-    assert a.total == pytest.approx(b.total, rel=1e-12)
-    # Closed form with u measured in the frame that moved with the whole vehicle
-    # before the ejection (the centre-of-mass frame): 0.5 m_ej u^2 m / m_rest.
-    assert a.total == pytest.approx(0.5 * m_ej * u * u * m / m_rest, rel=1e-12)
-    # The same total with the relative speed w of ejecta and remaining mass:
-    # 0.5 mu_red w^2 with the reduced mass mu_red = m_ej m_rest / m (two-body
-    # kinetic energy in the centre-of-mass frame; common practice).
-    vehicle, ejecta, w = _first_principles(m, m_ej, u, v0)
-    assert a.total == pytest.approx(0.5 * m_ej * m_rest / m * w * w, rel=1e-9)
-    # The split itself, from momentum conservation done here independently.
-    big = scale + 0.5 * m * v0 * v0  # size of the terms that cancel
-    assert abs(a.vehicle - vehicle) <= 1e-9 * big
-    assert abs(a.ejecta - ejecta) <= 1e-9 * big
-    assert a.vehicle + a.ejecta == pytest.approx(a.total, abs=1e-9 * big)
+    vehicle, ejecta, w = _exact_ejection(m, m_ej, u, v0)
+    total = vehicle + ejecta
+    # The books close exactly in the reference: the total is 0.5 m_ej u^2 m / m_rest
+    # (u in the frame that moved with the whole vehicle before the ejection) and
+    # 0.5 mu_red w^2 with the reduced mass mu_red = m_ej m_rest / m and the relative
+    # speed w (two-body kinetic energy in the centre-of-mass frame; common practice).
+    m_rest = Fraction(m) - Fraction(m_ej)
+    assert total == Fraction(m_ej) * Fraction(u) ** 2 * Fraction(m) / m_rest / 2
+    assert total == Fraction(m_ej) * m_rest / Fraction(m) * w * w / 2
+    # deltakit's total: the same whatever the frame speed, and right to rounding
+    # (a product and a quotient of the inputs: a few ulp, and m - m_ej rounded).
+    assert a.total == pytest.approx(b.total, rel=1e-13)
+    assert a.total == pytest.approx(float(total), rel=1e-13)
+    # The split: each share is right to rounding of its own size, which is the
+    # size of its terms (m_rest dv |v0| for the vehicle, m_ej u |v0| for the
+    # ejecta): that is how far a one-ulp change of v0 moves the exact value.
+    # Below the normal range (u of 1e-313 m/s) a few of the tiniest steps are allowed too.
+    dv = m_ej * u / float(m_rest)
+    underflow = 4 * np.finfo(float).smallest_subnormal
+    assert abs(a.vehicle - float(vehicle)) <= 1e-13 * float(m_rest) * dv * (abs(v0) + dv) + underflow
+    assert abs(a.ejecta - float(ejecta)) <= 1e-13 * m_ej * u * (abs(v0) + u) + underflow
 
 
 def test_ejection_vehicle_share_grows_with_speed():
@@ -137,12 +171,21 @@ def test_burn_total_is_half_propellant_ve_squared(m0, f, ve, v0, v1):
     mf = m0 * (1.0 - f)
     a = dk.burn_energy(m0, mf, ve, v0)
     b = dk.burn_energy(m0, mf, ve, v1)
-    expected = 0.5 * (m0 - mf) * ve * ve
-    assert a.total == pytest.approx(expected, rel=1e-12)
-    assert b.total == pytest.approx(expected, rel=1e-12)
-    dv = ve * np.log(m0 / mf)
-    assert a.vehicle == pytest.approx(0.5 * mf * ((v0 + dv) ** 2 - v0**2), rel=1e-9, abs=1e-9 * expected)
-    assert a.vehicle + a.ejecta == pytest.approx(a.total, rel=1e-9, abs=1e-9 * (expected + m0 * v0 * v0))
+    # References at 50 digits (mpmath) from the very float inputs: the rocket
+    # equation's speed gain, then the kinetic energies as a difference of squares,
+    # which 50 digits carry through without loss.
+    with mpmath.workdps(50):
+        m0_, mf_, ve_, v0_ = (mpmath.mpf(x) for x in (m0, mf, ve, v0))
+        dv_ = ve_ * mpmath.log(m0_ / mf_)
+        expected = float((m0_ - mf_) * ve_**2 / 2)
+        vehicle = float(mf_ * ((v0_ + dv_) ** 2 - v0_**2) / 2)
+    dv = float(dv_)
+    assert a.total == pytest.approx(expected, rel=1e-14, abs=0.0)
+    assert b.total == pytest.approx(expected, rel=1e-14, abs=0.0)
+    # The vehicle's share is right to rounding of its terms mf dv |v0| (how far a
+    # one-ulp change of v0 moves it), and the books close to rounding of the largest.
+    assert abs(a.vehicle - vehicle) <= 1e-14 * mf * dv * (abs(v0) + dv)
+    assert abs(a.vehicle + a.ejecta - a.total) <= 1e-15 * max(abs(a.vehicle), abs(a.ejecta), a.total)
 
 
 @pytest.mark.parametrize("v0", [-3000.0, 0.0, 2500.0, 7800.0, 15000.0])
@@ -235,7 +278,8 @@ def test_array_equals_loop_of_scalars(name):
     together = function(*args)
     one_by_one = [function(*(a[i] for a in args)) for i in range(3)]
     assert all(isinstance(x, np.floating) for x in one_by_one)
-    np.testing.assert_array_equal(together, one_by_one)
+    # equal to rounding: the scalar path's math.log1p may differ from np.log1p in the last bit
+    assert_same_to_rounding(together, one_by_one)
 
 
 def test_propellant_mass_array_equals_loop():
@@ -246,7 +290,7 @@ def test_propellant_mass_array_equals_loop():
         together = dk.propellant_mass(dv, ve, **{key: m})
         loop = [dk.propellant_mass(dv[i], ve[i], **{key: m[i]}) for i in range(3)]
         assert all(isinstance(x, np.floating) for x in loop)
-        np.testing.assert_array_equal(together, loop)
+        assert_same_to_rounding(together, loop)
 
 
 @pytest.mark.parametrize("function", [dk.ejection_energy, dk.burn_energy])
@@ -264,7 +308,7 @@ def test_energy_splits_array_equal_loop(function):
             for j in range(3):
                 single = getattr(function(a[j], b[j], c[j], v0[i, 0]), field)
                 assert isinstance(single, np.floating)
-                assert values[i, j] == single
+                assert_same_to_rounding(values[i, j], single)
 
 
 def test_energy_split_is_frozen_and_prints_units():

@@ -212,10 +212,25 @@ def test_markdown_report_of_three_derivations(tmp_path, artifacts):
 
 def test_report_rewrites_a_file_atomically(tmp_path):
     path = tmp_path / "report.md"
-    path.write_text("old", encoding="utf-8")
-    symbolic.report(["plane_change"], path=path)
-    assert path.read_text(encoding="utf-8").startswith("# ")
+    umask = os.umask(0o022)
+    try:
+        symbolic.report(["hohmann"], path=path)
+        symbolic.report(["plane_change"], path=path)  # its own report: replaced
+    finally:
+        os.umask(umask)
+    assert "## Pure plane change" in path.read_text(encoding="utf-8")
     assert [p.name for p in tmp_path.iterdir()] == ["report.md"]  # no temporary file left
+    assert path.stat().st_mode & 0o777 == 0o644  # normal permissions, not owner-only
+
+
+def test_report_refuses_a_foreign_file(tmp_path):
+    path = tmp_path / "notes.md"
+    path.write_text("old notes", encoding="utf-8")
+    with pytest.raises(dk.DomainError, match="refusing to overwrite"):
+        symbolic.report(["plane_change"], path=path)
+    assert path.read_text(encoding="utf-8") == "old notes"
+    symbolic.report(["plane_change"], path=path, overwrite=True)
+    assert path.read_text(encoding="utf-8").startswith("# ")
 
 
 @pytest.mark.parametrize(

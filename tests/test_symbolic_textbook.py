@@ -255,6 +255,33 @@ def test_propulsive_efficiency():
     assert sp.simplify(d.result.subs(v, ve)) == 1
 
 
+def test_c3():
+    # Curtis, 3rd ed., Ch. 2 (hyperbolic trajectories): v_inf^2 = v^2 - 2 mu / r, and
+    # C3 = v_inf^2 (Ch. 8, interplanetary departure; section numbers from memory).
+    d, s = _symbols("c3")
+    r, v, mu = s["r"], s["v"], s["mu"]
+    _assert_same(d.result, v**2 - 2 * mu / r)
+
+
+def test_lambert_time_of_flight():
+    # Izzo 2015 (Celestial Mechanics and Dynamical Astronomy 121), eq. 9 in his
+    # variables: T = [acos(x) - x sqrt(1 - x^2) - asin(lam sqrt(1 - x^2)) + lam y sqrt(1 - x^2)]
+    # / (1 - x^2)^(3/2) with y = sqrt(1 - lam^2 (1 - x^2)); at x = 0 it is the
+    # minimum-energy time acos(lam) + lam sqrt(1 - lam^2) (Izzo's T_00).
+    d, s = _symbols("lambert_time_of_flight")
+    x, lam = s["x"], s["lam"]
+    root = sp.sqrt(1 - x**2)
+    y = sp.sqrt(1 - lam**2 * (1 - x**2))
+    textbook = (sp.acos(x) - x * root - sp.asin(lam * root) + lam * y * root) / root**3
+    for point in (
+        {x: sp.Rational(1, 3), lam: sp.Rational(-1, 2)},
+        {x: sp.Rational(-7, 10), lam: sp.Rational(9, 10)},
+    ):
+        assert abs(float(d.result.subs(point)) - float(textbook.subs(point))) < 1e-13
+    t00 = sp.simplify(d.result.subs(x, 0))
+    assert abs(float(t00.subs(lam, 0.3)) - (np.arccos(0.3) + 0.3 * np.sqrt(1 - 0.09))) < 1e-13
+
+
 @pytest.mark.parametrize("name", symbolic.catalog())
 def test_every_entry_is_checked_here(name):
     # A new catalog entry must come with a textbook check in this file.
@@ -263,7 +290,8 @@ def test_every_entry_is_checked_here(name):
         "plane_change", "combined_plane_change", "escape_burn", "capture_burn",
         "escape_burn_elliptic", "capture_burn_elliptic",
         "powered_flyby", "rocket_equation", "ejection_energy", "burn_energy",
-        "propulsive_efficiency", "normal_burn_inclination", "plane_turn", "edelbaum",
+        "propulsive_efficiency", "c3", "lambert_time_of_flight",
+        "normal_burn_inclination", "plane_turn", "edelbaum",
     }  # fmt: skip
     assert name in checks
 

@@ -196,6 +196,17 @@ def _energy_scale(kw):
     return m * speed**2
 
 
+def _c3(rng):
+    mu, radius = _body(rng, N)
+    r = radius * _u(rng, 1.0, 50.0)
+    return {"r": r, "v": np.sqrt(2.0 * mu / r) * _u(rng, 0.0, 2.0), "mu": mu}
+
+
+def _lambert_tof(rng):
+    # elliptic transfers away from the parabola, where the ellipse form is well conditioned
+    return {"x": _u(rng, -0.95, 0.8), "lam": _u(rng, -0.99, 0.99)}
+
+
 CASES = {
     "vis_viva": (_vis_viva, None),
     "orbital_period": (_period, None),
@@ -215,6 +226,9 @@ CASES = {
     "ejection_energy": (_ejection, None),  # the total is a sum of squares: no cancellation
     "burn_energy": (_burn_energy, None),
     "propulsive_efficiency": (_efficiency, None),
+    # C3 = v^2 - 2 mu/r cancels to near zero just at escape: scale by its larger term
+    "c3": (_c3, lambda kw: kw["v"] ** 2 + 2.0 * kw["mu"] / kw["r"]),
+    "lambert_time_of_flight": (_lambert_tof, None),
     "normal_burn_inclination": (_normal_burn, None),
     "plane_turn": (_plane_turn, None),
     "edelbaum": (_edelbaum, None),

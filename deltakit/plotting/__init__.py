@@ -1,4 +1,4 @@
-"""Plot helpers: orbits, burns, transfers, energy gain and budgets in matplotlib.
+"""Plot helpers: orbits, burns, transfers, energy gain, budgets and dispersions in matplotlib.
 
 Every helper takes the Axes first, keyword-only options after the data, passes
 ``**kwargs`` to one named Axes method, returns the artists it drew, and never
@@ -12,6 +12,7 @@ Results are for preliminary analysis, not for flight operations.
 from __future__ import annotations
 
 from ._style import COLOURS
+from .dispersion import LeftArtists, SensitivityArtists, plot_propellant_left, plot_sensitivity
 from .energy import energy_gain_curve, plot_energy_gain, update_energy_gain
 from .orbits import (
     BurnArtists,
@@ -28,13 +29,17 @@ from .orbits import (
 )
 from .space import Conic3DArtists, conic_points_3d, draw_conic_3d, update_conic_3d
 from .waterfall import WaterfallArtists, plot_budget_waterfall, update_budget_waterfall
+from .windows import TransferMapArtists, map_minimum, plot_transfer_map
 
 __all__ = [
     "COLOURS",
     "BurnArtists",
     "Conic3DArtists",
     "ConicArtists",
+    "LeftArtists",
+    "SensitivityArtists",
     "TransferArtists",
+    "TransferMapArtists",
     "WaterfallArtists",
     "burn_at_angle",
     "conic_points",
@@ -44,8 +49,12 @@ __all__ = [
     "draw_conic_3d",
     "draw_transfer",
     "energy_gain_curve",
+    "map_minimum",
     "plot_budget_waterfall",
     "plot_energy_gain",
+    "plot_propellant_left",
+    "plot_sensitivity",
+    "plot_transfer_map",
     "update_budget_waterfall",
     "update_burn",
     "update_conic",

@@ -14,6 +14,7 @@ from matplotlib.axes import Axes
 from matplotlib.container import BarContainer
 from matplotlib.lines import Line2D
 
+from .._text import escape_mathtext
 from ._style import COLOURS, style_axes
 
 __all__ = ["WaterfallArtists", "budget_masses", "plot_budget_waterfall", "update_budget_waterfall"]
@@ -41,6 +42,15 @@ def budget_masses(budget: Any) -> tuple[list[str], np.ndarray]:
     labels = ["start", *[line.label for line in budget.lines]]
     masses = np.concatenate([[float(budget.m0)], np.asarray(budget.mass_after, dtype=float).reshape(-1)])
     return labels, masses
+
+
+def _spent(budget: Any, masses: np.ndarray) -> np.ndarray:
+    """Propellant of each bar: none at the start, then each line's (a jettison or a docking burns none)."""
+    per_line = getattr(budget, "propellant_per_line", None)
+    if per_line is None:
+        before = np.concatenate([[masses[0]], masses[:-1]])
+        return before - masses
+    return np.concatenate([[0.0], np.asarray(per_line, dtype=float).reshape(-1)])
 
 
 def _mass_readout(labels: list[str], masses: np.ndarray, spent: np.ndarray):
@@ -91,8 +101,7 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
     [1000.0, 904.8]
     """
     labels, masses = budget_masses(budget)
-    before = np.concatenate([[masses[0]], masses[:-1]])
-    spent = before - masses
+    spent = _spent(budget, masses)
     x = np.arange(len(masses))
     kwargs.setdefault("color", COLOURS["vehicle"])
     remaining = ax.bar(x, masses, width, label="mass after the line", **kwargs)
@@ -100,7 +109,10 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
         x, spent, width, bottom=masses, color=COLOURS["exhaust"], alpha=0.85, label="propellant of the line"
     )
     ax.set_xticks(
-        x, labels, rotation=30 if len(labels) > 4 else 0, ha="right" if len(labels) > 4 else "center"
+        x,
+        [escape_mathtext(label) for label in labels],
+        rotation=30 if len(labels) > 4 else 0,
+        ha="right" if len(labels) > 4 else "center",
     )
     ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
     style_axes(ax, ylabel="vehicle mass (kg)")
@@ -126,15 +138,15 @@ def update_budget_waterfall(
     """
     labels, masses = budget_masses(budget)
     if artists is not None and len(artists.remaining) == len(masses):
-        before = np.concatenate([[masses[0]], masses[:-1]])
+        spent = _spent(budget, masses)
         for bar, m in zip(artists.remaining, masses):
             bar.set_height(m)
-        for bar, m, s in zip(artists.spent, masses, before - masses):
+        for bar, m, s in zip(artists.spent, masses, spent):
             bar.set_y(m)
             bar.set_height(s)
-        ax.set_xticks(np.arange(len(labels)), labels)
+        ax.set_xticks(np.arange(len(labels)), [escape_mathtext(label) for label in labels])
         ax.set_ylim(0.0, max(float(masses[0]), 1e-9) * 1.08)
-        ax.format_coord = _mass_readout(labels, masses, before - masses)
+        ax.format_coord = _mass_readout(labels, masses, spent)
         dry_mass = getattr(budget, "dry_mass", None)
         if (artists.dry is None) == (dry_mass is None):
             if artists.dry is not None:

@@ -1,19 +1,27 @@
-"""Several derivations in one report, as Markdown or a LaTeX document."""
+"""Several derivations in one report, as Markdown or a LaTeX document.
+
+For a report that also carries a budget, its dispersion and figures (and
+HTML or PDF), see :func:`deltakit.report`; this one keeps to the formulas.
+Files are written through deltakit's one atomic writer: an existing file is
+replaced only by a derivations report of the same format (recognised by its
+first lines), never a file of someone else's, unless ``overwrite=True``.
+"""
 
 from __future__ import annotations
 
 import os
-import tempfile
 from collections.abc import Iterable
-from pathlib import Path
 
-from .._text import CAUTION
+from .._files import write_atomic
+from .._text import CAUTION, escape_latex, escape_markdown
 from ._registry import derive
-from .derivation import escape_text, text_tex, unit_tex
+from .derivation import Derivation, escape_text, text_tex, unit_tex
 
-__all__ = ["report"]
+__all__ = ["LATEX_MARK", "latex_preamble", "latex_section", "report"]
 
 DISCLAIMER = CAUTION
+#: First line of every LaTeX report deltakit writes (how it knows its own files).
+LATEX_MARK = "% deltakit report"
 
 _PREAMBLE = r"""\documentclass[11pt]{article}
 \usepackage{amsmath,amssymb}
@@ -22,12 +30,39 @@ _PREAMBLE = r"""\documentclass[11pt]{article}
 """
 
 
+def latex_preamble(*packages: str) -> str:
+    """The report's preamble (our mark first), with extra packages."""
+    extra = "".join(f"\\usepackage{{{p}}}\n" for p in packages)
+    return f"{LATEX_MARK}\n{_PREAMBLE}{extra}"
+
+
+def latex_section(d: Derivation, heading: str = "section*") -> str:
+    """One derivation as a LaTeX section: assumptions, symbols, steps and literature."""
+    out = [rf"\{heading}{{{escape_text(d.title)}}}"]
+    out.append(r"\paragraph{Assumptions.}")
+    out.append(r"\begin{itemize}")
+    out.extend(rf"  \item {text_tex(text)}" for text in d.assumptions)
+    out.append(r"\end{itemize}")
+    # the run-in heading gets a line of its own: beside a table it would sit at the table's middle
+    out.append(r"\paragraph{Symbols.}\mbox{}\par")
+    out.append(r"\noindent\begin{tabular}[t]{lp{0.62\textwidth}l}")
+    for info in d.symbols.values():
+        out.append(rf"  ${info.latex}$ & {text_tex(info.meaning)} & ${unit_tex(info.unit)}$ \\")
+    out.append(r"\end{tabular}")
+    out.append(r"\paragraph{Derivation.}")
+    out.append(d.latex(steps=True))
+    if d.references:
+        out.append(r"\noindent Literature: " + escape_text("; ".join(d.references)) + ".")
+    return "\n".join(out)
+
+
 def report(
     names: Iterable[str],
     fmt: str = "markdown",
     *,
     title: str = "Manoeuvre derivations",
     path: str | os.PathLike[str] | None = None,
+    overwrite: bool = False,
 ) -> str:
     """Collect catalog derivations into one report.
 
@@ -39,10 +74,14 @@ def report(
         Markdown with ``$$`` math blocks, or a complete LaTeX document
         (article class, amsmath) that compiles with pdflatex.
     title : str
-        Report heading.
+        Report heading (escaped: it shows as typed).
     path : path-like, optional
-        If given, the report is also written there (atomically: a temporary
-        file in the same folder, then renamed over the target).
+        If given, the report is also written there, atomically, with normal
+        permissions. An existing file that is not a derivations report of
+        this format is refused (:class:`~deltakit.DomainError`) and left as it
+        was, unless ``overwrite=True``.
+    overwrite : bool
+        Replace whatever file is at ``path``.
 
     Returns
     -------
@@ -63,50 +102,38 @@ def report(
         raise ValueError("`names` must be a non-empty list of catalog names")
     derivations = [derive(name) for name in names]
     if fmt == "markdown":
-        parts = [f"# {title}", "", f"*{DISCLAIMER}*", ""]
+        parts = [f"# {escape_markdown(title)}", "", f"*{DISCLAIMER}*", ""]
         parts.extend(d.markdown(level=2) for d in derivations)
         text = "\n".join(parts)
+        same = _is_markdown_report
     elif fmt == "latex":
         text = _latex_document(title, derivations)
+        same = _is_latex_report
     else:
         raise ValueError(f"`fmt` must be 'markdown' or 'latex', not {fmt!r}")
     if path is not None:
-        _write_atomically(Path(path), text)
+        write_atomic(path, text, kind=f"derivations report ({fmt})", same_kind=same, overwrite=overwrite)
     return text
 
 
+def _is_markdown_report(head: bytes) -> bool:
+    lines = head.decode("utf-8", "replace").splitlines()
+    return len(lines) >= 3 and lines[0].startswith("# ") and lines[2] == f"*{DISCLAIMER}*"
+
+
+def _is_latex_report(head: bytes) -> bool:
+    return head.startswith(LATEX_MARK.encode())
+
+
 def _latex_document(title: str, derivations: list) -> str:
-    out = [_PREAMBLE, rf"\title{{{escape_text(title)}}}", r"\date{}", r"\begin{document}", r"\maketitle"]
+    out = [
+        latex_preamble(),
+        rf"\title{{{escape_latex(title)}}}",
+        r"\date{}",
+        r"\begin{document}",
+        r"\maketitle",
+    ]
     out.append(rf"\noindent\emph{{{escape_text(DISCLAIMER)}}}")
-    for d in derivations:
-        out.append(rf"\section*{{{escape_text(d.title)}}}")
-        out.append(r"\paragraph{Assumptions.}")
-        out.append(r"\begin{itemize}")
-        out.extend(rf"  \item {text_tex(text)}" for text in d.assumptions)
-        out.append(r"\end{itemize}")
-        # the run-in heading gets a line of its own: beside a table it would sit at the table's middle
-        out.append(r"\paragraph{Symbols.}\mbox{}\par")
-        out.append(r"\noindent\begin{tabular}[t]{lp{0.62\textwidth}l}")
-        for info in d.symbols.values():
-            out.append(rf"  ${info.latex}$ & {text_tex(info.meaning)} & ${unit_tex(info.unit)}$ \\")
-        out.append(r"\end{tabular}")
-        out.append(r"\paragraph{Derivation.}")
-        out.append(d.latex(steps=True))
-        if d.references:
-            out.append(r"\noindent Literature: " + escape_text("; ".join(d.references)) + ".")
+    out.extend(latex_section(d) for d in derivations)
     out.append(r"\end{document}")
     return "\n".join(out) + "\n"
-
-
-def _write_atomically(path: Path, text: str) -> None:
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8") as stream:
-            stream.write(text)
-            stream.flush()
-            os.fsync(stream.fileno())
-        os.replace(temporary, path)
-    except BaseException:
-        os.unlink(temporary)
-        raise

@@ -1,0 +1,513 @@
+"""Lambert's problem: the conic that joins two positions in a given time.
+
+Method
+------
+The solver follows D. Izzo, "Revisiting Lambert's problem", Celestial
+Mechanics and Dynamical Astronomy 121:1-15 (2015). The geometry is reduced
+to one parameter ``lam`` (``lam**2 = 1 - c/s``, c the chord, s the
+semi-perimeter of the triangle focus-r1-r2) and the time of flight to
+``T = sqrt(2 mu / s**3) * tof``; the unknown ``x`` (``x**2 = 1 - a_min/a``:
+0 is the minimum-energy ellipse, 1 the parabola, above 1 hyperbolas) solves
+``T(x) = T``, with Izzo's initial guesses (his eq. 30) and Householder's
+fourth-order iteration. ``T(x)`` is evaluated three ways as Izzo does:
+Lancaster's expression away from the parabola, Lagrange's near it, and
+Battin's hypergeometric series very near it, where the others lose digits.
+The velocities follow from ``x`` by Izzo's eqs. (11)-(12).
+
+Every case iterates at once on arrays; cases that have converged drop out of
+later iterations, and a bracket kept per case (``T`` is monotonic on each
+branch) turns any step that leaves it into a bisection, so no case can wander
+off its branch.
+
+Conventions
+-----------
+* ``prograde=True`` moves counterclockwise seen from +z of the frame
+  (angular momentum with a positive z component); a transfer plane that
+  contains the z axis then goes the short way (angle below 180 degrees),
+  the long way when ``prograde=False``.
+* ``revolutions=N > 0`` wraps N full turns before arriving. There are then
+  two solutions or none: index 0 of the leading axis is the branch with the
+  smaller semi-major axis (the shorter period), index 1 the larger; both are
+  NaN where the time of flight is below the minimum for N turns.
+* SI units: m, s, m^3/s^2, m/s; vectors on the last axis, shape (..., 3).
+
+Results are for preliminary analysis, not for flight operations.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+from numpy.typing import ArrayLike
+
+from ._checks import broadcast_shape, finite, positive, require
+from ._results import Result, quantity
+from .errors import DomainError
+
+__all__ = ["LambertSolution", "lambert", "lambert_time_of_flight", "transfer_plane"]
+
+#: Below this sine of the transfer angle the plane of the transfer is undefined (0 or 180 degrees).
+PLANE_TOLERANCE = 1.0e-12
+
+_BATTIN = 0.01  # |x - 1| below which Battin's series gives T(x)
+_LAGRANGE = 0.2  # |x - 1| below which Lagrange's expression gives T(x)
+_MAX_STEPS = 40
+_STEP_TOLERANCE = 1.0e-13  # |dx| of a bisection that ends the iteration
+_FINAL_STEP = 1.0e-5  # a Householder step this short leaves an error near (1e-5)^4: the last one (as Izzo)
+
+
+@dataclass(frozen=True, repr=False, eq=False)
+class LambertSolution(Result):
+    """Velocities at both ends of a Lambert transfer.
+
+    Attributes
+    ----------
+    v1 : ndarray, shape (..., 3), or (2, ..., 3) for revolutions > 0
+        Velocity just after leaving ``r1``, m/s.
+    v2 : ndarray, same shape
+        Velocity on arriving at ``r2``, m/s.
+    """
+
+    v1: Any = quantity("m/s")
+    v2: Any = quantity("m/s")
+
+
+# ---------------------------------------------------------------------- T(x) and its derivatives
+def _hypergeometric(z: np.ndarray) -> np.ndarray:
+    """Gauss's 2F1(3, 1; 5/2; z), the series of Battin's form (Izzo 2015, eq. 20), |z| small here."""
+    total = np.ones_like(z)
+    term = np.ones_like(z)
+    for j in range(60):
+        term = term * (3.0 + j) * (1.0 + j) / (2.5 + j) * z / (j + 1.0)
+        total = total + term
+        if np.all(np.abs(term) <= 1.0e-17 * np.abs(total)):
+            break
+    return total
+
+
+def _tof_lancaster(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
+    """T(x) by Lancaster's expression (Izzo 2015, eqs. 18 and 19 with the N pi term)."""
+    energy = x * x - 1.0  # E < 0 ellipse, E > 0 hyperbola
+    z = np.sqrt(1.0 + lam * lam * energy)
+    y = np.sqrt(np.abs(energy))
+    g = x * z - lam * energy
+    elliptic = energy < 0.0
+    # each transcendental only where its branch applies (ufunc `where=`): half the work of both
+    d = np.empty_like(x)
+    np.arccos(np.clip(g, -1.0, 1.0), out=d, where=elliptic)
+    if turns:
+        np.add(d, turns * np.pi, out=d, where=elliptic)
+    hyperbolic = ~elliptic
+    if hyperbolic.any():
+        with np.errstate(divide="ignore", invalid="ignore"):
+            np.log(y * (z - lam * x) + g, out=d, where=hyperbolic)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return (x - lam * z - d / y) / energy
+
+
+def _tof_lagrange(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
+    """T(x) by Lagrange's expression, for x near 1 (Izzo 2015, eq. 9)."""
+    with np.errstate(invalid="ignore", divide="ignore"):
+        a = 1.0 / (1.0 - x * x)
+        ellipse = a > 0.0
+        alpha_e = 2.0 * np.arccos(np.clip(x, -1.0, 1.0))
+        beta_e = 2.0 * np.arcsin(np.sqrt(np.clip(lam * lam / np.abs(a), 0.0, 1.0))) * np.sign(lam)
+        alpha_h = 2.0 * np.arccosh(np.maximum(x, 1.0))
+        beta_h = 2.0 * np.arcsinh(np.sqrt(lam * lam / np.abs(a))) * np.sign(lam)
+        root = np.abs(a) * np.sqrt(np.abs(a))
+        t_ellipse = (
+            root * ((alpha_e - np.sin(alpha_e)) - (beta_e - np.sin(beta_e)) + 2.0 * np.pi * turns) / 2.0
+        )
+        t_hyperbola = root * ((beta_h - np.sinh(beta_h)) - (alpha_h - np.sinh(alpha_h))) / 2.0
+    return np.where(ellipse, t_ellipse, t_hyperbola)
+
+
+def _tof_battin(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
+    """T(x) by Battin's series, for x very near 1 (Izzo 2015, eq. 20)."""
+    energy = x * x - 1.0
+    rho = np.abs(energy)
+    z = np.sqrt(1.0 + lam * lam * energy)
+    eta = z - lam * x
+    s1 = 0.5 * (1.0 - lam - x * eta)
+    q = 4.0 / 3.0 * _hypergeometric(s1)
+    t = (eta * eta * eta * q + 4.0 * lam * eta) / 2.0
+    if turns > 0:
+        with np.errstate(divide="ignore"):
+            t = t + turns * np.pi / (rho * np.sqrt(rho))
+    return t
+
+
+def _tof(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
+    """Non-dimensional time of flight T(x) for N = ``turns`` revolutions."""
+    t = _tof_lancaster(x, lam, turns)
+    distance = np.abs(x - 1.0)
+    near = distance < _LAGRANGE
+    if near.any():
+        index = np.flatnonzero(near)
+        xs, ls, ds = x.ravel()[index], lam.ravel()[index], distance.ravel()[index]
+        series = ds < _BATTIN
+        t_near = np.where(series, _tof_battin(xs, ls, turns), _tof_lagrange(xs, ls, turns))
+        t = t.copy()
+        t.ravel()[index] = t_near
+    return t
+
+
+def _derivatives(x: np.ndarray, t: np.ndarray, lam: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """dT/dx, d2T/dx2, d3T/dx3 at x where T(x) = t (Izzo 2015, eq. 22)."""
+    lam2 = lam * lam
+    lam3 = lam2 * lam
+    one_minus_x2 = 1.0 - x * x
+    y = np.sqrt(1.0 - lam2 * one_minus_x2)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        inverse = 1.0 / one_minus_x2
+        y3 = y * y * y
+        d1 = (3.0 * t * x - 2.0 + 2.0 * lam3 * x / y) * inverse
+        d2 = (3.0 * t + 5.0 * x * d1 + 2.0 * (1.0 - lam2) * lam3 / y3) * inverse
+        d3 = (7.0 * x * d2 + 8.0 * d1 - 6.0 * (1.0 - lam2) * lam2 * lam3 * x / (y3 * y * y)) * inverse
+    return d1, d2, d3
+
+
+# ---------------------------------------------------------------------- solving T(x) = T
+def _solve(
+    target: np.ndarray,
+    lam: np.ndarray,
+    turns: float,
+    x0: np.ndarray,
+    low: np.ndarray,
+    high: np.ndarray,
+    increasing: bool,
+) -> np.ndarray:
+    """x in (low, high) with T(x) = target: Householder steps, bisection when a step leaves the bracket.
+
+    A Householder step shorter than ``_FINAL_STEP`` is the last one: its
+    error is of the order of the step to the fourth power, below rounding.
+    """
+    x = x0.copy()
+    low, high = low.copy(), high.copy()
+    active = np.flatnonzero(np.isfinite(target) & np.isfinite(x))
+    converged = np.zeros(x.shape, dtype=bool)
+    whole = active.size == x.size  # while every case iterates, skip the gathers and scatters
+    for _ in range(_MAX_STEPS):
+        if active.size == 0:
+            break
+        if whole:
+            xa, la, ta, lo, hi = x, lam, target, low, high
+        else:
+            xa, la, ta, lo, hi = x[active], lam[active], target[active], low[active], high[active]
+        t = _tof(xa, la, turns)
+        miss = t - ta
+        # keep the bracket: T decreases with x on the zero-revolution and left branches
+        above = (miss > 0.0) != increasing
+        np.copyto(lo, xa, where=above)
+        np.copyto(hi, xa, where=~above)
+        d1, d2, d3 = _derivatives(xa, t, la)
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            step = miss * (d1 * d1 - miss * d2 / 2.0) / (d1 * (d1 * d1 - miss * d2) + d3 * miss * miss / 6.0)
+            new = xa - step
+            outside = ~((new >= lo) & (new <= hi))  # NaN too
+        if outside.any():  # rare: bisect those cases (an open bracket doubles outwards)
+            index = np.flatnonzero(outside)
+            lo_out, hi_out = lo[index], hi[index]
+            new[index] = np.where(
+                np.isfinite(hi_out), 0.5 * (lo_out + hi_out), lo_out + np.maximum(1.0, np.abs(lo_out))
+            )
+        exact = miss == 0.0
+        if exact.any():
+            new[exact] = xa[exact]
+        done = exact | (~outside & (np.abs(step) < _FINAL_STEP)) | (np.abs(new - xa) < _STEP_TOLERANCE)
+        if whole:
+            x, low, high = new, lo, hi
+            converged = done
+            active = np.flatnonzero(~done)
+            whole = active.size == x.size
+        else:
+            x[active], low[active], high[active] = new, lo, hi
+            converged[active[done]] = True
+            active = active[~done]
+    x[~converged] = np.nan
+    return x
+
+
+def _minimum_time(lam: np.ndarray, turns: float) -> tuple[np.ndarray, np.ndarray]:
+    """x and T at the minimum time of flight for N turns, by Halley's iteration from x = 0 (Izzo 2015, §3)."""
+    x = np.zeros_like(lam)
+    t = np.arccos(lam) + lam * np.sqrt(1.0 - lam * lam) + turns * np.pi
+    for _ in range(16):
+        d1, d2, d3 = _derivatives(x, t, lam)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            new = np.where(d1 != 0.0, x - d1 * d2 / (d2 * d2 - d1 * d3 / 2.0), x)
+        new = np.clip(new, -1.0 + 1e-15, 1.0 - 1e-15)
+        change = np.abs(new - x)
+        x = new
+        t = _tof(x, lam, turns)
+        if np.all(change < 1.0e-13):
+            break
+    return x, t
+
+
+def _zero_revolution_guess(target: np.ndarray, lam: np.ndarray) -> np.ndarray:
+    """Izzo's starting x for N = 0 (Izzo 2015, eq. 30)."""
+    t00 = np.arccos(lam) + lam * np.sqrt(1.0 - lam * lam)
+    t1 = 2.0 / 3.0 * (1.0 - lam * lam * lam)  # not lam**3: pow() is slow on arrays
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x0 = -(target - t00) / (target - t00 + 4.0)  # long flights: T >= T00
+    # the other two forms on their own cases only: pow() of the others' values is slow and useless
+    short = np.flatnonzero(target <= t1)
+    if short.size:
+        ts, ls, t1s = target[short], lam[short], t1[short]
+        x0[short] = t1s * (t1s - ts) / (0.4 * (1.0 - ls * ls * ls * ls * ls) * ts) + 1.0
+    between = np.flatnonzero((target < t00) & (target > t1))
+    if between.size:
+        tb, t00b = target[between], t00[between]
+        x0[between] = (tb / t00b) ** (np.log(2.0) / np.log(t1[between] / t00b)) - 1.0
+    return x0
+
+
+def _solve_x(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray:
+    """x of each case; shape (...) for N = 0, (2, ...) for N > 0 (short-period branch first)."""
+    target, lam = np.broadcast_arrays(target, lam)
+    shape = target.shape
+    x = _solve_x_flat(np.ravel(target), np.ravel(lam), turns)
+    return x.reshape(shape if turns == 0 else (2, *shape))
+
+
+def _solve_x_flat(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray:
+    if turns == 0:
+        x0 = _zero_revolution_guess(target, lam)
+        low = np.full_like(target, -1.0)
+        high = np.full_like(target, np.inf)
+        return _solve(target, lam, 0.0, x0, low, high, increasing=False)
+    x_min, t_min = _minimum_time(lam, float(turns))
+    reachable = target >= t_min
+    goal = np.where(reachable, target, np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        left_start = ((turns * np.pi + np.pi) / (8.0 * target)) ** (2.0 / 3.0)
+        right_start = ((8.0 * target) / (turns * np.pi)) ** (2.0 / 3.0)
+    left0 = np.clip((left_start - 1.0) / (left_start + 1.0), -1.0, x_min)
+    right0 = np.clip((right_start - 1.0) / (right_start + 1.0), x_min, 1.0)
+    left = _solve(goal, lam, float(turns), left0, np.full_like(target, -1.0), x_min, increasing=False)
+    right = _solve(goal, lam, float(turns), right0, x_min.copy(), np.ones_like(target), increasing=True)
+    # order the branches by semi-major axis a = a_min / (1 - x^2): shorter period first
+    left_shorter = np.abs(left) <= np.abs(right)
+    short = np.where(left_shorter, left, right)
+    long = np.where(left_shorter, right, left)
+    return np.stack([short, long])
+
+
+# ---------------------------------------------------------------------- geometry
+def _cross(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """a x b on the last axis, component by component (np.cross moves axes and copies)."""
+    a0, a1, a2 = a[..., 0], a[..., 1], a[..., 2]
+    b0, b1, b2 = b[..., 0], b[..., 1], b[..., 2]
+    out = np.empty(np.broadcast_shapes(a.shape, b.shape))
+    np.subtract(a1 * b2, a2 * b1, out=out[..., 0])
+    np.subtract(a2 * b0, a0 * b2, out=out[..., 1])
+    np.subtract(a0 * b1, a1 * b0, out=out[..., 2])
+    return out
+
+
+def _unit(v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    norm = np.sqrt(np.einsum("...i,...i->...", v, v))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return v / norm[..., None], norm
+
+
+def _vector(value: ArrayLike, name: str) -> np.ndarray:
+    array = finite(value, name, "m")
+    if array.ndim == 0 or array.shape[-1] != 3:
+        raise DomainError(f"`{name}` must hold 3-vectors on its last axis, shape (..., 3), got {array.shape}")
+    norm = np.sqrt(np.einsum("...i,...i->...", array, array))
+    require(norm, norm <= 0.0, f"|{name}|", "> 0", "m")
+    return array
+
+
+def checked_revolutions(value: Any) -> int:
+    """``value`` as the number of full turns (an integer >= 0), or a DomainError naming `revolutions`."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)) or value < 0:
+        raise DomainError(f"`revolutions` must be an integer >= 0, got {value!r}")
+    return int(value)
+
+
+def checked_prograde(value: Any) -> bool:
+    """``value`` as the direction of motion (True or False), or a DomainError naming `prograde`."""
+    if not isinstance(value, (bool, np.bool_)):
+        raise DomainError(f"`prograde` must be True or False, got {value!r}")
+    return bool(value)
+
+
+def lambert(
+    r1: ArrayLike,
+    r2: ArrayLike,
+    tof: ArrayLike,
+    mu: ArrayLike,
+    revolutions: int = 0,
+    prograde: bool = True,
+) -> LambertSolution:
+    """Velocities of the conic that goes from ``r1`` to ``r2`` in time ``tof``.
+
+    Parameters
+    ----------
+    r1, r2 : array_like, shape (..., 3)
+        Positions at departure and arrival, m (nonzero).
+    tof : array_like, shape (...)
+        Time of flight, s (> 0).
+    mu : array_like, shape (...)
+        Gravitational parameter of the central body, m^3/s^2 (> 0).
+    revolutions : int, optional
+        Full turns made on the way (default 0).
+    prograde : bool, optional
+        Move counterclockwise seen from +z (default) or clockwise.
+
+    Returns
+    -------
+    LambertSolution
+        ``v1``, ``v2`` of shape ``(..., 3)``, with ``...`` the broadcast shape
+        of the cases; for ``revolutions > 0`` shape ``(2, ..., 3)``, index 0
+        the shorter-period branch.
+
+    Notes
+    -----
+    NaN where there is no solution: a multi-revolution time of flight shorter
+    than the minimum for that many turns, and a transfer angle of 0 or 180
+    degrees (within ``PLANE_TOLERANCE`` in its sine). At 180 degrees the
+    positions and the focus lie on one line, so every plane through that line
+    holds a transfer of the same shape: the velocity's direction is undefined
+    and no single answer is right. (Shift an arrival date by a fraction of a
+    day to leave the singular line.)
+
+    Raises
+    ------
+    DomainError
+        Non-finite input, a zero position, ``tof`` or ``mu`` <= 0, inputs that
+        do not broadcast, or ``revolutions`` not an integer >= 0.
+
+    See Also
+    --------
+    lambert_time_of_flight : the time of flight of a given ``x``, the function this solver inverts.
+    transfer_map : Lambert's problem over a grid of departure and arrival dates.
+
+    Examples
+    --------
+    Curtis, Orbital Mechanics for Engineering Students, Example 5.2 (3rd ed.):
+    from (5000, 10000, 2100) km to (-14600, 2500, 7000) km about the Earth in
+    one hour (quoted from memory: v1 = (-5.9925, 1.9254, 3.2456) km/s).
+
+    >>> import numpy as np
+    >>> from deltakit import lambert
+    >>> from deltakit.constants import EARTH
+    >>> out = lambert([5000e3, 10000e3, 2100e3], [-14600e3, 2500e3, 7000e3], 3600.0, 398600e9)
+    >>> np.round(out.v1 / 1e3, 4)
+    array([-5.9925,  1.9254,  3.2456])
+
+    Many cases at once (no Python loop), and two revolutions:
+
+    >>> r2 = np.array([[0.0, 8000e3, 0.0], [-8000e3, 1.0, 0.0]])
+    >>> lambert([7000e3, 0.0, 0.0], r2, 3000.0, EARTH.mu).v1.shape
+    (2, 3)
+    >>> lambert([7000e3, 0.0, 0.0], [0.0, 8000e3, 0.0], 4 * 3600.0, EARTH.mu, revolutions=2).v1.shape
+    (2, 3)
+    """
+    r1 = _vector(r1, "r1")
+    r2 = _vector(r2, "r2")
+    tof = positive(tof, "tof", "s")
+    mu = positive(mu, "mu", "m^3/s^2")
+    revolutions = checked_revolutions(revolutions)
+    prograde = checked_prograde(prograde)
+    shape = broadcast_shape(r1=r1[..., 0], r2=r2[..., 0], tof=tof, mu=mu)
+    r1 = np.broadcast_to(r1, (*shape, 3))
+    r2 = np.broadcast_to(r2, (*shape, 3))
+    tof = np.broadcast_to(tof, shape)
+    mu = np.broadcast_to(mu, shape)
+    v1, v2, _ = _velocities(r1, r2, tof, mu, revolutions, prograde)
+    return LambertSolution(v1=v1, v2=v2)
+
+
+def transfer_plane(
+    u1: np.ndarray, u2: np.ndarray, prograde: bool
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Unit normal of the motion, transfer angle in [0, 2 pi) and whether the plane is defined.
+
+    ``u1``, ``u2`` are unit vectors (..., 3). The motion's normal has a positive
+    z component when ``prograde`` (a polar plane goes the short way); the
+    angle exceeds pi when the motion goes the long way round.
+    """
+    normal = _cross(u1, u2)
+    sin_angle = np.sqrt(np.einsum("...i,...i->...", normal, normal))
+    cos_angle = np.einsum("...i,...i->...", u1, u2)
+    flip = (normal[..., 2] < 0.0) if prograde else (normal[..., 2] >= 0.0)
+    sign = np.where(flip, -1.0, 1.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        h = normal * (sign / sin_angle)[..., None]
+    angle = np.arctan2(sign * sin_angle, cos_angle) % (2.0 * np.pi)
+    return h, angle, sin_angle > PLANE_TOLERANCE
+
+
+def _velocities(
+    r1: np.ndarray, r2: np.ndarray, tof: np.ndarray, mu: Any, turns: int, prograde: bool
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The solver on checked arrays that broadcast together (the map's fast path): v1, v2, transfer angle.
+
+    ``r1``, ``r2`` may keep length-1 axes (a grid of departures x arrivals):
+    their norms and unit vectors are then computed once per date, not per pair.
+    """
+    u1, n1 = _unit(r1)
+    u2, n2 = _unit(r2)
+    h, angle, planar = transfer_plane(u1, u2, prograde)
+    chord = np.sqrt(np.einsum("...i,...i->...", r2 - r1, r2 - r1))
+    s = 0.5 * (n1 + n2 + chord)
+    # lam = sqrt(1 - c/s) with its sign, from the half angle: no cancellation near 180 degrees
+    lam = np.sqrt(n1 * n2) * np.cos(angle / 2.0) / s
+    lam = np.where(planar, lam, np.nan)
+    target = np.sqrt(2.0 * mu / (s * s * s)) * tof
+
+    x = _solve_x(target, lam, turns)
+
+    gamma = np.sqrt(mu * s / 2.0)
+    rho = (n1 - n2) / chord
+    sigma = np.sqrt(np.maximum(1.0 - rho * rho, 0.0))
+    y = np.sqrt(1.0 - lam * lam * (1.0 - x * x))
+    radial1 = gamma * ((lam * y - x) - rho * (lam * y + x)) / n1
+    radial2 = -gamma * ((lam * y - x) + rho * (lam * y + x)) / n2
+    transverse = gamma * sigma * (y + lam * x)
+    t1 = _cross(h, u1)
+    t2 = _cross(h, u2)
+    v1 = radial1[..., None] * u1 + (transverse / n1)[..., None] * t1
+    v2 = radial2[..., None] * u2 + (transverse / n2)[..., None] * t2
+    return v1, v2, angle
+
+
+def lambert_time_of_flight(x: ArrayLike, lam: ArrayLike, revolutions: int = 0) -> Any:
+    """Izzo's non-dimensional time of flight ``T(x)`` for the geometry ``lam``.
+
+    ``tof = T / sqrt(2 mu / s**3)``; ``x**2 = 1 - a_min / a`` with ``a_min = s/2``.
+    This is the function :func:`lambert` inverts, exposed so its derivation
+    (``deltakit.symbolic.derive("lambert_time_of_flight")``) can be checked
+    against it.
+
+    Parameters
+    ----------
+    x : array_like
+        Izzo's variable (> -1; below 1 ellipses, above 1 hyperbolas).
+    lam : array_like
+        Geometry parameter in [-1, 1] (negative: the long way round).
+    revolutions : int, optional
+        Full turns.
+
+    Examples
+    --------
+    At x = 0 (the minimum-energy ellipse) and lam = 0, half a turn of the
+    ellipse: T = pi / 2.
+
+    >>> from deltakit.lambert_solver import lambert_time_of_flight
+    >>> round(float(lambert_time_of_flight(0.0, 0.0)), 12)
+    1.570796326795
+    """
+    x = finite(x, "x")
+    lam = finite(lam, "lam")
+    require(x, ~(x > -1.0), "x", "> -1")
+    require(lam, ~(np.abs(lam) <= 1.0), "lam", "within [-1, 1]")
+    x, lam = np.broadcast_arrays(x, lam)
+    t = _tof(np.array(x), np.array(lam), float(revolutions))
+    return t[()] if t.ndim == 0 else t
