@@ -52,6 +52,7 @@ from numpy.typing import ArrayLike
 
 from ._blocks import blockwise
 from ._checks import (
+    broadcast_shape,
     finite,
     finite_number,
     instance_of,
@@ -285,8 +286,8 @@ def _flagged_planes(
     shape = flags.shape
     _, _, _, argp, inc, raan = (np.broadcast_to(a, shape) for a in elements)
     inc_all, raan_all = np.array(inc), np.array(raan)
-    where = np.nonzero(flags == _REVERSED)
-    if where[0].size:
+    where = flags == _REVERSED  # a mask: boolean indexing works for one case (shape ()) too
+    if where.any():
         u = argp[where] + np.broadcast_to(nu, shape)[where]
         inc_w = inc[where]
         sin_i = np.where(inc_w == np.pi, 0.0, np.sin(inc_w))
@@ -337,6 +338,11 @@ def _record(cls: type, **fields: Any) -> Any:
     record = object.__new__(cls)
     record.__dict__.update(fields)
     return record
+
+
+def _shaped(conic: Conic) -> np.ndarray:
+    """A stand-in of the conic's shape for :func:`broadcast_shape` (a view, no data)."""
+    return np.broadcast_to(0.0, conic.shape)
 
 
 def _elements(conic: Conic) -> tuple[np.ndarray, ...]:
@@ -414,6 +420,7 @@ def burn(
     radial = finite(radial, "radial", "m/s")
     transverse = finite(transverse, "transverse", "m/s")
     normal = finite(normal, "normal", "m/s")
+    broadcast_shape(conic=_shaped(conic), nu=nu, radial=radial, transverse=transverse, normal=normal)
     if normal.ndim == 0 and normal == 0.0:  # in the plane: the planar kernel, bit for bit
         results = blockwise(_rtn_kernel, (*elements[:4], nu, radial, transverse), 5, flags=True)
         return _planar_outcome(conic, elements, nu, np.hypot(radial, transverse), results)
@@ -467,6 +474,7 @@ def burn_prograde(conic: Conic, nu: ArrayLike, dv: ArrayLike) -> BurnOutcome:
         return _prograde_number(conic, nu, dv)
     nu = finite(nu, "nu", "rad")
     dv = finite(dv, "dv", "m/s")
+    broadcast_shape(conic=_shaped(conic), nu=nu, dv=dv)
     results = blockwise(_prograde_kernel, (*elements[:4], nu, dv), 5, flags=True)
     return _planar_outcome(conic, elements, nu, np.abs(dv), results)
 
@@ -507,7 +515,9 @@ def energy_gain(v: ArrayLike, dv: ArrayLike) -> Any:
         return np.float64(dv * (v + 0.5 * dv))
     v = nonnegative(v, "v", "m/s")
     dv = finite(dv, "dv", "m/s")
-    return scalar_or_array(dv * (v + 0.5 * dv))
+    broadcast_shape(v=v, dv=dv)
+    with np.errstate(over="ignore"):  # beyond a float the gain is inf, as it should be
+        return scalar_or_array(dv * (v + 0.5 * dv))
 
 
 def burn_at_angle(conic: Conic, nu: Any, dv: Any, angle: Any = 0.0, *, reference: str = "velocity"):
@@ -529,8 +539,11 @@ def burn_at_angle(conic: Conic, nu: Any, dv: Any, angle: Any = 0.0, *, reference
     >>> round(float(out.after.ra) / 1e3)
     7384
     """
+    instance_of(conic, Conic, "conic")
+    nu = finite(nu, "nu", "rad")
     dv = finite(dv, "dv", "m/s")
     angle = finite(angle, "angle", "rad")
+    broadcast_shape(conic=_shaped(conic), nu=nu, dv=dv, angle=angle)
     if reference == "velocity":
         direction = angle + np.asarray(conic.flight_path_angle(nu))
     elif reference == "transverse":
@@ -559,8 +572,7 @@ def _number_outcome(
     rp, e, mu, argp, inc, raan = conic._numbers
     if scale_t2 != scale_t2:  # NaN: infeasible
         nan = math.nan
-        after = object.__new__(Conic)
-        after._set_numbers(nan, nan, mu, nan, nan, nan)
+        after = Conic._of_numbers(nan, nan, mu, nan, nan, nan)
         return _record(
             BurnOutcome, before=conic, after=after, nu=np.float64(nu), dv=np.float64(dv),
             energy_change=np.float64(nan), nu_after=np.float64(nan),
@@ -572,8 +584,7 @@ def _number_outcome(
         inc_new, raan_new, u_new = inc, raan, argp + nu
     else:
         inc_new, raan_new, u_new = plane
-    after = object.__new__(Conic)
-    after._set_numbers(rp_new, e_new, mu, u_new - nu_after, inc_new, raan_new)
+    after = Conic._of_numbers(rp_new, e_new, mu, u_new - nu_after, inc_new, raan_new)
     return _record(
         BurnOutcome, before=conic, after=after, nu=np.float64(nu), dv=np.float64(dv),
         energy_change=np.float64(energy_change), nu_after=np.float64(nu_after),

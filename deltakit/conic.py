@@ -63,7 +63,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ._checks import (
-    NUMBER_TYPES,
+    broadcast_shape,
     finite,
     finite_number,
     is_number,
@@ -147,19 +147,8 @@ class Conic(Result):
         inc: ArrayLike = 0.0,
         raan: ArrayLike = 0.0,
     ) -> None:
-        numbers = NUMBER_TYPES
-        if (
-            type(rp) in numbers
-            and type(e) in numbers
-            and type(mu) in numbers
-            and type(argp) in numbers
-            and type(inc) in numbers
-            and type(raan) in numbers
-        ):  # one orbit of plain numbers: no arrays at all
-            try:
-                values = (float(rp), float(e), float(mu), float(argp), float(inc), float(raan))
-            except OverflowError:  # an int beyond a float: the checks below say which
-                values = (math.nan,) * 6
+        if is_number(rp, e, mu, argp, inc, raan):  # one orbit of plain, moderate numbers: no arrays at all
+            values = (float(rp), float(e), float(mu), float(argp), float(inc), float(raan))
             x_rp, x_e, x_mu, x_argp, x_inc, x_raan = values
             if not (
                 0.0 < x_rp < _INF
@@ -179,19 +168,32 @@ class Conic(Result):
                 )
             self._set_numbers(*values)
             return
-        self._store(
-            (
-                positive(rp, "rp", "m"),
-                nonnegative(e, "e"),
-                positive(mu, "mu", "m^3/s^2"),
-                finite(argp, "argp", "rad"),
-                _inclination(inc),
-                finite(raan, "raan", "rad"),
-            ),
-            copy=True,
+        elements = (
+            positive(rp, "rp", "m"),
+            nonnegative(e, "e"),
+            positive(mu, "mu", "m^3/s^2"),
+            finite(argp, "argp", "rad"),
+            _inclination(inc),
+            finite(raan, "raan", "rad"),
         )
+        broadcast_shape(**dict(zip(_FIELDS, elements)))  # names the elements whose shapes clash
+        self._store(elements, copy=True)
 
     # ------------------------------------------------------------------ storage
+    @classmethod
+    def _of_numbers(cls, rp: float, e: float, mu: float, argp: float, inc: float, raan: float) -> Conic:
+        """One orbit from floats the numeric layer computed: the scalar path where they are moderate.
+
+        Outside the fast path's band (or NaN) the orbit takes the array path, so
+        later scalar formulas can neither overflow nor underflow.
+        """
+        conic = object.__new__(cls)
+        if is_number(rp, e, mu, argp, inc, raan):
+            conic._set_numbers(rp, e, mu, argp, inc, raan)
+        else:
+            conic._store(tuple(np.asarray(x, dtype=float) for x in (rp, e, mu, argp, inc, raan)), copy=False)
+        return conic
+
     def _set_numbers(self, rp: float, e: float, mu: float, argp: float, inc: float, raan: float) -> None:
         """Store one orbit of checked Python floats (the scalar fast path)."""
         f = np.float64
@@ -281,6 +283,7 @@ class Conic(Result):
         else:
             rp = positive(rp, "rp", "m")
             ra = positive(ra, "ra", "m")
+            broadcast_shape(rp=rp, ra=ra)
             below = np.any(ra < rp)
         if below:
             require(np.asarray(ra), np.asarray(ra < rp), "ra", ">= rp (apoapsis at or beyond periapsis)", "m")
@@ -296,7 +299,10 @@ class Conic(Result):
         >>> float(Conic.circular(7000e3, 3.986e14).e)
         0.0
         """
-        r = positive_number(r, "r", "m") if is_number(r) else positive(r, "r", "m")
+        if is_number(r):
+            return cls(positive_number(r, "r", "m"), 0.0, mu, 0.0, inc, raan)
+        r = positive(r, "r", "m")
+        broadcast_shape(r=r, mu=positive(mu, "mu", "m^3/s^2"))
         return cls(r, 0.0, mu, 0.0, inc, raan)
 
     @classmethod
@@ -328,7 +334,18 @@ class Conic(Result):
             rp = positive(rp, "rp", "m")
             vinf = nonnegative(vinf, "vinf", "m/s")
             mu = positive(mu, "mu", "m^3/s^2")
-        return cls(rp, 1.0 + rp * vinf * vinf / mu, mu, argp, inc, raan)
+            broadcast_shape(rp=rp, vinf=vinf, mu=mu)
+        with np.errstate(over="ignore"):
+            e = 1.0 + rp * (vinf / mu) * vinf  # in this order rp vinf^2 / mu overflows only if it must
+        if not np.all(np.isfinite(e)):
+            require(
+                np.asarray(vinf),
+                ~np.isfinite(np.broadcast_to(e, np.shape(vinf)) if np.shape(vinf) else e),
+                "vinf",
+                "small enough that rp vinf^2 / mu (the eccentricity) fits a float, with these `rp` and `mu`",
+                "m/s",
+            )
+        return cls(rp, e, mu, argp, inc, raan)
 
     @classmethod
     def from_state(cls, r_vec: ArrayLike, v_vec: ArrayLike, mu: ArrayLike) -> Conic:
@@ -373,7 +390,9 @@ class Conic(Result):
                 f"got shape {v_vec.shape}"
             )
         mu = positive(mu, "mu", "m^3/s^2")
-        r_norm = np.sqrt(np.sum(r_vec * r_vec, axis=-1))
+        broadcast_shape(r_vec=r_vec[..., 0], v_vec=v_vec[..., 0], mu=mu)
+        with np.errstate(over="ignore"):
+            r_norm = np.sqrt(np.sum(r_vec * r_vec, axis=-1))
         require(r_vec, r_norm <= 0.0, "r_vec", "non-zero (a position away from the centre)", "m")
         own_mu = np.array(mu) if _changeable(mu) else mu
         if r_vec.shape[-1] == 2:
@@ -697,19 +716,22 @@ def elements_from_state(
     where the angular momentum ``h = x vy - y vx`` is not positive. An
     eccentricity at rounding level (circular state) is 0 with ``argp = 0``.
     """
-    with np.errstate(invalid="ignore", divide="ignore"):
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore", under="ignore"):
         r = np.hypot(x, y)
         h = x * vy - y * vx
         v2 = vx * vx + vy * vy
         rv = x * vx + y * vy
-        ex = ((v2 - mu / r) * x - rv * vx) / mu
-        ey = ((v2 - mu / r) * y - rv * vy) / mu
-        e = np.hypot(ex, ey)
+        # mu times the eccentricity vector, v^2 r - (r.v) v - mu r/|r|: no mu / r, which
+        # overflows for a tiny radius, and no division by mu, which overflows for a tiny mu
+        big_ex = v2 * x - rv * vx - mu * (x / r)
+        big_ey = v2 * y - rv * vy - mu * (y / r)
+        big_e = np.hypot(big_ex, big_ey)
+        e = big_e / mu
         good = h > 0.0
         circular = e <= _CIRCULAR
         e = np.where(circular, 0.0, e)
-        rp = np.where(good, h * h / mu / (1.0 + e), np.nan)
-        argp = np.where(circular, 0.0, np.arctan2(ey, ex))
+        rp = np.where(good, h * h / np.where(circular, mu, mu + big_e), np.nan)  # h^2 / (mu (1 + e))
+        argp = np.where(circular, 0.0, np.arctan2(big_ey, big_ex))
     return rp, np.where(good, e, np.nan), np.where(good, argp, np.nan)
 
 
@@ -717,12 +739,14 @@ def _elements_3d(r_vec: np.ndarray, v_vec: np.ndarray, mu: np.ndarray) -> tuple:
     """rp, e, argp, inc, raan of the conic through inertial 3-vectors (NaN where h = 0)."""
     x, y, z = r_vec[..., 0], r_vec[..., 1], r_vec[..., 2]
     vx, vy, vz = v_vec[..., 0], v_vec[..., 1], v_vec[..., 2]
-    hx = y * vz - z * vy
-    hy = z * vx - x * vz
-    hz = x * vy - y * vx
-    tilt = np.hypot(hx, hy)  # |h| sin inc: zero exactly for an equatorial state
-    h = np.hypot(tilt, hz)
-    with np.errstate(invalid="ignore", divide="ignore"):
+    with np.errstate(over="ignore", invalid="ignore"):
+        hx = y * vz - z * vy
+        hy = z * vx - x * vz
+        hz = x * vy - y * vx
+    with np.errstate(over="ignore", invalid="ignore"):
+        tilt = np.hypot(hx, hy)  # |h| sin inc: zero exactly for an equatorial state
+        h = np.hypot(tilt, hz)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore", under="ignore"):
         inc = np.arctan2(tilt, hz)
         # a tilt in the subnormal range has lost its digits: no node to speak of
         inclined = tilt > 1e-290 * h

@@ -56,7 +56,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import finite, instance_of, nonnegative, positive, require, scalar_or_array
+from ._checks import broadcast_shape, finite, instance_of, nonnegative, positive, require, scalar_or_array
 from ._results import Result, quantity
 from ._rk853 import integrate
 from .conic import Conic, _elements_3d, _plane_to_inertial, _unit_normal, elements_from_state
@@ -362,6 +362,15 @@ def thrust_arc(
     if not isinstance(steering, str) or steering not in STEERING:
         raise DomainError(f"`steering` must be one of {', '.join(map(repr, STEERING))}, not {steering!r}")
     splits = _splits(splits)
+    broadcast_shape(
+        conic=np.broadcast_to(0.0, conic.shape),
+        thrust=thrust,
+        ve=ve,
+        m0=m0,
+        dv=dv,
+        nu_center=nu_center,
+        splits=splits,
+    )
 
     arrays = np.broadcast_arrays(*conic._elements(), thrust, ve, m0, dv, nu_center, splits)
     shape = arrays[0].shape
@@ -553,6 +562,15 @@ def loss_table(
     ratio = positive(np.atleast_1d(thrust_to_weight), "thrust_to_weight")
     counts = _splits(np.atleast_1d(splits))
     m0 = positive(m0, "m0", "kg")
+    ve = positive(ve, "ve", "m/s")
+    dv = nonnegative(dv, "dv", "m/s")
+    nu_center = finite(nu_center, "nu_center", "rad")
+    for name, value in (("ve", ve), ("m0", m0), ("dv", dv), ("nu_center", nu_center)):
+        if np.ndim(value) != 0:
+            raise DomainError(
+                f"`{name}` must be one number for a table (its rows are thrust-to-weight, its columns "
+                f"splits), got shape {np.shape(value)}"
+            )
     thrust = ratio * m0 * G0
     outcome = thrust_arc(conic, thrust[:, None], ve, m0, dv, nu_center, steering, counts[None, :])
     loss = np.reshape(outcome.loss, (ratio.size, counts.size))

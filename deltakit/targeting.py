@@ -35,6 +35,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ._checks import (
+    broadcast_shape,
     finite,
     finite_number,
     instance_of,
@@ -125,6 +126,7 @@ def burn_to(
         return np.float64(_burn_to_number(numbers, nu, kind, value))
     nu = finite(nu, "nu", "rad")
     value = positive(target, kind, unit) if strictly else nonnegative(target, kind, unit)
+    broadcast_shape(conic=np.broadcast_to(0.0, conic.shape), nu=nu, **{kind: value})
     rp0, e, mu = (np.asarray(x) for x in conic._elements()[:3])
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         p = rp0 * (1.0 + e)
