@@ -413,9 +413,9 @@ def burn(
     >>> round(float(np.degrees(out.after.inc)), 3)
     0.759
     """
+    if type(conic) is Conic and conic._numbers is not None and is_number(nu, radial, transverse, normal):
+        return _burn_number(conic, float(nu), float(radial), float(transverse), float(normal))
     elements = _elements(conic)
-    if conic._numbers is not None and is_number(nu, radial, transverse, normal):
-        return _burn_number(conic, nu, radial, transverse, normal)
     nu = finite(nu, "nu", "rad")
     radial = finite(radial, "radial", "m/s")
     transverse = finite(transverse, "transverse", "m/s")
@@ -469,9 +469,9 @@ def burn_prograde(conic: Conic, nu: ArrayLike, dv: ArrayLike) -> BurnOutcome:
     >>> round(float(at_periapsis / at_apoapsis), 2)
     6.15
     """
+    if type(conic) is Conic and conic._numbers is not None and is_number(nu, dv):
+        return _prograde_number(conic, float(nu), float(dv))  # moderate finite numbers (is_number)
     elements = _elements(conic)
-    if conic._numbers is not None and is_number(nu, dv):
-        return _prograde_number(conic, nu, dv)
     nu = finite(nu, "nu", "rad")
     dv = finite(dv, "dv", "m/s")
     broadcast_shape(conic=_shaped(conic), nu=nu, dv=dv)
@@ -585,18 +585,22 @@ def _number_outcome(
     else:
         inc_new, raan_new, u_new = plane
     after = Conic._of_numbers(rp_new, e_new, mu, u_new - nu_after, inc_new, raan_new)
-    return _record(
-        BurnOutcome, before=conic, after=after, nu=np.float64(nu), dv=np.float64(dv),
-        energy_change=np.float64(energy_change), nu_after=np.float64(nu_after),
-    )  # fmt: skip
+    f = np.float64
+    outcome = object.__new__(BurnOutcome)
+    fields = outcome.__dict__
+    fields["before"], fields["after"], fields["nu"], fields["dv"] = conic, after, f(nu), f(dv)
+    fields["energy_change"], fields["nu_after"] = f(energy_change), f(nu_after)
+    return outcome
 
 
-def _prograde_number(conic: Conic, nu: Any, dv: Any) -> BurnOutcome:
-    nu = finite_number(nu, "nu", "rad")
-    dv = finite_number(dv, "dv", "m/s")
+def _prograde_number(conic: Conic, nu: float, dv: float) -> BurnOutcome:
+    """:func:`burn_prograde` for one orbit of numbers, ``nu`` and ``dv`` moderate and finite (is_number)."""
     rp, e, mu, argp, inc, raan = conic._numbers
     p = rp * (1.0 + e)
-    cos_nu, sin_nu, half_cos2 = _half_angle_number(nu)
+    t = math.tan(0.5 * nu)  # the half-angle steps of deltakit.conic._half_angle_number, inline
+    t2 = t * t
+    half_cos2 = 1.0 / (1.0 + t2)
+    cos_nu, sin_nu = (1.0 - t2) * half_cos2, (2.0 * t) * half_cos2
     e_cos = e * cos_nu
     one_minus_e = 1.0 - e
     e_half = (2.0 * e) * half_cos2
@@ -618,11 +622,8 @@ def _prograde_number(conic: Conic, nu: Any, dv: Any) -> BurnOutcome:
     return _number_outcome(conic, nu, abs(dv), p, scale_t2, e_cos_new, e_sin_new, energy_change, plane)
 
 
-def _burn_number(conic: Conic, nu: Any, radial: Any, transverse: Any, normal: Any) -> BurnOutcome:
-    nu = finite_number(nu, "nu", "rad")
-    radial = finite_number(radial, "radial", "m/s")
-    transverse = finite_number(transverse, "transverse", "m/s")
-    normal = finite_number(normal, "normal", "m/s")
+def _burn_number(conic: Conic, nu: float, radial: float, transverse: float, normal: float) -> BurnOutcome:
+    """:func:`burn` for one orbit of numbers and moderate finite inputs (checked by is_number)."""
     rp, e, mu, argp, inc, raan = conic._numbers
     p = rp * (1.0 + e)
     cos_nu, sin_nu, half_cos2 = _half_angle_number(nu)

@@ -197,15 +197,10 @@ class Conic(Result):
     def _set_numbers(self, rp: float, e: float, mu: float, argp: float, inc: float, raan: float) -> None:
         """Store one orbit of checked Python floats (the scalar fast path)."""
         f = np.float64
-        self.__dict__.update(
-            rp=f(rp),
-            e=f(e),
-            mu=f(mu),
-            argp=f(argp),
-            inc=f(inc),
-            raan=f(raan),
-            _numbers=(rp, e, mu, argp, inc, raan),
-        )
+        fields = self.__dict__
+        fields["rp"], fields["e"], fields["mu"] = f(rp), f(e), f(mu)
+        fields["argp"], fields["inc"], fields["raan"] = f(argp), f(inc), f(raan)
+        fields["_numbers"] = (rp, e, mu, argp, inc, raan)
 
     def _store(self, arrays: tuple[np.ndarray, ...], copy: bool) -> None:
         """Store checked element arrays: compact for the kernels, broadcast views for the fields.
@@ -276,6 +271,12 @@ class Conic(Result):
         >>> float(Conic.from_apsides(7000e3, 9000e3, 3.986e14).e)
         0.125
         """
+        if is_number(rp, ra, mu, argp, inc, raan):  # moderate finite numbers: check the rules inline
+            rp, ra, mu = float(rp), float(ra), float(mu)
+            if 0.0 < rp <= ra and mu > 0.0 and 0.0 <= inc <= math.pi:
+                conic = object.__new__(cls)
+                conic._set_numbers(rp, (ra - rp) / (ra + rp), mu, float(argp), float(inc), float(raan))
+                return conic
         if is_number(rp, ra):
             rp = positive_number(rp, "rp", "m")
             ra = positive_number(ra, "ra", "m")
