@@ -192,7 +192,7 @@ class BurnPointExplorer(Panel):
         angle, reference = self._direction(v)
         nu, dv = v["nu"], v["dv"]
         outcome = burn_at_angle(conic, nu, dv, angle, reference=reference)
-        if np.isnan(float(outcome.energy_change)):
+        if np.isnan(float(outcome.energy_change)) or float(outcome.after.inc) != float(conic.inc):
             raise DomainError(
                 f"a {dv:g} m/s burn in this direction reverses the motion here: no orbit after it."
             )
