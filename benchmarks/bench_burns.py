@@ -1,25 +1,28 @@
-"""Speed of prograde burn outcomes: deltakit vs hand-fused NumPy vs a plain-Python loop.
+"""Speed of prograde burn outcomes: deltakit vs cache-blocked hand-written NumPy, and the floor.
 
-Run ``python benchmarks/bench_burns.py``. It times, in one run and side by side,
-1,000,000 prograde burn outcomes (the conic after the burn: rp, e, argp, plus the
-true anomaly on it and the energy change) computed
+Run ``python benchmarks/bench_burns.py`` (``--quick`` for fewer repeats). It
+times, in one run and interleaved (a noisy neighbour on the shared machine hits
+them alike), 1,000,000 prograde burn outcomes (the conic after the burn: rp, e,
+argp, plus the true anomaly on it and the energy change), computed
 
-* by :func:`deltakit.burn_prograde` on arrays,
-* by a hand-fused NumPy expression of the same maths (in-place operations, no
-  validation, no result objects),
-* by a plain-Python loop with :mod:`math` (a subset, scaled to the full count),
+* by :func:`deltakit.burn_prograde` on arrays (checks and result objects included);
+* by a hand-written NumPy expression of the same maths, written here
+  independently of deltakit: in-place steps, no checks, no result objects, and
+  worked through in cache-sized blocks of the cases (:func:`fused`), as a
+  careful engineer would write it;
+* by the floor (:func:`floor`): the inputs read, the four transcendental
+  passes the maths cannot do without, and five fresh outputs written, in the
+  same blocks, with none of the other arithmetic. No NumPy code returning these
+  five results can beat it;
+* by a plain-Python loop with :mod:`math` (a subset, scaled), for scale only.
 
-and, as a yardstick, the floor (see :func:`floor`): the inputs read, the four
-transcendental passes the maths cannot do without, and five fresh outputs
-written, with none of the other arithmetic. No NumPy code that returns these
-five results can beat the floor, so ``loop / floor`` bounds the loop ratio
-any NumPy implementation can reach on the machine at hand.
-
-Targets (issue 2): deltakit within 1.5x of the fused expression and at least
-100x faster than the loop. The exit code is non-zero if a target fails; when
-the loop target lies beyond the floor, the script says so.
-Timings are the median of several repeats; the machine is shared, so the
-ratios, not the absolute times, are what matter.
+Target (issue 15; the old "100x a plain loop" target is withdrawn: no NumPy
+or compiled code available on these machines gets past about 25x, the maths
+being bound by its transcendental functions): deltakit within 1.5x of the
+blocked hand-written expression, measured in the same run. The floor ratio is
+printed beside it, so a reader sees how much any NumPy code could still gain.
+The exit code is non-zero if the target is missed. Timings are medians; the
+machine is shared, so the ratios, not the absolute times, are what matter.
 """
 
 from __future__ import annotations
@@ -32,14 +35,12 @@ import numpy as np
 from _timing import median_time
 
 from deltakit import Conic, burn_prograde
-from deltakit.burns import _blockwise  # the same block loop, so the floor pays what deltakit pays
 from deltakit.constants import EARTH
 
 N = 1_000_000
 LOOP_N = 20_000
-REPEATS = 7
+BLOCK = 16384  # cases per block of the hand-written versions: their temporaries stay in cache
 FUSED_TARGET = 1.5
-LOOP_TARGET = 100.0
 
 
 def cases(n: int, seed: int = 1) -> tuple[np.ndarray, ...]:
@@ -58,51 +59,87 @@ def with_deltakit(conic: Conic, nu: np.ndarray, dv: np.ndarray):
     return out.after.rp, out.after.e, out.after.argp, out.nu_after, out.energy_change
 
 
-def fused(rp, e, mu, argp, nu, dv):
-    """The same maths written by hand in one go: in-place where possible, no checks."""
+def _blocks(rp, e, mu, argp, nu, dv, work, outputs: int):
+    """Run ``work`` over row blocks of the broadcast inputs, writing ``outputs`` arrays in place."""
+    arrays = [np.asarray(a, dtype=float) for a in (rp, e, mu, argp, nu, dv)]
+    shape = np.broadcast_shapes(*(a.shape for a in arrays))
+    out = [np.empty(shape) for _ in range(outputs)]
+    arrays = [a.reshape((1,) * (len(shape) - a.ndim) + a.shape) for a in arrays]
+    inner = math.prod(shape[1:])
+    rows = max(1, BLOCK // max(inner, 1))
+    with np.errstate(invalid="ignore", divide="ignore"):  # the floor's numbers mean nothing
+        for start in range(0, shape[0], rows):
+            cut = slice(start, start + rows)
+            work(*(a if a.shape[0] == 1 else a[cut] for a in arrays), [o[cut] for o in out])
+    return out
+
+
+def _fused_block(rp, e, mu, argp, nu, dv, out):
+    """The maths of a prograde burn on one block, by hand (no checks, in place)."""
+    rp_o, e_o, argp_o, nu_o, energy_o = out
     p = 1.0 + e
     p *= rp
     t = 0.5 * nu
     np.tan(t, out=t)
     t2 = t * t
-    inverse = 1.0 + t2
-    np.reciprocal(inverse, out=inverse)
+    c2 = 1.0 + t2
+    np.reciprocal(c2, out=c2)  # cos^2(nu / 2)
     e_cos = 1.0 - t2
-    e_cos *= inverse
+    e_cos *= c2
     e_cos *= e
     e_sin = 2.0 * t
-    e_sin *= inverse
+    e_sin *= c2
     e_sin *= e
-    q = 1.0 + e_cos
-    v = q + e_cos
-    v += e * e
+    e_half = 2.0 * e
+    e_half = e_half * c2  # e (1 + cos nu)
+    one_minus_e = 1.0 - e
+    q = one_minus_e + e_half  # 1 + e cos nu
+    v = one_minus_e * one_minus_e
+    v = v + 2.0 * e_half  # 1 + 2 e cos nu + e^2, as a sum of terms >= 0
     v *= mu / p
     np.sqrt(v, out=v)
     x = dv / v
     s = 1.0 + x
-    bad = (q <= 0.0) | (s <= 0.0)
-    if bad.any():
-        s[bad] = np.nan
+    bad = (q <= 0.0) | (s == 0.0)
     e_cos_new = x + 2.0
     e_cos_new *= x
     e_cos_new *= q
     e_cos_new += e_cos
-    s2 = s * s
-    e_sin_new = e_sin * s2
-    e_new = e_cos_new * e_cos_new
-    e_new += e_sin_new * e_sin_new
-    np.sqrt(e_new, out=e_new)
-    nu_after = np.arctan2(e_sin_new, e_cos_new)
-    rp_new = s2 * p
-    rp_new /= e_new + 1.0
-    argp_new = nu - nu_after
-    argp_new += argp
-    energy = 0.5 * dv
-    energy = energy + v  # may broadcast up
-    energy *= dv
+    s2 = s * np.abs(s)  # s |s|: a reversed motion turns the plane over
+    e_sin = e_sin * s2  # may broadcast up
+    np.abs(s2, out=s2)
     if bad.any():
-        energy[bad] = np.nan
-    return rp_new, e_new, argp_new, nu_after, energy
+        s2[bad] = np.nan
+    np.multiply(e_cos_new, e_cos_new, out=e_o)
+    e_o += e_sin * e_sin
+    np.sqrt(e_o, out=e_o)
+    np.arctan2(e_sin, e_cos_new, out=nu_o)
+    np.multiply(s2, p, out=rp_o)
+    rp_o /= e_o + 1.0
+    np.subtract(nu, nu_o, out=argp_o)
+    argp_o += argp
+    np.multiply(0.5, dv, out=energy_o)
+    energy_o += v
+    energy_o *= dv
+    if bad.any():
+        energy_o[bad] = np.nan
+
+
+def fused(rp, e, mu, argp, nu, dv):
+    """The same maths written by hand, in cache-sized blocks."""
+    return _blocks(rp, e, mu, argp, nu, dv, _fused_block, 5)
+
+
+def _floor_block(rp, e, mu, argp, nu, dv, out):
+    rp_o, e_o, argp_o, nu_o, energy_o = out
+    half_angle = np.tan(nu)  # at the shape of nu
+    speed = np.sqrt(e + half_angle)  # at the shape of (e, nu)
+    np.add(rp, speed, out=rp_o)
+    np.add(nu, dv, out=e_o)
+    np.sqrt(e_o, out=e_o)
+    np.arctan2(nu, dv, out=nu_o)
+    np.subtract(argp, dv, out=argp_o)
+    np.multiply(speed, dv, out=energy_o)
 
 
 def floor(rp, e, mu, argp, nu, dv):
@@ -114,25 +151,11 @@ def floor(rp, e, mu, argp, nu, dv):
     the square root of the new eccentricity and the ``arctan2`` of the new
     true anomaly. Here each runs once at the shape its inputs give it (in a
     burn-point x delta-v grid the first two depend on the burn point only),
-    in the cache-sized blocks of deltakit's own block loop, and each of the five fresh outputs
-    is written by a single operation. The rest of the maths (about twenty-five
+    in the same cache-sized blocks, and each of the five fresh outputs is
+    written by a single operation. The rest of the maths (about thirty
     multiplications, additions and divisions) is left out.
     """
-    arrays = (np.asarray(a, dtype=float) for a in (rp, e, mu, argp, nu, dv))
-    return _blockwise(_floor_kernel, *arrays)
-
-
-def _floor_kernel(rp, e, mu, argp, nu, dv, out):
-    """One block of :func:`floor`, run by deltakit's own block loop."""
-    rp_o, e_o, argp_o, nu_o, energy_o = out
-    half_angle = np.tan(nu)  # at the shape of nu
-    speed = np.sqrt(e + half_angle)  # at the shape of (e, nu)
-    np.add(rp, speed, out=rp_o)
-    np.add(nu, dv, out=e_o)
-    np.sqrt(e_o, out=e_o)
-    np.arctan2(nu, dv, out=nu_o)
-    np.subtract(argp, dv, out=argp_o)
-    np.multiply(speed, dv, out=energy_o)
+    return _blocks(rp, e, mu, argp, nu, dv, _floor_block, 5)
 
 
 def plain_loop(rp, e, mu, argp, nu, dv):
@@ -179,68 +202,52 @@ def workload_grid():
     )
 
 
-def run(title: str, inputs) -> bool:
+def run(title: str, inputs, repeats: int) -> bool:
     rp, e, mu, argp, nu, dv = inputs
     conic = Conic(rp, e, mu, argp)
 
     # Same numbers first: a benchmark of different maths would mean nothing.
     ours = with_deltakit(conic, nu, dv)
     reference = fused(rp, e, mu, argp, nu, dv)
+    feasible = np.isfinite(np.asarray(ours[4]))
     for a, b in zip(ours, reference):
-        np.testing.assert_allclose(np.asarray(a), b, rtol=1e-12, atol=1e-9, equal_nan=True)
+        a, b = np.broadcast_to(a, np.shape(b)), np.asarray(b)
+        np.testing.assert_allclose(a[feasible], b[feasible], rtol=1e-12, atol=1e-9)
     # The loop gets plain Python floats (lists), as a careful plain-Python author would.
     flat = [np.broadcast_to(x, np.shape(ours[0])).ravel()[:LOOP_N].tolist() for x in (rp, e, argp, nu, dv)]
-    loop_rows = np.array(plain_loop(flat[0][:1000], flat[1][:1000], mu, *(f[:1000] for f in flat[2:])))
-    expected = np.stack([np.broadcast_to(r, np.shape(ours[0])).ravel()[:1000] for r in reference], axis=-1)
-    np.testing.assert_allclose(loop_rows, expected, rtol=1e-12, atol=1e-9, equal_nan=True)
 
-    # Interleave all three so a noisy neighbour on the shared machine hits them alike.
     t_ours, t_fused, t_floor, t_loop = [], [], [], []
-    for _ in range(REPEATS):
+    for _ in range(repeats):
         t_ours.append(median_time(with_deltakit, conic, nu, dv, repeats=1))
         t_fused.append(median_time(fused, rp, e, mu, argp, nu, dv, repeats=1))
         t_floor.append(median_time(floor, rp, e, mu, argp, nu, dv, repeats=1))
         t_loop.append(
             median_time(plain_loop, flat[0], flat[1], mu, *flat[2:], repeats=1) * (N / len(flat[0]))
         )
-    t_ours_med = statistics.median(t_ours)
-    t_fused_med = statistics.median(t_fused)
-    t_floor_med = statistics.median(t_floor)
-    t_loop = statistics.median(t_loop)
+    ours_t, fused_t, floor_t, loop_t = (statistics.median(t) for t in (t_ours, t_fused, t_floor, t_loop))
+    ratios = sorted(a / b for a, b in zip(t_ours, t_fused))
 
-    vs_fused = t_ours_med / t_fused_med
-    vs_loop = t_loop / t_ours_med
-    fused_ok = vs_fused <= FUSED_TARGET
-    loop_ok = vs_loop >= LOOP_TARGET
-    print(f"{title}: prograde burn outcomes (after conic + energy change), median of {REPEATS} runs")
-    print(f"  deltakit.burn_prograde   {t_ours_med * 1e3:9.1f} ms")
-    print(f"  hand-fused NumPy         {t_fused_med * 1e3:9.1f} ms")
-    print(f"  floor (see docstring)     {t_floor_med * 1e3:9.1f} ms")
-    print(f"  plain-Python math loop   {t_loop * 1e3:9.1f} ms  (timed on {len(flat[0]):,}, scaled)")
+    vs_fused = ours_t / fused_t
+    ok = vs_fused <= FUSED_TARGET
+    print(f"{title}: prograde burn outcomes (after conic + energy change), median of {repeats} runs")
+    print(f"  deltakit.burn_prograde         {ours_t * 1e3:9.1f} ms")
+    print(f"  hand-written NumPy, blocked    {fused_t * 1e3:9.1f} ms")
+    print(f"  floor (see its docstring)      {floor_t * 1e3:9.1f} ms")
+    print(f"  plain-Python math loop         {loop_t * 1e3:9.1f} ms  (timed on {len(flat[0]):,}, scaled)")
     print(
-        f"  deltakit / fused  = {vs_fused:6.2f}x   target <= {FUSED_TARGET}x   {'OK' if fused_ok else 'FAIL'}"
+        f"  deltakit / hand-written = {vs_fused:5.2f}x (runs {ratios[0]:.2f}-{ratios[-1]:.2f})"
+        f"   target <= {FUSED_TARGET}x   {'OK' if ok else 'MISSED'}"
     )
-    print(
-        f"  loop / deltakit   = {vs_loop:6.0f}x   target >= "
-        f"{LOOP_TARGET:.0f}x   {'OK' if loop_ok else 'FAIL'}"
-    )
-    ceiling = t_loop / t_floor_med
-    print(f"  loop / fused      = {t_loop / t_fused_med:6.0f}x   (the hand-fused expression, for comparison)")
-    print(
-        f"  loop / floor      = {ceiling:6.0f}x   (the most any NumPy code "
-        "returning these arrays can reach here)"
-    )
-    budget = t_loop / LOOP_TARGET - t_floor_med
-    print(f"  at the loop target, the arithmetic beyond the floor may take {budget * 1e3:.1f} ms in all")
-    if not loop_ok and ceiling < LOOP_TARGET:
-        print("  the loop target lies beyond the floor on this machine: unreachable without compiled code")
-    return fused_ok and loop_ok
+    print(f"  deltakit / floor        = {ours_t / floor_t:5.2f}x   (what any NumPy code could still gain)")
+    print(f"  loop / deltakit         = {loop_t / ours_t:5.0f}x   (for scale; no target)")
+    return ok
 
 
-def main() -> int:
-    results = [run(*workload()) for workload in (workload_independent, workload_grid)]
+def main(argv: list[str]) -> int:
+    repeats = 5 if "--quick" in argv else 9
+    results = [run(*workload(), repeats) for workload in (workload_independent, workload_grid)]
     return 0 if all(results) else 1
 
 
 if __name__ == "__main__":
-    sys.exit(main())
+    sys.exit(main(sys.argv[1:]))

@@ -43,6 +43,13 @@ _NAMES: dict[str, str] = {
     "burn_at_angle": "burns",
     "energy_gain": "burns",
     "BurnOutcome": "burns",
+    # orbits in space: targeting, turning the plane, low thrust
+    "burn_to": "targeting",
+    "plane_change_burns": "planes",
+    "PlaneChangeBurns": "planes",
+    "inclination_change_cost": "planes",
+    "InclinationChange": "planes",
+    "edelbaum": "lowthrust",
     # transfers and plane changes
     "hohmann": "transfers",
     "bielliptic": "transfers",

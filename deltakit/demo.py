@@ -22,6 +22,9 @@ Missions
 ``OCHREWING``
     A Mars orbiter with its own kick stage: leaves a low Earth orbit, crosses
     to Mars in a real opportunity (DE421 dates) and brakes into an ellipse.
+``LARKSPAN``
+    An Earth relay satellite that must turn its orbit into a new plane
+    (inclination and node) with a small tank: where, when, and at what cost.
 
 Examples
 --------
@@ -45,6 +48,9 @@ __all__ = [
     "CAUTION",
     "CINDERWREN",
     "HALYARD",
+    "LARKSPAN",
+    "LARKSPAN_ORIENTATION",
+    "LARKSPAN_TARGET_PLANE",
     "LUNAR_ORBIT_ALTITUDE",
     "MISSIONS",
     "MOON_DISTANCE",
@@ -55,6 +61,7 @@ __all__ = [
     "Mission",
     "StagedLanding",
     "Vehicle",
+    "larkspan_orbit",
 ]
 
 #: Mean Earth-Moon distance (semi-major axis of the lunar orbit), m.
@@ -422,3 +429,54 @@ QUILLWORT = StagedLanding(
         "corrections disperse, and what drives the spread."
     ),
 )
+
+
+# ---------------------------------------------------------------------- a mission in space
+#: Larkspan's working orbit in space (invented): argument of perigee, inclination
+#: and node, rad, of the 500 x 26,000 km orbit of :data:`LARKSPAN`.
+LARKSPAN_ORIENTATION: dict[str, float] = {
+    "argp": float(np.radians(200.0)),
+    "inc": float(np.radians(28.5)),
+    "raan": float(np.radians(40.0)),
+}
+#: The plane Larkspan must move to (invented): inclination and node, rad.
+LARKSPAN_TARGET_PLANE: tuple[float, float] = (float(np.radians(32.0)), float(np.radians(45.0)))
+
+LARKSPAN = Mission(
+    name="Larkspan",
+    body=EARTH,
+    vehicle=Vehicle(
+        name="Larkspan relay",
+        dry_mass=780.0,
+        propellant_mass=140.0,
+        isp=230.0,
+        thrust=220.0,
+        note="small data-relay satellite with a hydrazine system of four 55 N thrusters",
+    ),
+    periapsis_altitude=500e3,
+    apoapsis_altitude=26_000e3,
+    vinf=0.0,
+    story=(
+        "Larkspan relays data from a 500 x 26,000 km orbit inclined 28.5 deg. A new ground "
+        "station needs it in a plane of 32 deg whose node lies 5 deg further east, and, while "
+        "it is at it, a perigee 300 km higher. The analyst must say where on the orbit to turn "
+        "the plane, when the vehicle gets there, whether the small tank suffices, and what the "
+        "220 N thrusters lose against the impulsive ideal."
+    ),
+)
+MISSIONS[LARKSPAN.name] = LARKSPAN
+
+
+def larkspan_orbit():  # -> Conic; imported lazily to keep this module light
+    """Larkspan's working orbit in space (:data:`LARKSPAN` oriented by :data:`LARKSPAN_ORIENTATION`).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from deltakit.demo import larkspan_orbit
+    >>> round(float(np.degrees(larkspan_orbit().inc)), 1)
+    28.5
+    """
+    from .conic import Conic
+
+    return Conic.from_apsides(LARKSPAN.rp, LARKSPAN.ra, LARKSPAN.body.mu, **LARKSPAN_ORIENTATION)

@@ -82,7 +82,9 @@ def _energy_change_kernel(nu: Any, dv: Any, rp: Any, ra: Any, mu: Any) -> np.nda
     with np.errstate(over="ignore"):  # the product overflows only where the energy change does
         gain = np.asarray(speed + 0.5 * dv)
         gain *= dv
-    np.copyto(gain, np.nan, where=~(speed > -dv))  # the burn would stop the vehicle (or no orbit)
+    # dv = -v stops the vehicle (no orbit left); dv < -v reverses the motion, as in burn_prograde;
+    # a NaN speed (no such orbit) stays NaN
+    np.copyto(gain, np.nan, where=speed + dv == 0.0)
     return gain
 
 
@@ -91,9 +93,10 @@ def prograde_energy_change(nu: ArrayLike, dv: ArrayLike, rp: ArrayLike, ra: Arra
 
     Equal to ``burn_prograde(Conic.from_apsides(rp, ra, mu), nu, dv).energy_change``
     but computes only the speed and the Oberth relation, so a grid of a billion
-    cases stays cheap. Where ``ra < rp`` (no such orbit) or ``dv <= -v`` (the
+    cases stays cheap. Where ``ra < rp`` (no such orbit) or ``dv = -v`` (the
     burn would stop the vehicle) the element is NaN instead of an error, so a
-    grid of rp x ra may overlap.
+    grid of rp x ra may overlap; ``dv < -v`` reverses the motion, as in
+    ``burn_prograde``.
 
     Parameters
     ----------

@@ -291,5 +291,43 @@ def test_every_entry_is_checked_here(name):
         "escape_burn_elliptic", "capture_burn_elliptic",
         "powered_flyby", "rocket_equation", "ejection_energy", "burn_energy",
         "propulsive_efficiency", "c3", "lambert_time_of_flight",
+        "normal_burn_inclination", "plane_turn", "edelbaum",
     }  # fmt: skip
     assert name in checks
+
+
+def test_normal_burn_inclination():
+    # Vallado, Fundamentals of Astrodynamics and Applications, 4th ed., Sec. 6.4 (from
+    # memory): turning the plane by delta about the radius at argument of latitude u
+    # gives cos i' = cos i cos delta - sin i sin delta cos u; a normal burn N at
+    # transverse speed vt turns it by tan(delta) = N / vt (the velocity triangle).
+    d, s = _symbols("normal_burn_inclination")
+    inc, u, vt, normal = s["inc"], s["u"], s["vt"], s["normal"]
+    delta = sp.atan(normal / vt)
+    textbook = sp.acos(sp.cos(inc) * sp.cos(delta) - sp.sin(inc) * sp.sin(delta) * sp.cos(u))
+    _assert_same(d.result, textbook)
+    # at the node (u = 0) the inclination simply grows by delta (common practice)
+    at_node = sp.simplify(sp.cos(d.result.subs(u, 0)) - sp.cos(inc + delta))
+    assert sp.simplify(sp.expand_trig(at_node)) == 0
+
+
+def test_plane_turn():
+    # Vallado, 4th ed., Sec. 6.4, combined change of inclination and node (from memory):
+    # cos(theta) = cos i1 cos i2 + sin i1 sin i2 cos(delta Omega).
+    d, s = _symbols("plane_turn")
+    i1, o1, i2, o2 = s["inc1"], s["raan1"], s["inc2"], s["raan2"]
+    textbook = sp.cos(i1) * sp.cos(i2) + sp.sin(i1) * sp.sin(i2) * sp.cos(o2 - o1)
+    # cos(2 asin(sqrt(x))) = 1 - 2 x: compare cosines
+    cosine = 1 - 2 * sp.sin(d.result / 2) ** 2
+    _assert_same(sp.expand_trig(sp.expand(cosine)), sp.expand_trig(sp.expand(textbook)))
+    # same node: the turn is the difference of inclinations (common practice)
+    same_node = d.result.subs(o2, o1)
+    assert sp.simplify(sp.sin(same_node / 2) ** 2 - sp.sin((i2 - i1) / 2) ** 2) == 0
+
+
+def test_edelbaum():
+    # Edelbaum, ARS Journal 31(8), 1961 (from memory): the low-thrust delta-v between
+    # circular orbits with a change of plane di is sqrt(v1^2 + v2^2 - 2 v1 v2 cos(pi di / 2)).
+    d, s = _symbols("edelbaum")
+    v1, v2, angle = s["v1"], s["v2"], s["angle"]
+    _assert_same(d.result**2, v1**2 + v2**2 - 2 * v1 * v2 * sp.cos(sp.pi / 2 * angle))

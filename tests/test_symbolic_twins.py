@@ -160,6 +160,33 @@ def _efficiency(rng):
     return {"v": _u(rng, -20000.0, 20000.0), "ve": _u(rng, 300.0, 45000.0)}
 
 
+def _normal_burn(rng):
+    # inclinations away from 0 and pi, where the arc cosine of the derived form
+    # (not the numeric twin) would lose digits
+    vt = _u(rng, 1000.0, 12000.0)
+    return {
+        "inc": _u(rng, 0.2, np.pi - 0.2),
+        "u": _u(rng, -np.pi, np.pi),
+        "vt": vt,
+        "normal": vt * _u(rng, -0.3, 0.3),
+    }
+
+
+def _plane_turn(rng):
+    inc1 = _u(rng, 0.0, np.pi)
+    return {
+        "inc1": inc1,
+        "raan1": _u(rng, 0.0, 2 * np.pi),
+        "inc2": np.clip(inc1 + _u(rng, -1.5, 1.5), 0.0, np.pi),
+        "raan2": _u(rng, 0.0, 2 * np.pi),
+    }
+
+
+def _edelbaum(rng):
+    # up to 2 rad, the reach of the optimal yaw law (deltakit.lowthrust)
+    return {"v1": _u(rng, 1000.0, 20000.0), "v2": _u(rng, 1000.0, 20000.0), "angle": _u(rng, 0.05, 2.0)}
+
+
 def _energy_scale(kw):
     # kinetic-energy terms, J: the parts may cancel to near zero, their size does not
     m = kw.get("m_vehicle", kw.get("m0"))
@@ -202,6 +229,9 @@ CASES = {
     # C3 = v^2 - 2 mu/r cancels to near zero just at escape: scale by its larger term
     "c3": (_c3, lambda kw: kw["v"] ** 2 + 2.0 * kw["mu"] / kw["r"]),
     "lambert_time_of_flight": (_lambert_tof, None),
+    "normal_burn_inclination": (_normal_burn, None),
+    "plane_turn": (_plane_turn, None),
+    "edelbaum": (_edelbaum, None),
 }
 
 # (entry, output, how to read the same number from the twin, scale of the largest term or None)

@@ -200,11 +200,12 @@ def test_prograde_energy_change_is_the_oberth_gain_at_the_conic_speed(nu, dv, rp
     ra = rp + span
     speed, expected = _energy_change_exact(nu, dv, rp, ra, EARTH.mu)
     assume(abs(speed + dv) > 1e-9 * speed)  # not on the edge where the burn stops the vehicle
+    # A burn with dv < -v reverses the motion (as burn_prograde does): still v dv + dv^2/2. Near
+    # dv = -2v the speed comes back to v and the factor v + dv/2 cancels: the relative accuracy of
+    # the result is then eps * v / |v + dv/2|, so those few cases are left out of the relative check.
+    assume(abs(speed + 0.5 * dv) > 1e-3 * speed)
     got = float(prograde_energy_change(nu, dv, rp, ra, EARTH.mu))
-    if speed + dv <= 0.0:
-        assert np.isnan(got)
-    else:  # relative: the gain dv (v + dv/2) has no cancellation while v + dv > 0
-        assert got == pytest.approx(expected, rel=1e-13, abs=0.0)
+    assert got == pytest.approx(expected, rel=1e-12, abs=0.0)
 
 
 def test_prograde_energy_change_equals_burn_prograde_and_keeps_apoapsis_digits():

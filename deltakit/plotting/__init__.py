@@ -27,12 +27,14 @@ from .orbits import (
     update_conic,
     update_transfer,
 )
+from .space import Conic3DArtists, conic_points_3d, draw_conic_3d, update_conic_3d
 from .waterfall import WaterfallArtists, plot_budget_waterfall, update_budget_waterfall
 from .windows import TransferMapArtists, map_minimum, plot_transfer_map
 
 __all__ = [
     "COLOURS",
     "BurnArtists",
+    "Conic3DArtists",
     "ConicArtists",
     "LeftArtists",
     "SensitivityArtists",
@@ -41,8 +43,10 @@ __all__ = [
     "WaterfallArtists",
     "burn_at_angle",
     "conic_points",
+    "conic_points_3d",
     "draw_burn",
     "draw_conic",
+    "draw_conic_3d",
     "draw_transfer",
     "energy_gain_curve",
     "map_minimum",
@@ -54,6 +58,7 @@ __all__ = [
     "update_budget_waterfall",
     "update_burn",
     "update_conic",
+    "update_conic_3d",
     "update_energy_gain",
     "update_transfer",
 ]

@@ -20,7 +20,7 @@ True
 
 from __future__ import annotations
 
-from . import departure, energetics, interplanetary, orbits, transfers  # noqa: F401  (importing registers the entries)
+from . import departure, energetics, interplanetary, orbits, space, transfers  # noqa: F401  (importing registers the entries)
 from ._registry import UnknownEntry, catalog, derive, titles
 from .derivation import Derivation, Meaning
 from .report import report
