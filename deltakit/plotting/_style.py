@@ -41,16 +41,21 @@ def style_axes(ax, *, xlabel: str | None = None, ylabel: str | None = None, titl
 
 
 def plain_log_ticks(axis) -> None:
-    """Label a log axis 1, 10, 100 rather than as powers of ten: plainer to read, and no mathtext to lay out.
+    """Ticks of a log axis at 1, 2, 5, 10, 20, ... labelled as plain numbers, with no minor ticks.
+
+    Plainer to read than powers of ten, and a third of the tick artists a
+    default log axis draws (each costs a full figure draw time).
 
     Examples
     --------
     >>> from matplotlib.figure import Figure
-    >>> ax = Figure().add_subplot(xscale="log", xlim=(1, 100))
+    >>> ax = Figure().add_subplot(xscale="log", xlim=(1, 50))
     >>> plain_log_ticks(ax.xaxis)
-    >>> ax.xaxis.get_major_formatter()(10.0)
-    '10'
+    >>> [ax.xaxis.get_major_formatter()(v) for v in ax.xaxis.get_majorticklocs() if 1 <= v <= 50]
+    ['1', '2', '5', '10', '20', '50']
     """
-    from matplotlib.ticker import FuncFormatter
+    from matplotlib.ticker import FuncFormatter, LogLocator, NullLocator
 
+    axis.set_major_locator(LogLocator(base=10.0, subs=(1.0, 2.0, 5.0)))
     axis.set_major_formatter(FuncFormatter(lambda value, position: f"{value:g}"))
+    axis.set_minor_locator(NullLocator())
