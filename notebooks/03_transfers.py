@@ -107,12 +107,19 @@ print(
 # ## The panel
 #
 # `TransferTrade` draws both transfers to scale, the totals over radius ratio with the break-even points,
-# and the plane-change split. Drive it from code, then slide the plane change.
+# and the plane-change split. Like every panel it takes altitudes above the surface (the functions above
+# take radii from the centre). Drive it from code, then slide the plane change.
 
 # %%
 from deltakit.widgets import TransferTrade
 
-transfer = TransferTrade(body="Earth", r1=r1, r2=r2, rb=rb, plane_change=angle)
+transfer = TransferTrade(
+    body="Earth",
+    initial_altitude=r1 - EARTH.radius,
+    final_altitude=r2 - EARTH.radius,
+    intermediate_altitude=rb - EARTH.radius,
+    plane_change=angle,
+)
 print(
     f"panel: Hohmann {transfer.results['hohmann_total']:.1f} m/s, "
     f"bi-elliptic {transfer.results['bielliptic_total']:.1f} m/s, "

@@ -77,6 +77,7 @@ def jupyterlab(root: Path, home: Path) -> Iterator[dict[str, Any]]:
         (home / sub).mkdir(exist_ok=True)
         env[var] = str(home / sub)
     env.pop("MPLBACKEND", None)  # let the kernel use ipympl as the notebook asks
+    env.pop("DELTAKIT_FIGURES", None)  # and let panels choose their figures as in a notebook
     # Keep the news and update pop-ups away; JupyterLab reads overrides from the
     # environment's share/jupyter/lab/settings, which we must not touch, so the
     # same settings go to the per-user settings folder of the temporary home.

@@ -29,18 +29,13 @@ from typing import Any
 import pytest
 from _jupyterlab import chromium, get, jupyterlab, require_browser
 
+from deltakit.widgets import PANELS as REGISTERED
+
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
 
-#: The panels the notebook shows, in order (DESIGN.md, "Widgets and plots").
-PANELS = [
-    "BurnPointExplorer",
-    "PropellantTrade",
-    "TransferTrade",
-    "EscapeFlyby",
-    "BudgetBuilder",
-    "FormulaSheet",
-]
+#: The panels the notebook shows, in order (DESIGN.md, "Widgets and plots"): every registered panel.
+PANELS = list(REGISTERED)
 
 #: Lab extensions the kernel's widgets need in the browser.
 NEEDED_EXTENSIONS = ("@jupyter-widgets/jupyterlab-manager", "jupyter-matplotlib")
@@ -76,6 +71,15 @@ smoke_box
 """
 
 
+#: A propellant trade given an exhaust velocity: the specific-impulse box follows it.
+MIRROR_CELL = """\
+from deltakit.widgets import PropellantTrade
+mirror = PropellantTrade(exhaust_velocity=3200.0)
+mirror.add_class("bt-mirror")
+mirror
+"""
+
+
 def _panel_cell(name: str) -> str:
     return (
         f"from deltakit.widgets import {name}\n"
@@ -91,6 +95,7 @@ def _write_notebook(folder: Path) -> Path:
     cells = [nbformat.v4.new_markdown_cell("# Browser test: every panel with its defaults")]
     cells.append(nbformat.v4.new_code_cell(SMOKE_CELL))
     cells += [nbformat.v4.new_code_cell(_panel_cell(name)) for name in PANELS]
+    cells.append(nbformat.v4.new_code_cell(MIRROR_CELL))
     nb = nbformat.v4.new_notebook(cells=cells)
     nb.metadata["kernelspec"] = {
         "name": "python3",
@@ -493,3 +498,15 @@ def test_figure_toolbar_never_covers_the_figure(notebook_page: Any, artifacts: P
     assert all(b["overlap"] == 0 for b in found["bars"]), (
         f"{name}: a figure toolbar lies over the figure: {found}"
     )
+
+
+def test_a_box_that_follows_shows_sensible_digits(notebook_page: Any) -> None:
+    """3200 m/s / 9.80665 m/s^2 = 326.309188... s: the box that follows shows 326.31, not 16 digits."""
+    box = notebook_page.locator(".bt-mirror").first
+    box.wait_for(state="visible", timeout=30_000)
+    isp = box.locator(".deltakit-control-isp input").first
+    deadline = time.monotonic() + 10.0
+    while isp.input_value() != "326.31" and time.monotonic() < deadline:
+        notebook_page.wait_for_timeout(200)
+    assert isp.input_value() == "326.31"
+    assert isp.is_disabled()  # it follows the exhaust velocity the analyst gave

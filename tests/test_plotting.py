@@ -232,3 +232,153 @@ def test_gallery_figure_saved(artifacts):
     path = artifacts / "plot_helpers.png"
     fig.savefig(path)
     assert path.stat().st_size > 20_000
+
+
+# ---------------------------------------------------------------------- panels: views hold their curves
+def _visible_lines(fig):
+    from matplotlib.lines import Line2D
+
+    return [line for line in fig.findobj(Line2D) if line.get_visible() and line.axes is not None]
+
+
+def _points_outside_view(ax, line):
+    """Finite data points of ``line`` that lie outside the axes limits (its own axes)."""
+    if line.get_transform() != ax.transData:
+        return 0  # drawn in axes coordinates (axhline, axvline): inside by construction
+    x, y = (np.asarray(v, float) for v in line.get_data())
+    keep = np.isfinite(x) & np.isfinite(y)
+    (x0, x1), (y0, y1) = sorted(ax.get_xlim()), sorted(ax.get_ylim())
+    tx, ty = 1e-9 * (x1 - x0), 1e-9 * (y1 - y0)  # rounding at the frame (180.00000000000003 deg)
+    x, y = x[keep], y[keep]
+    return int(np.count_nonzero((x < x0 - tx) | (x > x1 + tx) | (y < y0 - ty) | (y > y1 + ty)))
+
+
+def _curves_under_legends(fig):
+    """(legend, artist) pairs where a legend box covers part of a curve or bar of the figure."""
+    from matplotlib.legend import Legend
+    from matplotlib.patches import Rectangle
+
+    fig.canvas.draw()
+    renderer = fig.canvas.get_renderer()
+    legends = [legend for legend in fig.findobj(Legend) if legend.get_visible()]
+    own = {id(a) for legend in legends for a in legend.findobj()}
+    found = []
+    for legend in legends:
+        box = legend.get_window_extent(renderer)
+        for line in _visible_lines(fig):
+            if id(line) in own or line.get_transform() is None:
+                continue
+            xy = line.get_transform().transform(np.column_stack(line.get_data()).astype(float))
+            xy = xy[np.isfinite(xy).all(axis=1)]
+            clip = line.axes.bbox
+            inside_axes = (
+                (clip.x0 <= xy[:, 0]) & (xy[:, 0] <= clip.x1) & (clip.y0 <= xy[:, 1]) & (xy[:, 1] <= clip.y1)
+            )
+            xy = xy[inside_axes | (not line.get_clip_on())]
+            hit = (box.x0 < xy[:, 0]) & (xy[:, 0] < box.x1) & (box.y0 < xy[:, 1]) & (xy[:, 1] < box.y1)
+            if hit.any():
+                found.append((line.get_label(), [t.get_text() for t in legend.get_texts()][:2]))
+        for patch in fig.findobj(Rectangle):
+            if id(patch) in own or patch.axes is None or patch is patch.axes.patch or not patch.get_visible():
+                continue
+            if patch.get_width() == 0 or patch.get_height() == 0:
+                continue
+            other = patch.get_window_extent(renderer)
+            if not np.isfinite(other.get_points()).all():
+                continue  # a bar with no height (an infeasible line's NaN) is not drawn
+            if (
+                min(box.x1, other.x1) - max(box.x0, other.x0) > 1
+                and min(box.y1, other.y1) - max(box.y0, other.y0) > 1
+            ):
+                found.append(("bar", [t.get_text() for t in legend.get_texts()][:2]))
+    return found
+
+
+def test_legend_check_sees_a_legend_on_a_curve():
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    fig = Figure(figsize=(4, 3))
+    FigureCanvasAgg(fig)
+    ax = fig.add_subplot()
+    ax.plot(np.linspace(0, 1, 50), np.full(50, 0.9), label="flat line near the top")
+    ax.set_ylim(0.0, 1.0)
+    ax.legend(loc="upper left")
+    assert _curves_under_legends(fig)
+
+
+#: Cases of the burn-point panel that once drew orbits off the axes or under the legend.
+EXPLORER_CASES = {
+    "default": {},
+    "raised apoapsis": {"dv": 400.0, "nu": 0.0},
+    "escape": {"dv": 1000.0, "nu": 0.0},
+    "low orbit, big burn": {
+        "body": "Earth",
+        "periapsis_altitude": 400e3,
+        "apoapsis_altitude": 400e3,
+        "dv": 2000.0,
+    },
+    "retrograde capture-like": {"dv": 600.0, "direction": "retrograde", "nu": 0.0},
+    "radial out at 120 deg": {"dv": 800.0, "direction": "radial out", "nu": 2.0944},
+    "any angle": {"dv": 300.0, "direction": "any angle from prograde", "angle": 2.5},
+}
+
+
+@pytest.mark.parametrize("case", EXPLORER_CASES, ids=list(EXPLORER_CASES))
+def test_burn_point_view_holds_both_orbits_with_legends_off_the_curves(case, artifacts):
+    from deltakit.widgets import BurnPointExplorer
+
+    panel = BurnPointExplorer()
+    panel.set(**EXPLORER_CASES[case])
+    assert panel.error == ""
+    art = panel._artists
+    for line in (art["before"].orbit, art["burn"].after.orbit, art["burn"].marker):
+        assert np.isfinite(line.get_xydata()).any()
+        assert _points_outside_view(panel.orbit_axes, line) == 0, (
+            f"{case}: {line.get_label()} leaves the view"
+        )
+    for line in (art["curve"], art["current"], art["apoapsis"]):
+        assert _points_outside_view(panel.energy_axes, line) == 0, f"{case}: energy curve leaves the view"
+    assert _curves_under_legends(panel.figure) == []
+    name = case.replace(" ", "_").replace(",", "")
+    panel.figure.savefig(artifacts / f"burn_point_{name}.png", dpi=100)
+
+
+PANEL_CASES = {
+    "BurnPointExplorer": {
+        "body": "Earth",
+        "periapsis_altitude": 200e3,
+        "apoapsis_altitude": 400e3,
+        "dv": 1995.0,
+    },
+    "PropellantTrade": {"speed": 19_990.0, "propellant_mass": 40_000.0},
+    "TransferTrade": {"body": "Mars", "initial_altitude": 200e3, "final_altitude": 1e6, "plane_change": 3.0},
+    "EscapeFlyby": {
+        "body": "Earth",
+        "periapsis_altitude": 200e3,
+        "apoapsis_altitude": 200e3,
+        "vinf": 19_950.0,
+        "flyby_dv": 2990.0,
+    },
+    "BudgetBuilder": {"dry_mass": 3000.0},
+}
+
+
+@pytest.mark.parametrize("panel_name", PANEL_CASES)
+@pytest.mark.parametrize("case", ["default", "stressed"])
+def test_panel_pictures_keep_legends_off_the_curves(panel_name, case, artifacts):
+    """Each panel, as it opens and pushed to the ends of its controls; the pictures land in the artefacts."""
+    from deltakit import widgets
+
+    panel = getattr(widgets, panel_name)()
+    if case == "stressed":
+        panel.set(**PANEL_CASES[panel_name])
+    assert panel.error == ""
+    for line in _visible_lines(panel.figure):
+        if line is getattr(panel, "_artists", {}).get("clip"):
+            continue  # the circle an orbit is clipped at: partly outside by design
+        if line.get_clip_on() and line.axes.get_xscale() == "linear" and line.axes.get_yscale() == "linear":
+            assert _points_outside_view(line.axes, line) == 0 or line.get_label().startswith("_"), (
+                line.get_label()
+            )
+    assert _curves_under_legends(panel.figure) == []
+    panel.figure.savefig(artifacts / f"panel_{panel_name}_{case}.png", dpi=100)

@@ -16,7 +16,8 @@ from matplotlib.axes import Axes
 from matplotlib.lines import Line2D
 
 from ..conic import Conic
-from ._style import COLOURS, MJ_PER_KG, style_axes
+from ..units import MJ_per_kg
+from ._style import COLOURS, style_axes
 from .orbits import _one, burn_at_angle
 
 __all__ = ["energy_gain_curve", "plot_energy_gain", "update_energy_gain"]
@@ -43,7 +44,7 @@ def energy_gain_curve(
         limit *= _OPEN_FRACTION
     nu = np.linspace(-limit, limit, n)
     outcome = burn_at_angle(conic, nu, dv, angle, reference=reference)
-    return np.degrees(nu), np.asarray(outcome.energy_change) / MJ_PER_KG
+    return np.degrees(nu), np.asarray(outcome.energy_change) / MJ_per_kg
 
 
 def plot_energy_gain(

@@ -23,7 +23,8 @@ from .._checks import instance_of, positive
 from ..burns import burn_at_angle
 from ..conic import Conic
 from ..errors import DomainError
-from ._style import COLOURS, KM, style_axes
+from ..units import km
+from ._style import COLOURS, style_axes
 
 __all__ = [
     "BurnArtists",
@@ -103,7 +104,7 @@ def conic_points(conic: Conic, *, n: int = 361, r_max: float | None = None) -> t
         nu_max = float(np.arccos(np.clip((p / r_max - 1.0) / e, -1.0, 1.0)))
     nu = np.linspace(-nu_max, nu_max, n)
     with np.errstate(divide="ignore", invalid="ignore"):
-        r = np.where(1.0 + e * np.cos(nu) > 0.0, p / (1.0 + e * np.cos(nu)), np.nan) / KM
+        r = np.where(1.0 + e * np.cos(nu) > 0.0, p / (1.0 + e * np.cos(nu)), np.nan) / km
     return r * np.cos(nu + argp), r * np.sin(nu + argp)
 
 
@@ -113,7 +114,7 @@ def _body_disc(ax: Axes, body_radius: float | None) -> Circle | None:
     radius = float(positive(body_radius, "body_radius", "m"))
     disc = Circle(
         (0.0, 0.0),
-        radius / KM,
+        radius / km,
         facecolor=COLOURS["body"],
         edgecolor=COLOURS["body_edge"],
         linewidth=0.8,
@@ -189,7 +190,7 @@ def update_conic(
     n = len(artists.orbit.get_xdata())
     artists.orbit.set_data(*conic_points(conic, n=n, r_max=r_max))
     if artists.body is not None and body_radius is not None:
-        artists.body.set_radius(float(body_radius) / KM)
+        artists.body.set_radius(float(body_radius) / km)
     return artists
 
 
@@ -214,11 +215,13 @@ def _arrow_length(conic: Conic, nu: float, dv: float) -> float:
     ra = float(conic.ra)
     size = 0.5 * (float(conic.rp) + ra) if np.isfinite(ra) else 2.0 * float(conic.rp)
     v = float(conic.speed(nu))
-    return size / KM * (0.25 + 0.35 * float(np.sqrt(min(1.0, abs(dv) / v)))) if dv else 0.0
+    return size / km * (0.25 + 0.35 * float(np.sqrt(min(1.0, abs(dv) / v)))) if dv else 0.0
 
 
-def _after_extent(conic: Conic, nu: float) -> float:
-    """Radius (m) out to which an orbit after a burn at ``nu`` is drawn."""
+def _after_extent(conic: Conic, nu: float, after_r_max: float | None = None) -> float:
+    """Radius (m) out to which an orbit after a burn at ``nu`` is drawn (``after_r_max`` if given)."""
+    if after_r_max is not None:
+        return float(positive(after_r_max, "after_r_max", "m"))
     r = float(conic.radius(nu))
     ra = float(conic.ra)
     return max(3.0 * r, ra if np.isfinite(ra) else 0.0)
@@ -233,6 +236,7 @@ def draw_burn(
     angle: float = 0.0,
     reference: str = "velocity",
     show_after: bool = True,
+    after_r_max: float | None = None,
     **kwargs: Any,
 ) -> BurnArtists:
     """Mark a burn on an orbit, draw its delta-v arrow and the orbit after it.
@@ -254,6 +258,9 @@ def draw_burn(
         What ``angle`` is measured from.
     show_after : bool
         Draw the orbit after the burn (amber, dashed).
+    after_r_max : float, optional
+        Largest radius (m) of the orbit after the burn that is drawn; by
+        default three times the burn radius or its apoapsis, whichever is larger.
     **kwargs
         Passed to :meth:`Axes.plot` for the burn marker.
 
@@ -275,7 +282,7 @@ def draw_burn(
     conic = _one(conic)
     nu, dv, angle = float(nu), float(dv), float(angle)
     r_vec, _ = conic.state(nu)
-    x, y = r_vec / KM
+    x, y = r_vec / km
     kwargs.setdefault("color", COLOURS["burn"])
     kwargs.setdefault("marker", "o")
     kwargs.setdefault("markersize", 7)
@@ -298,7 +305,7 @@ def draw_burn(
     after_line = draw_conic(
         ax,
         _after_conic(conic, nu, dv, angle, reference),
-        r_max=_after_extent(conic, nu),
+        r_max=_after_extent(conic, nu, after_r_max),
         color=COLOURS["after"],
         linestyle="--",
         linewidth=1.6,
@@ -324,23 +331,24 @@ def update_burn(
     angle: float = 0.0,
     reference: str = "velocity",
     after: Conic | None = None,
+    after_r_max: float | None = None,
 ) -> BurnArtists:
     """Move the artists of :func:`draw_burn` in place.
 
     Pass ``after`` when the caller has already computed the orbit after the
-    burn, so it is not computed twice.
+    burn, so it is not computed twice; ``after_r_max`` as in :func:`draw_burn`.
     """
     conic = _one(conic)
     nu, dv, angle = float(nu), float(dv), float(angle)
     r_vec, _ = conic.state(nu)
-    x, y = r_vec / KM
+    x, y = r_vec / km
     artists.marker.set_data([x], [y])
     artists.arrow.set_offsets([[x, y]])
     u, v = _arrow_vector(conic, nu, dv, angle, _arrow_length(conic, nu, dv), reference)
     artists.arrow.set_UVC([u], [v])
     if after is None:
         after = _after_conic(conic, nu, dv, angle, reference)
-    update_conic(artists.after, after, r_max=_after_extent(conic, nu))
+    update_conic(artists.after, after, r_max=_after_extent(conic, nu, after_r_max))
     return artists
 
 
@@ -358,7 +366,7 @@ def _transfer_arcs(
         nu = half if r_start <= r_end else half + np.pi
         r = rp * (1.0 + e) / (1.0 + e * np.cos(nu))
         theta = start_angle + half
-        return r * np.cos(theta) / KM, r * np.sin(theta) / KM
+        return r * np.cos(theta) / km, r * np.sin(theta) / km
 
     hx, hy = half_ellipse(r1, r2, 0.0)
     if rb is None:
@@ -370,7 +378,7 @@ def _transfer_arcs(
 
 def _circle(r: float) -> tuple[np.ndarray, np.ndarray]:
     t = np.linspace(0.0, 2.0 * np.pi, 241)
-    return r * np.cos(t) / KM, r * np.sin(t) / KM
+    return r * np.cos(t) / km, r * np.sin(t) / km
 
 
 def draw_transfer(
@@ -449,5 +457,5 @@ def update_transfer(
     if artists.bielliptic is not None:
         artists.bielliptic.set_data(bx, by)
     if artists.body is not None and body_radius is not None:
-        artists.body.set_radius(float(body_radius) / KM)
+        artists.body.set_radius(float(body_radius) / km)
     return artists

@@ -19,7 +19,8 @@ from mpl_toolkits.mplot3d.art3d import Line3D, Poly3DCollection
 
 from .._checks import positive
 from ..conic import Conic
-from ._style import COLOURS, KM
+from ..units import km as KM  # display kilometres (the unit scales live in deltakit.units)
+from ._style import COLOURS
 from .orbits import OPEN_ORBIT_EXTENT, _one
 
 __all__ = ["Conic3DArtists", "conic_points_3d", "draw_conic_3d", "update_conic_3d"]

@@ -2,7 +2,8 @@
 
 Each bar stands at the mass before its line: the lower part (slate) is the
 mass left after the line, the upper part (amber) the propellant the line
-burns. The first bar is the starting mass. Masses in kg.
+burns. The first bar is the starting mass. Masses in kg. Line labels are
+shown as typed (never read as mathtext: a label ``$\\frac{`` stays text).
 """
 
 from __future__ import annotations
@@ -123,7 +124,8 @@ def plot_budget_waterfall(ax: Axes, budget: Any, *, width: float = 0.7, **kwargs
         dry = ax.axhline(
             float(dry_mass), color=COLOURS["burn"], linestyle="--", linewidth=1.2, label="dry mass"
         )
-    ax.legend(loc="upper right", fontsize="small", framealpha=0.9)
+    # above the axes, where no bar can stand under it
+    ax.legend(loc="lower center", bbox_to_anchor=(0.5, 1.0), ncol=3, fontsize="small", frameon=False)
     ax.format_coord = _mass_readout(labels, masses, spent)
     return WaterfallArtists(remaining, spent_bars, dry)
 

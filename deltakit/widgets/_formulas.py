@@ -18,11 +18,9 @@ from ..constants import BODIES, EARTH
 from ..departure import capture_burn, escape_burn
 from ..errors import DomainError
 from ..transfers import bielliptic, hohmann, plane_change
+from ..units import deg, km
 
 __all__ = ["FORMULAS", "Formula", "Parameter", "evaluate"]
-
-KM = 1e3
-DEG = math.pi / 180.0
 
 
 @dataclass(frozen=True)
@@ -54,7 +52,7 @@ def _body(params: dict[str, Any]):
 def _altitude(params: dict[str, Any], key: str, body) -> float:
     value = float(params[key])
     if value < 0.0:
-        raise DomainError(f"{key.replace('_', ' ')} {value / KM:g} km is below the surface of {body.name}")
+        raise DomainError(f"{key.replace('_', ' ')} {value / km:g} km is below the surface of {body.name}")
     return body.radius + value
 
 
@@ -80,8 +78,8 @@ FORMULAS: dict[str, Formula] = {
         "Hohmann transfer",
         (
             _BODY,
-            Parameter("r1", "initial radius (km)", KM, EARTH.radius + 400e3),
-            Parameter("r2", "final radius (km)", KM, 42_164e3),
+            Parameter("r1", "initial radius (km)", km, EARTH.radius + 400e3),
+            Parameter("r2", "final radius (km)", km, 42_164e3),
         ),
         lambda p: hohmann(p["r1"], p["r2"], _body(p).mu),
     ),
@@ -89,24 +87,24 @@ FORMULAS: dict[str, Formula] = {
         "bi-elliptic transfer",
         (
             _BODY,
-            Parameter("r1", "initial radius (km)", KM, EARTH.radius + 400e3),
-            Parameter("r2", "final radius (km)", KM, 120_000e3),
-            Parameter("rb", "intermediate radius (km)", KM, 240_000e3),
+            Parameter("r1", "initial radius (km)", km, EARTH.radius + 400e3),
+            Parameter("r2", "final radius (km)", km, 120_000e3),
+            Parameter("rb", "intermediate radius (km)", km, 240_000e3),
         ),
         lambda p: bielliptic(p["r1"], p["r2"], p["rb"], _body(p).mu),
     ),
     "plane_change": Formula(
         "plane change",
-        (Parameter("v", "speed (km/s)", KM, 7_670.0), Parameter("angle", "angle (deg)", DEG, 5 * DEG)),
+        (Parameter("v", "speed (km/s)", km, 7_670.0), Parameter("angle", "angle (deg)", deg, 5 * deg)),
         lambda p: plane_change(p["v"], p["angle"]),
     ),
     "escape_burn": Formula(
         "escape from a parking orbit",
         (
             _BODY,
-            Parameter("periapsis_altitude", "parking periapsis altitude (km)", KM, 400e3),
-            Parameter("apoapsis_altitude", "parking apoapsis altitude (km)", KM, 400e3),
-            Parameter("vinf", "excess speed (km/s)", KM, 3_000.0),
+            Parameter("periapsis_altitude", "parking periapsis altitude (km)", km, 400e3),
+            Parameter("apoapsis_altitude", "parking apoapsis altitude (km)", km, 400e3),
+            Parameter("vinf", "excess speed (km/s)", km, 3_000.0),
         ),
         _departure(escape_burn),
     ),
@@ -114,9 +112,9 @@ FORMULAS: dict[str, Formula] = {
         "capture into a parking orbit",
         (
             _BODY,
-            Parameter("periapsis_altitude", "parking periapsis altitude (km)", KM, 300e3),
-            Parameter("apoapsis_altitude", "parking apoapsis altitude (km)", KM, 300e3),
-            Parameter("vinf", "arrival excess speed (km/s)", KM, 2_650.0),
+            Parameter("periapsis_altitude", "parking periapsis altitude (km)", km, 300e3),
+            Parameter("apoapsis_altitude", "parking apoapsis altitude (km)", km, 300e3),
+            Parameter("vinf", "arrival excess speed (km/s)", km, 2_650.0),
         ),
         _departure(capture_burn),
     ),

@@ -8,6 +8,14 @@ readouts give the totals. Save and load go through :class:`deltakit.Budget`
 files (atomic, versioned JSON; a foreign or damaged file is refused and left
 as it is); Markdown, LaTeX and CSV exports are shown and offered as downloads.
 
+The panel's model of the lines is its :attr:`BudgetBuilder.budget`, a
+:class:`deltakit.Budget` edited with the budget's own methods (add, replace,
+move, remove). A line made from a formula keeps the formula and its
+parameters in its ``source``, so a saved budget opens again with its lines
+editable. ``values["lines"]`` reads the lines back as recipes ``{"label",
+"formula", "params", "margin", "isp"}``; margins are fractions there, as in
+:meth:`deltakit.Budget.add` (0.05 = +5 %), and the editor shows them in percent.
+
 Default case: the invented Halyard tug (:mod:`deltakit.demo`) taking cargo
 from a 400 km Earth orbit to a 100 km lunar orbit.
 """
@@ -15,14 +23,16 @@ from a 400 km Earth orbit to a 100 km lunar orbit.
 from __future__ import annotations
 
 import base64
-import html
 import math
+import re
 import tempfile
+from collections.abc import Mapping
 from pathlib import Path
 from typing import Any, ClassVar
 
 import ipywidgets as widgets
 
+from .._text import escape_html, one_line
 from ..budget import Budget
 from ..constants import BODIES, EARTH, G0, MOON
 from ..demo import HALYARD, LUNAR_ORBIT_ALTITUDE, MOON_DISTANCE
@@ -30,12 +40,11 @@ from ..errors import DomainError
 from ..plotting.waterfall import update_budget_waterfall
 from ..transfers import hohmann
 from ..twobody import circular_speed
-from ._base import Panel, json_ready, number, number_width
+from ..units import deg, percent
+from ._base import Computed, InputError, Panel, _Plan, _round_si, json_ready, number, number_width
 from ._formulas import FORMULAS, evaluate
 
 __all__ = ["BudgetBuilder", "default_lines"]
-
-DEG = math.pi / 180.0
 
 
 def default_lines() -> list[dict[str, Any]]:
@@ -49,15 +58,8 @@ def default_lines() -> list[dict[str, Any]]:
             "formula": "number",
             "params": {"dv": round(injection, 1)},
             "margin": 0.02,
-            "isp": None,
         },
-        {
-            "label": "course corrections",
-            "formula": "number",
-            "params": {"dv": 40.0},
-            "margin": 0.0,
-            "isp": None,
-        },
+        {"label": "course corrections", "formula": "number", "params": {"dv": 40.0}},
         {
             "label": "lunar orbit insertion",
             "formula": "capture_burn",
@@ -68,34 +70,87 @@ def default_lines() -> list[dict[str, Any]]:
                 "vinf": 800.0,
             },
             "margin": 0.05,
-            "isp": None,
         },
         {
             "label": "plane trim at the Moon",
             "formula": "plane_change",
-            "params": {"v": round(float(circular_speed(low_lunar, MOON.mu)), 1), "angle": 3 * DEG},
-            "margin": 0.0,
-            "isp": None,
+            "params": {"v": round(float(circular_speed(low_lunar, MOON.mu)), 1), "angle": 3 * deg},
         },
     ]
 
 
-def _clean_line(line: Any, number: int) -> dict[str, Any]:
-    """A line recipe checked and normalised (SI), or DomainError naming the line."""
-    if not isinstance(line, dict):
-        raise DomainError(f"line {number} must be a dict, not {type(line).__name__}")
+def _recipe(line: Any, number: int) -> dict[str, Any]:
+    """A line recipe checked and completed (SI; margin a fraction), or DomainError naming the line."""
+    if not isinstance(line, Mapping):
+        raise DomainError(f"line {number + 1} must be a dict, not {type(line).__name__}")
     formula = line.get("formula", "number")
     if formula not in FORMULAS:
-        raise DomainError(f"line {number}: `formula` must be one of {list(FORMULAS)}, not {formula!r}")
+        raise DomainError(f"line {number + 1}: `formula` must be one of {list(FORMULAS)}, not {formula!r}")
     params = dict(line.get("params", {}))
+    label = line.get("label", f"line {number + 1}")
+    if not isinstance(label, str):
+        raise DomainError(f"line {number + 1}: `label` must be text, not {type(label).__name__}")
     isp = line.get("isp")
     return {
-        "label": str(line.get("label", f"line {number + 1}")),
+        "label": label,
         "formula": formula,
         "params": {p.key: params.get(p.key, p.default) for p in FORMULAS[formula].parameters},
         "margin": float(line.get("margin", 0.0)),
         "isp": None if isp in (None, 0, 0.0) else float(isp),
     }
+
+
+def recipes(budget: Budget) -> list[dict[str, Any]]:
+    """A budget's lines as recipes: a formula and its parameters where the line came from one."""
+    out = []
+    for line in budget.lines:
+        source = line.source
+        formula = source.get("formula") if source.get("formula") in FORMULAS else "number"
+        params = dict(source.get("params", {})) if formula != "number" else {"dv": line.dv}
+        out.append(
+            {
+                "label": line.label,
+                "formula": formula,
+                "params": params,
+                "margin": line.margin,
+                "isp": None if line.ve is None else _round_si(line.ve / G0),
+            }
+        )
+    return out
+
+
+def _with_recipes(budget: Budget, lines: list[dict[str, Any]], indices: range | list[int]) -> Budget:
+    """The budget with the formula and parameters of ``lines`` kept in the sources of those lines."""
+    data = budget.to_dict()
+    for index in indices:
+        line = lines[index]
+        if line["formula"] != "number":
+            entry = data["lines"][index]
+            params = json_ready(line["params"])
+            entry["source"] = dict(entry["source"], formula=line["formula"], params=params)
+    return Budget.from_dict(data)
+
+
+def _line_dv(line: dict[str, Any], index: int) -> Any:
+    try:
+        return evaluate(line["formula"], line["params"])
+    except (DomainError, TypeError, ValueError) as err:
+        raise InputError(f"line {index + 1} ({one_line(line['label'])}): {err}", "lines") from None
+
+
+def _file_stem(name: str) -> str:
+    """A download name from the budget's name: letters, digits, ``_`` and single dashes.
+
+    >>> _file_stem("Halyard: Earth orbit to low lunar orbit"), _file_stem("  "), _file_stem("a--b__c")
+    ('Halyard-Earth-orbit-to-low-lunar-orbit', 'budget', 'a-b__c')
+    """
+    return re.sub(r"[^0-9A-Za-z_]+", "-", name).strip("-") or "budget"
+
+
+def _csv_text(budget: Budget) -> str:
+    """The budget's CSV export as text."""
+    with tempfile.TemporaryDirectory() as folder:
+        return Path(budget.to_csv(Path(folder) / "budget.csv")).read_text()
 
 
 class BudgetBuilder(Panel):
@@ -114,8 +169,8 @@ class BudgetBuilder(Panel):
         budget closes; with it, a line that burns below it is infeasible).
     lines : list of dict or None
         Line recipes ``{"label", "formula", "params", "margin", "isp"}`` with
-        ``formula`` a key of ``FORMULAS`` and ``params`` in SI; None gives the
-        Halyard example.
+        ``formula`` a key of ``FORMULAS``, ``params`` in SI and ``margin`` a
+        fraction (0.05 = +5 %); None gives the Halyard example.
     path : str
         File for save and load.
 
@@ -126,8 +181,12 @@ class BudgetBuilder(Panel):
     ...                       lines=[{"label": "burn", "formula": "number", "params": {"dv": 500.0}}])
     >>> round(panel.results["final_mass"], 1)
     843.7
+    >>> round(float(panel.budget.propellant), 1)
+    156.3
     """
 
+    #: a budget that does not close has no final mass; without a dry mass, no propellant left
+    may_be_nonfinite: ClassVar[frozenset[str]] = frozenset({"propellant", "final_mass", "propellant_left"})
     readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
         "total_dv": ("total delta-v (with margins)", 1.0, "m/s"),
         "propellant": ("propellant used", 1.0, "kg"),
@@ -146,23 +205,21 @@ class BudgetBuilder(Panel):
         path: str = "budget.json",
     ) -> None:
         super().__init__()
-        self._lines: list[dict[str, Any]] = [
-            _clean_line(line, i) for i, line in enumerate(default_lines() if lines is None else lines)
-        ]
+        #: The budget the panel shows (the last valid one), lines and all.
+        self.budget: Budget | None = None
         self._control(
-            "name", widgets.Text(value=name, description="budget name", layout=widgets.Layout(width="420px"))
+            "name", widgets.Text(value="", description="budget name", layout=widgets.Layout(width="420px"))
         )
-        self._control("m0", number("starting mass (kg)", m0), 1.0)
-        self._control("isp", number("specific impulse (s)", isp), 1.0)
-        self._control("dry_mass", number("dry mass (kg, 0: not given)", dry_mass), 1.0)
+        self._control("m0", number("starting mass (kg)", 0.0), 1.0, "kg")
+        self._control("isp", number("specific impulse (s)", 0.0), 1.0, "s")
+        self._control("dry_mass", number("dry mass (kg, 0: not given)", 0.0), 1.0, "kg")
         self._control(
             "lines",
             widgets.Select(options=[], rows=6, description="lines", layout=widgets.Layout(width="640px")),
         )
         self._control(
-            "path", widgets.Text(value=path, description="file", layout=widgets.Layout(width="420px"))
+            "path", widgets.Text(value="", description="file", layout=widgets.Layout(width="340px"))
         )
-        self.budget: Budget | None = None
         self._waterfall = None
         self._build_editor()
         self._build_exports()
@@ -170,24 +227,31 @@ class BudgetBuilder(Panel):
         self._finish(
             "Budget builder: lines, propellant, mass after each line",
             [["name"], ["m0", "isp", "dry_mass"], ["lines"]],
+            initial={
+                "name": name,
+                "m0": m0,
+                "isp": isp,
+                "dry_mass": dry_mass,
+                "lines": default_lines() if lines is None else lines,
+                "path": path,
+            },
             extra=[self._editor_box, self._file_box],
+            below=[self._export_box],
         )
-        self.children = (*self.children[:-2], self._export_box, *self.children[-2:])
-        self._select(0 if self._lines else None)
+        self._select(0 if self.budget.lines else None)
 
     # ------------------------------------------------------------------ values
     def _si(self, name: str) -> Any:
         if name == "lines":
-            return json_ready([dict(line, params=dict(line["params"])) for line in self._lines])
+            return json_ready(recipes(self.budget)) if self.budget is not None else []
         return super()._si(name)
 
-    def _assign(self, name: str, value: Any) -> None:
-        if name == "lines":
-            if not isinstance(value, (list, tuple)):
-                raise DomainError(f"`lines` must be a list of line dicts, not {type(value).__name__}")
-            self._lines = [_clean_line(line, i) for i, line in enumerate(value)]
-            return
-        super()._assign(name, value)
+    def _plan(self, name: str, value: Any) -> _Plan:
+        if name != "lines":
+            return super()._plan(name, value)
+        if not isinstance(value, (list, tuple)):
+            raise DomainError(f"`lines` must be a list of line dicts, not {type(value).__name__}")
+        return _Plan([_recipe(line, i) for i, line in enumerate(value)], lambda: None)
 
     def _on_change(self, change: dict[str, Any]) -> None:
         if change["owner"] is self.controls["lines"]:
@@ -197,9 +261,76 @@ class BudgetBuilder(Panel):
             return
         super()._on_change(change)
 
+    # ------------------------------------------------------------------ the case
+    @classmethod
+    def compute(cls, values: Mapping[str, Any]) -> Computed:
+        """The budget of ``values`` (SI, keyed like the controls; lines as recipes) and its totals."""
+        m0, isp, dry = values["m0"], values["isp"], values["dry_mass"]
+        if not m0 > 0.0:
+            raise InputError(f"starting mass must be > 0 kg (got {m0:g} kg).", "m0")
+        if not isp > 0.0:
+            raise InputError(f"specific impulse must be > 0 s (got {isp:g} s).", "isp")
+        if dry < 0.0 or (dry and dry >= m0):
+            raise InputError(
+                f"dry mass must be between 0 and the starting mass {m0:g} kg (got {dry:g} kg).", "dry_mass"
+            )
+        lines = [_recipe(line, i) for i, line in enumerate(values["lines"])]
+        budget = Budget(m0, isp * G0, values["name"], dry_mass=dry or None)
+        for index, line in enumerate(lines):
+            margin = line["margin"]
+            if not 0.0 <= margin <= 1.0:
+                raise InputError(
+                    f"line {index + 1} ({one_line(line['label'])}): margin {margin / percent:g} % must be "
+                    "between 0 and 100 % of the line's delta-v (+5 % is 5 in the editor, 0.05 in code).",
+                    "lines",
+                )
+            if line["isp"] is not None and not line["isp"] > 0.0:
+                raise InputError(
+                    f"line {index + 1} ({one_line(line['label'])}): its own specific impulse must be > 0 s.",
+                    "lines",
+                )
+            ve = None if line["isp"] is None else line["isp"] * G0
+            budget.add(line["label"], _line_dv(line, index), ve=ve, margin=margin)
+        budget = _with_recipes(budget, lines, range(len(lines)))
+        left = budget.propellant_left
+        results = {
+            "total_dv": float(budget.total_dv),
+            "propellant": float(budget.propellant),
+            "final_mass": float(budget.final_mass),
+            "propellant_left": float(left) if left is not None else math.nan,
+            "mass_after": [float(m) for m in budget.mass_after],
+            "propellant_per_line": [float(m) for m in budget.propellant_per_line],
+        }
+        notes = []
+        if budget.first_infeasible is not None:
+            notes.append(
+                f"Line {budget.first_infeasible + 1} ({budget.lines[budget.first_infeasible].label}) "
+                "needs more propellant than is left above the dry mass: the budget does not close."
+            )
+        return Computed(results, tuple(notes), {"budget": budget})
+
+    def draw(self, computed: Computed, changed: set[str]) -> None:
+        budget = computed.drawing["budget"]
+        self.budget = budget
+        self._waterfall = update_budget_waterfall(self.axes, self._waterfall, budget)
+        self.view.invalidate()
+        select = self.controls["lines"]
+        selected = select.value
+        with self._quietly():
+            select.options = [(self._describe(i, line, budget), i) for i, line in enumerate(budget.lines)]
+            select.value = selected if selected is not None and selected < len(budget.lines) else None
+        self._show_export()
+
+    @staticmethod
+    def _describe(index: int, line: Any, budget: Budget) -> str:
+        after = float(budget.mass_after[index])
+        margin = f" +{line.margin / percent:g} %" if line.margin else ""
+        return f"{index + 1}. {one_line(line.label)}: {line.dv:,.1f} m/s{margin} -> {after:,.1f} kg"
+
     # ------------------------------------------------------------------ editor
     def _build_editor(self) -> None:
         style = {"description_width": "initial"}
+        margin_label = "margin (% of the line's delta-v)"
         self.form: dict[str, widgets.Widget] = {
             "label": widgets.Text(value="new line", description="label", style=style),
             "formula": widgets.Dropdown(
@@ -210,9 +341,9 @@ class BudgetBuilder(Panel):
             ),
             "margin": widgets.FloatText(
                 value=0.0,
-                description="margin (%)",
+                description=margin_label,
                 style=style,
-                layout=widgets.Layout(width=number_width("margin (%)")),
+                layout=widgets.Layout(width=number_width(margin_label)),
             ),
             "isp": widgets.FloatText(
                 value=0.0,
@@ -255,13 +386,14 @@ class BudgetBuilder(Panel):
         for key, button in self.buttons.items():
             button.add_class(f"deltakit-budget-{key}")
             button.on_click(lambda _, key=key: self._edit(key))
+        wrap = widgets.Layout(flex_flow="row wrap")
         self._editor_box = widgets.VBox(
             [
                 widgets.HTML("<b>Line editor</b> (select a line above to edit it)"),
-                widgets.HBox([self.form["label"], self.form["formula"]]),
+                widgets.HBox([self.form["label"], self.form["formula"]], layout=wrap),
                 *boxes,
-                widgets.HBox([self.form["margin"], self.form["isp"]]),
-                widgets.HBox(list(self.buttons.values()), layout=widgets.Layout(flex_flow="row wrap")),
+                widgets.HBox([self.form["margin"], self.form["isp"]], layout=wrap),
+                widgets.HBox(list(self.buttons.values()), layout=wrap),
             ],
             layout=widgets.Layout(border="1px solid #d0d7de", padding="4px", margin="4px 0"),
         )
@@ -272,36 +404,37 @@ class BudgetBuilder(Panel):
             box.layout.display = None if key == formula else "none"
 
     def _form_line(self) -> dict[str, Any]:
+        """The editor's line as a recipe (SI), or DomainError saying what is wrong with it."""
         formula = self.form["formula"].value
         params = {}
         for p in FORMULAS[formula].parameters:
             value = self._param_widgets[formula][p.key].value
             params[p.key] = value if p.scale is None else float(value) * p.scale
-        margin = float(self.form["margin"].value) / 100.0
-        if margin < 0.0:
-            raise DomainError(f"margin must be >= 0 % (got {margin * 100:g} %)")
+        margin = float(self.form["margin"].value)
+        if not 0.0 <= margin <= 100.0:
+            raise DomainError(f"margin must be between 0 and 100 % of the line's delta-v (got {margin:g} %)")
         isp = float(self.form["isp"].value)
         if isp < 0.0:
             raise DomainError(
                 f"a line's own specific impulse must be > 0 s, or 0 for the budget's (got {isp:g} s)"
             )
-        line = _clean_line(
+        line = _recipe(
             {
                 "label": self.form["label"].value,
                 "formula": formula,
                 "params": params,
-                "margin": margin,
+                "margin": margin * percent,
                 "isp": isp or None,
             },
-            len(self._lines),
+            len(self.budget.lines),
         )
         evaluate(formula, line["params"])  # refuse a line with no solution before it enters the budget
         return line
 
     def _select(self, index: int | None) -> None:
-        if index is None or not 0 <= index < len(self._lines):
+        if self.budget is None or index is None or not 0 <= index < len(self.budget.lines):
             return
-        line = self._lines[index]
+        line = recipes(self.budget)[index]
         self.form["label"].value = line["label"]
         self.form["formula"].value = line["formula"]
         for p in FORMULAS[line["formula"]].parameters:
@@ -309,39 +442,47 @@ class BudgetBuilder(Panel):
             self._param_widgets[line["formula"]][p.key].value = (
                 value if p.scale is None else round(value / p.scale, 9)
             )
-        self.form["margin"].value = round(line["margin"] * 100.0, 9)
+        self.form["margin"].value = round(line["margin"] / percent, 9)
         self.form["isp"].value = line["isp"] or 0.0
 
     def _edit(self, action: str) -> None:
-        """Apply an editor button; problems go to the message line, never raise."""
+        """Apply an editor button to a copy of the budget; problems go to the message line, never raise."""
         selected = self.controls["lines"].value
         try:
-            lines = list(self._lines)
+            budget = Budget.from_dict(self.budget.to_dict())
             if action == "add":
-                lines.append(self._form_line())
-                selected = len(lines) - 1
-            elif selected is None or not 0 <= selected < len(lines):
+                line = self._form_line()
+                budget.add(line["label"], _line_dv(line, len(budget.lines)), **self._burn(line))
+                selected = len(budget.lines) - 1
+                budget = _with_recipes(budget, [*recipes(budget)[:-1], line], [selected])
+            elif selected is None or not 0 <= selected < len(budget.lines):
                 raise DomainError("select a line first")
             elif action == "update":
-                lines[selected] = self._form_line()
+                line = self._form_line()
+                budget.replace(selected, line["label"], _line_dv(line, selected), **self._burn(line))
+                lines = recipes(budget)
+                lines[selected] = line
+                budget = _with_recipes(budget, lines, [selected])
             elif action == "remove":
-                del lines[selected]
-                selected = min(selected, len(lines) - 1) if lines else None
+                budget.remove(selected)
+                selected = min(selected, len(budget.lines) - 1) if budget.lines else None
             elif action in ("up", "down"):
                 target = selected - 1 if action == "up" else selected + 1
-                if 0 <= target < len(lines):
-                    lines[selected], lines[target] = lines[target], lines[selected]
+                if 0 <= target < len(budget.lines):
+                    budget.move(selected, target)
                     selected = target
         except (DomainError, ValueError) as err:
             self._show_message(str(err))
             return
-        self.set(lines=lines)
-        self._select_quietly(selected)
-
-    def _select_quietly(self, index: int | None) -> None:
+        self.set(lines=recipes(budget))
         select = self.controls["lines"]
-        if index is not None and 0 <= index < len(select.options):
-            select.value = index
+        if selected is not None and 0 <= selected < len(select.options):
+            select.value = selected
+
+    @staticmethod
+    def _burn(line: dict[str, Any]) -> dict[str, Any]:
+        """A recipe's exhaust velocity and margin as :meth:`Budget.add` takes them."""
+        return {"ve": None if line["isp"] is None else line["isp"] * G0, "margin": line["margin"]}
 
     # ------------------------------------------------------------------ files and exports
     def _build_exports(self) -> None:
@@ -353,24 +494,35 @@ class BudgetBuilder(Panel):
             button.add_class(f"deltakit-budget-{key}")
             button.on_click(lambda _, key=key: self._file(key))
         self.file_status = widgets.HTML("")
-        self._file_box = widgets.HBox([self.controls["path"], *self.file_buttons.values(), self.file_status])
+        self._file_box = widgets.HBox(
+            [self.controls["path"], *self.file_buttons.values(), self.file_status],
+            layout=widgets.Layout(flex_flow="row wrap"),
+        )
         self.export_format = widgets.ToggleButtons(
             options=["Markdown", "LaTeX", "CSV"], value="Markdown", description="export"
         )
-        self.export_text = widgets.Textarea(value="", layout=widgets.Layout(width="100%", height="150px"))
+        # the box is as wide as the panel, never wider (a width of 100 % plus the widget's own margins
+        # would stick out of the notebook's output area)
+        self.export_text = widgets.Textarea(
+            value="", layout=widgets.Layout(width="auto", max_width="100%", height="150px")
+        )
         self.export_text.add_class("deltakit-export-text")
         self.export_link = widgets.HTML("")
         self.export_link.add_class("deltakit-download")
         self.export_format.observe(lambda _: self._show_export(), names="value")
-        self._export_box = widgets.VBox([self.export_format, self.export_text, self.export_link])
+        self._export_box = widgets.VBox(
+            [self.export_format, self.export_text, self.export_link], layout=widgets.Layout(width="100%")
+        )
 
     def exports(self) -> dict[str, str]:
         """The budget as Markdown, LaTeX and CSV text."""
         if self.budget is None:
             return {"Markdown": "", "LaTeX": "", "CSV": ""}
-        with tempfile.TemporaryDirectory() as folder:
-            csv = self.budget.to_csv(Path(folder) / "budget.csv").read_text()
-        return {"Markdown": self.budget.to_markdown(), "LaTeX": self.budget.to_latex(), "CSV": csv}
+        return {
+            "Markdown": self.budget.to_markdown(),
+            "LaTeX": self.budget.to_latex(),
+            "CSV": _csv_text(self.budget),
+        }
 
     def _show_export(self) -> None:
         kind = self.export_format.value
@@ -381,14 +533,11 @@ class BudgetBuilder(Panel):
             "LaTeX": ("tex", "application/x-tex"),
             "CSV": ("csv", "text/csv"),
         }[kind]
-        stem = (
-            "".join(c if c.isalnum() or c in "-_" else "-" for c in self.controls["name"].value).strip("-")
-            or "budget"
-        )
+        filename = f"{_file_stem(self.controls['name'].value)}.{suffix}"
         data = base64.b64encode(text.encode("utf-8")).decode("ascii")
         self.export_link.value = (
-            f'<a download="{html.escape(stem)}.{suffix}" href="data:{mime};base64,{data}">'
-            f"Download {kind} ({stem}.{suffix})</a>"
+            f'<a download="{escape_html(filename)}" href="data:{mime};base64,{data}">'
+            f"Download {escape_html(kind)} ({escape_html(filename)})</a>"
         )
 
     def _file(self, action: str) -> None:
@@ -397,106 +546,25 @@ class BudgetBuilder(Panel):
             if action == "save":
                 if self.budget is None:
                     raise DomainError("nothing to save: the budget is not valid")
-                data = self.budget.to_dict()
-                for entry, line in zip(data["lines"], self._lines):
-                    # keep the formula and its parameters with the line, so a load can edit them again
-                    entry["source"] = dict(
-                        entry["source"],
-                        formula=line["formula"],
-                        params=json_ready(line["params"]),
-                        isp=line["isp"],
-                    )
-                Budget.from_dict(data).save(path)
-                self.file_status.value = f"saved {html.escape(str(path))}"
+                self.budget.save(path)
+                self.file_status.value = f"saved {escape_html(path)}"
             else:
                 budget = Budget.load(path)
-                lines = []
-                for line in budget.lines:
-                    source = line.source
-                    if "formula" in source and source["formula"] in FORMULAS:
-                        recipe = {
-                            "formula": source["formula"],
-                            "params": source.get("params", {}),
-                            "isp": source.get("isp"),
-                        }
-                    else:
-                        recipe = {
-                            "formula": "number",
-                            "params": {"dv": line.dv},
-                            "isp": None if line.ve is None else line.ve / G0,
-                        }
-                    lines.append({"label": line.label, "margin": line.margin, **recipe})
                 self.set(
                     name=budget.name,
                     m0=budget.m0,
-                    isp=budget.ve / G0,
+                    isp=_round_si(budget.ve / G0),
                     dry_mass=budget.dry_mass or 0.0,
-                    lines=lines,
+                    lines=recipes(budget),
                 )
-                self.file_status.value = f"loaded {html.escape(str(path))}"
+                self.file_status.value = f"loaded {escape_html(path)}" if not self.error else ""
         except (DomainError, ValueError, OSError) as err:
             self.file_status.value = ""
             self._show_message(f"{action} failed: {err}")
 
-    # ------------------------------------------------------------------ figure and update
+    # ------------------------------------------------------------------ figure
     def _build_figure(self) -> None:
         fig = self._figure(7.6, 3.6)
         self.axes = fig.add_subplot()
-        self.axes.set_title("vehicle mass, line by line", fontsize="medium")
-        fig.subplots_adjust(left=0.09, right=0.985, bottom=0.3, top=0.9)
-
-    def _build_budget(self, v: dict[str, Any]) -> Budget:
-        if not v["m0"] > 0.0:
-            raise DomainError(f"starting mass must be > 0 kg (got {v['m0']:g} kg).")
-        if not v["isp"] > 0.0:
-            raise DomainError(f"specific impulse must be > 0 s (got {v['isp']:g} s).")
-        dry = v["dry_mass"]
-        if dry < 0.0 or (dry and dry >= v["m0"]):
-            raise DomainError(
-                f"dry mass must be between 0 and the starting mass {v['m0']:g} kg (got {dry:g} kg)."
-            )
-        budget = Budget(v["m0"], v["isp"] * G0, v["name"], dry_mass=dry or None)
-        for index, line in enumerate(self._lines):
-            try:
-                result = evaluate(line["formula"], line["params"])
-            except DomainError as err:
-                raise DomainError(f"line {index + 1} ({line['label']}): {err}") from None
-            ve = None if line["isp"] is None else line["isp"] * G0
-            budget.add(line["label"], result, ve=ve, margin=line["margin"])
-        return budget
-
-    def _update(self, changed: set[str]) -> None:
-        budget = self._build_budget(self.values)
-        self._waterfall = update_budget_waterfall(self.axes, self._waterfall, budget)
-        self.budget = budget
-        select = self.controls["lines"]
-        selected = select.value
-        self._holding = True
-        try:
-            select.options = [(self._describe(i, line, budget), i) for i, line in enumerate(budget.lines)]
-            select.value = selected if selected is not None and selected < len(budget.lines) else None
-        finally:
-            self._holding = False
-        left = budget.propellant_left
-        self._results = {
-            "total_dv": float(budget.total_dv),
-            "propellant": float(budget.propellant),
-            "final_mass": float(budget.final_mass),
-            "propellant_left": float(left) if left is not None else math.nan,
-            "mass_after": [float(m) for m in budget.mass_after],
-            "propellant_per_line": [float(m) for m in budget.propellant_per_line],
-        }
-        notes = []
-        if budget.first_infeasible is not None:
-            notes.append(
-                f"Line {budget.first_infeasible + 1} ({budget.lines[budget.first_infeasible].label}) "
-                "needs more propellant than is left above the dry mass: the budget does not close."
-            )
-        self._show_readouts(self._results, notes)
-        self._show_export()
-
-    @staticmethod
-    def _describe(index: int, line: Any, budget: Budget) -> str:
-        after = float(budget.mass_after[index])
-        margin = f" +{line.margin * 100:g} %" if line.margin else ""
-        return f"{index + 1}. {line.label}: {line.dv:,.1f} m/s{margin} -> {after:,.1f} kg"
+        self.axes.set_title("vehicle mass, line by line", fontsize="medium", pad=22)  # above the legend
+        fig.subplots_adjust(left=0.09, right=0.985, bottom=0.3, top=0.84)

@@ -7,6 +7,11 @@ energy change of the same burn at every point with the current one marked, and
 readouts: speed at the burn, energy change, the new apsides, and the gain over
 making the same burn at apoapsis (the Oberth effect in numbers).
 
+The orbit view holds both orbits. An orbit after the burn that reaches beyond
+:data:`VIEW_RADII` apoapsis radii of the orbit before (an open orbit, or a
+very long ellipse) is drawn out to that radius, marked by a dotted circle, and
+the readouts say so.
+
 Default case: the invented Rustline orbiter (:mod:`deltakit.demo`) in its
 300 x 33 000 km science orbit around Mars (cited constants), trimming with
 100 m/s.
@@ -15,6 +20,7 @@ Default case: the invented Rustline orbiter (:mod:`deltakit.demo`) in its
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 from typing import Any, ClassVar
 
 import numpy as np
@@ -22,15 +28,23 @@ import numpy as np
 from ..conic import Conic
 from ..constants import BODIES
 from ..demo import RUSTLINE
-from ..errors import DomainError
-from ..plotting._style import COLOURS, KM, MJ_PER_KG
+from ..plotting._style import COLOURS
 from ..plotting.energy import energy_gain_curve, plot_energy_gain
-from ..plotting.orbits import burn_at_angle, conic_points, draw_burn, draw_conic, update_burn, update_conic
-from ._base import Panel, choice, number, slider, sticky_limits
+from ..plotting.orbits import burn_at_angle, draw_burn, draw_conic, update_burn, update_conic
+from ..units import MJ_per_kg, deg, km, km_per_s
+from ._base import (
+    Computed,
+    InputError,
+    Panel,
+    apsides_at,
+    choice,
+    follow_limits,
+    follow_square,
+    number,
+    slider,
+)
 
-__all__ = ["DIRECTIONS", "BurnPointExplorer"]
-
-DEG = math.pi / 180.0
+__all__ = ["DIRECTIONS", "VIEW_RADII", "BurnPointExplorer"]
 
 #: Burn directions offered: name -> (angle in rad or None for the angle control, reference).
 DIRECTIONS: dict[str, tuple[float | None, str]] = {
@@ -41,8 +55,21 @@ DIRECTIONS: dict[str, tuple[float | None, str]] = {
     "any angle from prograde": (None, "velocity"),
 }
 
+#: The orbit after the burn is drawn out to this many apoapsis radii of the orbit before.
+VIEW_RADII = 4.0
+
 _ORBIT_INPUTS = {"body", "periapsis_altitude", "apoapsis_altitude"}
-_BURN_INPUTS = {"dv", "direction", "angle"}
+_CURVE_POINTS = 361
+#: The energy axis holds at least the energy change of a burn this large at periapsis, m/s.
+_ENERGY_FLOOR_DV = 50.0
+_CIRCLE = np.linspace(0.0, 2.0 * np.pi, 241)
+
+
+def _reverses(outcome: Any, conic: Conic) -> bool:
+    """True when a burn turns the motion round: no outcome (NaN), or an orbit flown the other way."""
+    if math.isnan(float(outcome.energy_change)):
+        return True
+    return float(getattr(outcome.after, "inc", 0.0)) != float(getattr(conic, "inc", 0.0))
 
 
 class BurnPointExplorer(Panel):
@@ -73,16 +100,26 @@ class BurnPointExplorer(Panel):
     >>> _ = panel.set(nu=3.141592653589793)
     >>> round(panel.results["gain_ratio"], 2)
     1.0
+    >>> try:
+    ...     BurnPointExplorer(dv=-1097.0)
+    ... except ValueError as err:
+    ...     print(err)
+    delta-v must be >= 0 m/s, got -1097 m/s: choose the direction (retrograde, radial in) for its sense.
     """
 
+    #: an open orbit has no apoapsis; a burn that adds nothing at apoapsis has no ratio to it, and one
+    #: that would reverse the motion there has no outcome there
+    may_be_nonfinite: ClassVar[frozenset[str]] = frozenset(
+        {"apoapsis_altitude_after", "gain_ratio", "energy_change_at_apoapsis", "gain_over_apoapsis"}
+    )
     readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
-        "speed": ("speed at the burn", 1e3, "km/s"),
-        "energy_change": ("energy change", MJ_PER_KG, "MJ/kg"),
-        "periapsis_altitude_after": ("periapsis altitude after", KM, "km"),
-        "apoapsis_altitude_after": ("apoapsis altitude after", KM, "km"),
+        "speed": ("speed at the burn", km_per_s, "km/s"),
+        "energy_change": ("energy change", MJ_per_kg, "MJ/kg"),
+        "periapsis_altitude_after": ("periapsis altitude after", km, "km"),
+        "apoapsis_altitude_after": ("apoapsis altitude after", km, "km"),
         "eccentricity_after": ("eccentricity after", 1.0, ""),
-        "energy_change_at_apoapsis": ("same burn at apoapsis", MJ_PER_KG, "MJ/kg"),
-        "gain_over_apoapsis": ("gain over burning at apoapsis", MJ_PER_KG, "MJ/kg"),
+        "energy_change_at_apoapsis": ("same burn at apoapsis", MJ_per_kg, "MJ/kg"),
+        "gain_over_apoapsis": ("gain over burning at apoapsis", MJ_per_kg, "MJ/kg"),
         "gain_ratio": ("energy change / that at apoapsis", 1.0, ""),
     }
 
@@ -95,27 +132,122 @@ class BurnPointExplorer(Panel):
         dv: float = 100.0,
         direction: str = "prograde",
         angle: float = 0.0,
-        nu: float = 30 * DEG,
+        nu: float = 30 * deg,
     ) -> None:
         super().__init__()
-        self._control("body", choice("central body", list(BODIES), body, width="220px"))
-        self._control("periapsis_altitude", number("periapsis altitude (km)", periapsis_altitude / KM), KM)
-        self._control("apoapsis_altitude", number("apoapsis altitude (km)", apoapsis_altitude / KM), KM)
-        self._control("dv", slider("delta-v (m/s)", dv, 0.0, max(2000.0, dv), 5.0, readout_format=".0f"), 1.0)
-        self._control("direction", choice("direction", list(DIRECTIONS), direction, width="300px"))
-        self._control("angle", slider("angle from prograde (deg)", angle / DEG, -180.0, 180.0, 1.0), DEG)
-        self._control("nu", slider("burn point, true anomaly (deg)", nu / DEG, -180.0, 180.0, 1.0), DEG)
-        self._conic: Conic | None = None
-        self._artists: dict[str, Any] = {}
+        self._control("body", choice("central body", list(BODIES), RUSTLINE.body.name, width="220px"))
+        self._control("periapsis_altitude", number("periapsis altitude (km)", 0.0), km, "m")
+        self._control("apoapsis_altitude", number("apoapsis altitude (km)", 0.0), km, "m")
+        self._control("dv", slider("delta-v (m/s)", 0.0, 0.0, 2000.0, 5.0, readout_format=".0f"), 1.0, "m/s")
+        self._control("direction", choice("direction", list(DIRECTIONS), "prograde", width="300px"))
+        self._control("angle", slider("angle from prograde (deg)", 0.0, -180.0, 180.0, 1.0), deg, "rad")
+        self._control("nu", slider("burn point, true anomaly (deg)", 0.0, -180.0, 180.0, 1.0), deg, "rad")
         self._build_figure()
         self._finish(
             "Burn point explorer: where does the same delta-v add the most energy?",
             [["body", "periapsis_altitude", "apoapsis_altitude"], ["dv", "direction"], ["angle"], ["nu"]],
+            initial={
+                "body": body,
+                "periapsis_altitude": periapsis_altitude,
+                "apoapsis_altitude": apoapsis_altitude,
+                "dv": dv,
+                "direction": direction,
+                "angle": angle,
+                "nu": nu,
+            },
         )
 
-    # ------------------------------------------------------------------ figure
+    # ------------------------------------------------------------------ the case
+    @classmethod
+    def compute(cls, values: Mapping[str, Any]) -> Computed:
+        """The burn at ``values`` (SI, keyed like the controls): readouts, notes, what to draw."""
+        body = BODIES[values["body"]]
+        rp, ra = apsides_at(values, body)
+        dv, nu = values["dv"], values["nu"]
+        if dv < 0.0:
+            raise InputError(
+                f"delta-v must be >= 0 m/s, got {dv:g} m/s: choose the direction (retrograde, radial in) "
+                "for its sense.",
+                "dv",
+            )
+        fixed, reference = DIRECTIONS[values["direction"]]
+        angle = values["angle"] if fixed is None else fixed
+        conic = Conic.from_apsides(rp, ra, body.mu)
+        outcome = burn_at_angle(conic, nu, dv, angle, reference=reference)
+        energy = float(outcome.energy_change)
+        if _reverses(outcome, conic):
+            raise InputError(
+                f"a {dv:g} m/s burn in this direction reverses the motion here: no orbit after it.",
+                "dv",
+                "direction",
+            )
+        at_apoapsis = burn_at_angle(conic, math.pi, dv, angle, reference=reference)
+        energy_apo = math.nan if _reverses(at_apoapsis, conic) else float(at_apoapsis.energy_change)
+        after = outcome.after
+        rp_after, ra_after, e_after = float(after.rp), float(after.ra), float(after.e)
+        view_radius = VIEW_RADII * float(conic.ra)
+        results = {
+            "speed": float(conic.speed(nu)),
+            "energy_change": energy,
+            "periapsis_altitude_after": rp_after - body.radius,
+            "apoapsis_altitude_after": ra_after - body.radius if math.isfinite(ra_after) else math.inf,
+            "eccentricity_after": e_after,
+            "energy_change_at_apoapsis": energy_apo,
+            "gain_over_apoapsis": energy - energy_apo,
+            "gain_ratio": energy / energy_apo if energy_apo != 0.0 else math.nan,
+        }
+        notes = []
+        if e_after >= 1.0:
+            notes.append(
+                f"After the burn the orbit is open: the vehicle escapes {body.name} "
+                f"with an excess speed of {float(after.vinf) / km_per_s:.3f} km/s."
+            )
+        if math.isnan(energy_apo):
+            notes.append(
+                "The same burn at apoapsis would reverse the motion there: no comparison with burning there."
+            )
+        clipped = not ra_after <= view_radius
+        if clipped:
+            notes.append(
+                f"The orbit after the burn is drawn out to {view_radius / km:,.0f} km from the centre of "
+                f"{body.name} (the dotted circle: {VIEW_RADII:g} apoapsis radii of the orbit before)."
+            )
+        if rp_after < body.radius:
+            notes.append(
+                f"After the burn the periapsis lies below the surface of {body.name}: "
+                "the orbit intersects the body."
+            )
+        curve = energy_gain_curve(conic, dv, angle=angle, reference=reference, n=_CURVE_POINTS)
+        if fixed is None:
+            # any angle: the energy axis holds what every direction can give (dE = v dv cos + dv^2 / 2,
+            # largest at periapsis), so turning the burn never moves it
+            reach = float(conic.speed(0.0)) * dv / MJ_per_kg
+            energy_range = (-reach + 0.5 * dv**2 / MJ_per_kg, reach + 0.5 * dv**2 / MJ_per_kg)
+        else:
+            # at least what a 50 m/s burn at periapsis gives: small burns show small, not magnified
+            floor = float(conic.speed(0.0)) * _ENERGY_FLOOR_DV / MJ_per_kg
+            finite = curve[1][np.isfinite(curve[1])]
+            low, high = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 0.0)
+            energy_range = (min(low, 0.0 if low >= 0.0 else -floor), max(high, floor if high > 0.0 else 0.0))
+        drawing = {
+            "body": body,
+            "conic": conic,
+            "after": after,
+            "angle": angle,
+            "reference": reference,
+            "angle_control": fixed is None,
+            "nu": nu,
+            "dv": dv,
+            "view_radius": view_radius,
+            "clipped": clipped,
+            "curve": curve,
+            "energy_range": energy_range,
+        }
+        return Computed(results, tuple(notes), drawing)
+
+    # ------------------------------------------------------------------ the figure
     def _build_figure(self) -> None:
-        fig = self._figure(7.6, 4.0)
+        fig = self._figure(7.6, 4.2)
         self.orbit_axes, self.energy_axes = fig.subplots(1, 2, gridspec_kw={"width_ratios": [1.0, 1.15]})
         placeholder = Conic.circular(RUSTLINE.body.radius * 2, RUSTLINE.body.mu)
         before = draw_conic(
@@ -123,141 +255,89 @@ class BurnPointExplorer(Panel):
         )
         burn = draw_burn(self.orbit_axes, placeholder, 0.0, 1.0)
         burn.after.orbit.set_label("after the burn")
+        (clip,) = self.orbit_axes.plot(
+            [], [], color=COLOURS["reference"], linestyle=":", linewidth=0.9, zorder=2, visible=False
+        )
         curve = plot_energy_gain(self.energy_axes, placeholder, 1.0, label="this burn, at each point")
         (current,) = self.energy_axes.plot(
-            [0.0],
-            [0.0],
-            "o",
-            color=COLOURS["burn"],
-            markersize=7,
-            label="this burn point",
-            zorder=5,
-            clip_on=False,
+            [0.0], [0.0], "o", color=COLOURS["burn"], markersize=7, label="this burn point", zorder=5
         )
         (apo,) = self.energy_axes.plot(
-            [180.0],
-            [0.0],
-            "s",
-            color=COLOURS["before"],
-            markersize=6,
-            label="at apoapsis",
-            zorder=5,
-            clip_on=False,
+            [180.0], [0.0], "s", color=COLOURS["before"], markersize=6, label="at apoapsis", zorder=5
         )
+        for marker in (current, apo):
+            marker.set_clip_on(False)  # whole at the ends of the axis (true anomaly +-180 deg)
         self.orbit_axes.set_aspect("equal", adjustable="box")
-        self.orbit_axes.set_title("orbit in its plane", fontsize="medium")
-        self.orbit_axes.legend(loc="upper left", fontsize="small", framealpha=0.85)
-        # above the axes, where no curve can run under it
-        self.energy_axes.legend(
-            loc="lower center",
-            bbox_to_anchor=(0.5, 1.0),
-            ncol=2,
-            fontsize="small",
-            frameon=False,
-            columnspacing=1.0,
-            handlelength=1.6,
-        )
-        fig.subplots_adjust(left=0.125, right=0.975, bottom=0.13, top=0.86, wspace=0.32)
-        self._artists = {"before": before, "burn": burn, "curve": curve, "current": current, "apoapsis": apo}
-        # what a new burn point moves: redrawn alone over the rest of the figure
-        self.view.animate(burn.after.orbit, burn.arrow, burn.marker, curve, apo, current)
-
-    # ------------------------------------------------------------------ model
-    def _orbit(self, v: dict[str, Any]) -> tuple[Conic, Any]:
-        body = BODIES[v["body"]]
-        hp, ha = v["periapsis_altitude"], v["apoapsis_altitude"]
-        if hp < 0.0:
-            raise DomainError(
-                f"periapsis altitude {hp / KM:g} km is below the surface of {body.name} (must be >= 0 km)."
+        # legends above the axes, where no curve can run under them
+        for ax in (self.orbit_axes, self.energy_axes):
+            ax.legend(
+                loc="lower center",
+                bbox_to_anchor=(0.5, 1.0),
+                ncol=2,
+                fontsize="small",
+                frameon=False,
+                columnspacing=1.0,
+                handlelength=1.6,
             )
-        if ha < hp:
-            raise DomainError(
-                f"apoapsis altitude {ha / KM:g} km is below the periapsis altitude {hp / KM:g} km."
-            )
-        return Conic.from_apsides(body.radius + hp, body.radius + ha, body.mu), body
-
-    @staticmethod
-    def _direction(v: dict[str, Any]) -> tuple[float, str]:
-        angle, reference = DIRECTIONS[v["direction"]]
-        return (v["angle"] if angle is None else angle), reference
-
-    def _update(self, changed: set[str]) -> None:
-        v = self.values
-        if v["dv"] < 0.0:
-            raise DomainError(
-                f"delta-v must be >= 0 m/s (got {v['dv']:g}); choose the direction for its sense."
-            )
-        self.controls["angle"].disabled = DIRECTIONS[v["direction"]][0] is not None
-        conic, body = self._orbit(v)
-        angle, reference = self._direction(v)
-        nu, dv = v["nu"], v["dv"]
-        outcome = burn_at_angle(conic, nu, dv, angle, reference=reference)
-        if np.isnan(float(outcome.energy_change)) or float(outcome.after.inc) != float(conic.inc):
-            raise DomainError(
-                f"a {dv:g} m/s burn in this direction reverses the motion here: no orbit after it."
-            )
-        at_apoapsis = burn_at_angle(conic, math.pi, dv, angle, reference=reference)
-        curve = None
-        if changed & (_ORBIT_INPUTS | _BURN_INPUTS) or self._conic is None:
-            curve = energy_gain_curve(
-                conic, dv, angle=angle, reference=reference, n=len(self._artists["curve"].get_xdata())
-            )
-        # everything computed: now move the artists
-        after = outcome.after
-        art = self._artists
-        if changed & _ORBIT_INPUTS or self._conic is None:
-            update_conic(art["before"], conic, body_radius=body.radius)
-        update_burn(art["burn"], conic, nu, dv, angle=angle, reference=reference, after=after)
-        first = self._conic is None
-        orbit_changed = bool(changed & _ORBIT_INPUTS) or first
-        if orbit_changed:  # the frame follows the orbit only, so it stays put while the burn changes
-            self._fit_orbit_axes(conic)
-        limits_changed = False
-        if curve is not None:
-            art["curve"].set_data(*curve)
-            finite_y = curve[1][np.isfinite(curve[1])]
-            low, high = (float(finite_y.min()), float(finite_y.max())) if finite_y.size else (0.0, 1.0)
-            limits_changed = sticky_limits(self.energy_axes, low, high, force=first)
-            art["apoapsis"].set_data([180.0], [float(at_apoapsis.energy_change) / MJ_PER_KG])
-        art["current"].set_data(
-            [math.degrees(math.remainder(nu, 2 * math.pi))], [float(outcome.energy_change) / MJ_PER_KG]
-        )
-        self._conic = conic
-        self._fast = not (orbit_changed or limits_changed)
-        # readouts
-        energy = float(outcome.energy_change)
-        energy_apo = float(at_apoapsis.energy_change)
-        rp_after, ra_after = float(after.rp), float(after.ra)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            ratio = energy / energy_apo if energy_apo != 0.0 else math.nan
-        self._results = {
-            "speed": float(conic.speed(nu)),
-            "energy_change": energy,
-            "periapsis_altitude_after": rp_after - body.radius,
-            "apoapsis_altitude_after": ra_after - body.radius if math.isfinite(ra_after) else math.inf,
-            "eccentricity_after": float(after.e),
-            "energy_change_at_apoapsis": energy_apo,
-            "gain_over_apoapsis": energy - energy_apo,
-            "gain_ratio": ratio,
+        fig.subplots_adjust(left=0.125, right=0.975, bottom=0.12, top=0.86, wspace=0.32)
+        self._columns([self.orbit_axes], [self.energy_axes])
+        self._artists = {
+            "before": before,
+            "burn": burn,
+            "clip": clip,
+            "curve": curve,
+            "current": current,
+            "apoapsis": apo,
         }
-        notes = []
-        if float(after.e) >= 1.0:
-            notes.append(
-                f"After the burn the orbit is open: the vehicle escapes {body.name} "
-                f"with an excess speed of {float(after.vinf) / 1e3:.3f} km/s."
-            )
-        if rp_after < body.radius:
-            notes.append(
-                "After the burn the periapsis lies below the surface of "
-                f"{body.name}: the orbit intersects the body."
-            )
-        self._show_readouts(self._results, notes)
+        # what slider steps and a new orbit move: redrawn alone over the rest of the figure
+        # (in the order of their zorder, as a full draw stacks them)
+        self.view.animate(
+            before.body, clip, before.orbit, burn.after.orbit, burn.marker, burn.arrow, curve, apo, current
+        )
 
-    def _fit_orbit_axes(self, conic: Conic) -> None:
-        """Frame the orbit before the burn, with room around it for the arrow and the orbit after."""
-        x, y = conic_points(conic, n=181)
-        cx, cy = 0.5 * (x.min() + x.max()), 0.5 * (y.min() + y.max())
-        half = 0.62 * max(x.max() - x.min(), y.max() - y.min())
-        ax = self.orbit_axes
-        ax.set_xlim(cx - half, cx + half)
-        ax.set_ylim(cy - half, cy + half)
+    def draw(self, computed: Computed, changed: set[str]) -> None:
+        d, r = computed.drawing, computed.results
+        art = self._artists
+        nu, dv = d["nu"], d["dv"]
+        self.controls["angle"].disabled = not d["angle_control"]
+        new_orbit = bool(changed & _ORBIT_INPUTS)
+        if new_orbit:
+            update_conic(art["before"], d["conic"], body_radius=d["body"].radius)
+        update_burn(
+            art["burn"],
+            d["conic"],
+            nu,
+            dv,
+            angle=d["angle"],
+            reference=d["reference"],
+            after=d["after"],
+            after_r_max=d["view_radius"],
+        )
+        radius = d["view_radius"] / km
+        art["clip"].set_data(radius * np.cos(_CIRCLE), radius * np.sin(_CIRCLE))
+        art["clip"].set_visible(d["clipped"])
+        (x0, y0), (x1, y1) = (
+            np.nanmin(art["before"].orbit.get_xydata(), axis=0),
+            np.nanmax(art["before"].orbit.get_xydata(), axis=0),
+        )
+        centre, base = (0.5 * (x0 + x1), 0.5 * (y0 + y1)), 0.56 * max(x1 - x0, y1 - y0)
+        if follow_square(self.orbit_axes, self._orbit_extent(), centre=centre, base=base, force=new_orbit):
+            self.view.invalidate(self.orbit_axes)
+        art["curve"].set_data(*d["curve"])
+        if follow_limits(self.energy_axes, *d["energy_range"], force=new_orbit):
+            self.view.invalidate(self.energy_axes)
+        art["apoapsis"].set_data([180.0], [r["energy_change_at_apoapsis"] / MJ_per_kg])
+        shown_nu = math.degrees(math.remainder(nu, 2 * math.pi))
+        art["current"].set_data([shown_nu], [r["energy_change"] / MJ_per_kg])
+
+    def _orbit_extent(self) -> tuple[float, float, float, float]:
+        """Box (km) around what the orbit view must hold: both orbits (as drawn) and the arrow."""
+        burn = self._artists["burn"]
+        parts = [self._artists["before"].orbit.get_xydata(), burn.after.orbit.get_xydata()]
+        offset = np.asarray(burn.arrow.get_offsets(), float).reshape(-1, 2)
+        tip = offset + np.column_stack([np.ravel(burn.arrow.U), np.ravel(burn.arrow.V)])
+        parts += [offset, tip]
+        points = np.concatenate(parts)
+        points = points[np.isfinite(points).all(axis=1)]
+        (x0, y0), (x1, y1) = points.min(axis=0), points.max(axis=0)
+        return float(x0), float(x1), float(y0), float(y1)
