@@ -662,7 +662,11 @@ def test_sheet_refuses_unknown_derivation():
         ("PropellantTrade", {"dry_mass": -5.0}, "dry mass must be > 0 kg"),
         ("TransferTrade", {"final_altitude": -3e3}, "final orbit altitude -3 km is below the surface"),
         ("EscapeFlyby", {"vinf": -100.0}, "excess speed must be >= 0 km/s"),
-        ("PlaneChangeExplorer", {"target_inc": 190 * deg}, "target inclination must be between 0 and 180 deg"),
+        (
+            "PlaneChangeExplorer",
+            {"target_inc": 190 * deg},
+            "target inclination must be between 0 and 180 deg",
+        ),
         ("BudgetBuilder", {"m0": -1.0}, "starting mass must be > 0 kg"),
     ],
 )

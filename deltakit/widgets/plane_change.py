@@ -142,8 +142,10 @@ def _turn_costs(conic: Conic, nu: Any, turn: Any, target: Mapping[str, float]) -
         return _combined(np, v, w, alpha)
 
 
-def _split(conic: Conic, nu: float, turn: float, target: Mapping[str, float], shares: np.ndarray) -> np.ndarray:
-    """Total of two burns: at ``nu`` the apsis change and ``shares`` of the turn, the rest at the other crossing.
+def _split(
+    conic: Conic, nu: float, turn: float, target: Mapping[str, float], shares: np.ndarray
+) -> np.ndarray:
+    """Two burns: at ``nu`` the apsis change and ``shares`` of the turn, the rest at the other crossing.
 
     Both turn the plane about the line where the planes meet, so their turns
     add up. The rest of the turn is a pure turn at the opposite point, made on
@@ -277,7 +279,7 @@ class PlaneChangeExplorer(Panel):
     # ------------------------------------------------------------------ the case
     @classmethod
     def compute(cls, values: Mapping[str, Any]) -> Computed:
-        """Both crossings, the cost along the orbit and the split for ``values`` (SI, keyed like the controls)."""
+        """Both crossings, the cost along the orbit and the split for ``values`` (SI, keyed like controls)."""
         body = BODIES[values["body"]]
         rp, ra = apsides_at(values, body)
         inc = _radians_between(values, "inc", "inclination")
@@ -325,9 +327,7 @@ class PlaneChangeExplorer(Panel):
         notes = [_cheaper_note(k, dv, radii, body, words, turn)]
         notes.append(_split_note(first, share, split_total, dv[k], words))
         if not all(map(math.isfinite, dv)):
-            notes.append(
-                f"No burn along the velocity at crossing {2 - k} reaches the {words}."
-            )
+            notes.append(f"No burn along the velocity at crossing {2 - k} reaches the {words}.")
         if math.isfinite(inclination_only) and inclination_only < dv[k] - 0.5:
             notes.append(
                 f"With the node left free the target inclination alone costs {inclination_only:,.0f} m/s "
@@ -396,7 +396,11 @@ class PlaneChangeExplorer(Panel):
 
         ax = self.cost_axes
         (turn_line,) = ax.plot(
-            _NU / deg, np.zeros_like(_NU), color=COLOURS["before"], linewidth=1.8, label="this turn, made here"
+            _NU / deg,
+            np.zeros_like(_NU),
+            color=COLOURS["before"],
+            linewidth=1.8,
+            label="this turn, made here",
         )
         (free_line,) = ax.plot(
             _NU / deg, np.zeros_like(_NU), color=COLOURS["reference"], linestyle="--", linewidth=1.3,
@@ -506,7 +510,16 @@ class PlaneChangeExplorer(Panel):
         ax.set_box_aspect((1.0, 1.0, 1.0), zoom=_ZOOM)  # update_conic_3d may have reset the zoom
         square = PLANE_MARGIN * self._extent
         art["now"].plane.set_verts(
-            [np.array([[-square, -square, 0.0], [square, -square, 0.0], [square, square, 0.0], [-square, square, 0.0]])]
+            [
+                np.array(
+                    [
+                        [-square, -square, 0.0],
+                        [square, -square, 0.0],
+                        [square, square, 0.0],
+                        [-square, square, 0.0],
+                    ]
+                )
+            ]
         )
         line = np.array([-square, square])
         raan = float(conic.raan)
@@ -543,7 +556,9 @@ def _drawn_extent(conic: Conic) -> float:
 def _cheaper_note(k: int, dv: list[float], radii: list[float], body: Any, words: str, turn: float) -> str:
     also = f" Both include the {words}." if words else ""
     if turn < _NO_TURN:
-        return "The planes agree: no turn is needed (the crossings shown are the nodes of the orbit now)." + also
+        return (
+            "The planes agree: no turn is needed (the crossings shown are the nodes of the orbit now)." + also
+        )
     other = 1 - k
     here = f"{dv[k]:,.0f} m/s, {(radii[k] - body.radius) / km:,.0f} km up"
     if not math.isfinite(dv[other]):
