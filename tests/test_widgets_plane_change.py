@@ -15,13 +15,13 @@ import pytest
 
 pytest.importorskip("ipywidgets")
 
+from test_widgets import check_common, readout_text
+
 import deltakit as dk
 from deltakit.constants import EARTH
 from deltakit.demo import LARKSPAN, LARKSPAN_ORIENTATION, LARKSPAN_TARGET_PLANE
 from deltakit.units import deg
 from deltakit.widgets import PlaneChangeExplorer
-
-from test_widgets import check_common, readout_text
 
 #: Larkspan's case as the panel's values (SI), no apsis change.
 LARKSPAN_VALUES = {

@@ -78,6 +78,8 @@ _NU = np.linspace(-np.pi, np.pi, 361)
 _SHARES = np.linspace(0.0, 1.0, 201)
 #: The two crossings hold their roles in every view: (marker, size, filled, legend name).
 _CROSSING_STYLE = {"cheaper": ("*", 13, True, "cheaper crossing"), "other": ("o", 7, False, "other crossing")}
+#: A split must save at least this much (m/s) against one burn to be worth a second burn.
+_PAYS = 0.05
 #: An inclination this close (rad) outside [0, pi] is pi or 0 (180 deg in a control is pi to 12 digits).
 _ANGLE_SLACK = 1e-9
 #: A turn below this (rad) counts as none: the planes agree.
@@ -225,7 +227,7 @@ class PlaneChangeExplorer(Panel):
         "best_dv": ("one burn, at the cheaper crossing", 1.0, "m/s"),
         "saving": ("saved against the other crossing", 1.0, "m/s"),
         "split_total": ("two burns, best split: total", 1.0, "m/s"),
-        "split_share": ("share of the turn in the first burn", percent, "%"),
+        "split_share": ("share of the turn in the main burn", percent, "%"),
         "split_saving": ("two burns save against one", 1.0, "m/s"),
         "inclination_only": ("inclination only, node free", 1.0, "m/s"),
     }
@@ -306,6 +308,8 @@ class PlaneChangeExplorer(Panel):
         splits = [_best_share(conic, nu[j], turn, target) for j in (0, 1)]
         first = min((0, 1), key=lambda j: splits[j][1] if math.isfinite(splits[j][1]) else math.inf)
         share, split_total = splits[first]
+        if not split_total < dv[k] - _PAYS:  # splitting does not pay: the whole turn in the one burn
+            first, share, split_total = k, 1.0, dv[k]
         nodes = [float(x) for x in conic.nodes]
         inclination_only = float(np.min(np.asarray(inclination_change_cost(conic, nodes, target_inc).dv)))
         radii = [float(conic.radius(x)) for x in nu]
@@ -577,7 +581,7 @@ def _cheaper_note(k: int, dv: list[float], radii: list[float], body: Any, words:
 def _split_note(first: int, share: float, total: float, single: float, words: str) -> str:
     if not math.isfinite(total):
         return "No two-burn split: the second crossing is not reached after the first burn."
-    if share > 1.0 - 1e-4 or single - total < 0.05:
+    if share == 1.0:
         return "Splitting the turn between the crossings does not pay: make it in one burn."
     rest = 2 - first
     what = f"the {words} and " if words else ""
