@@ -192,11 +192,47 @@ assert abs(arc.after.inc - inc_new) < 0.01 * deg and abs(arc.after.raan - raan_n
 # %% [markdown]
 # ## The panel
 #
-# > **Place for the `PlaneChangeExplorer` panel** (to come): central body, orbit, target plane and an
-# > optional apsis change, both crossings on a 3-D view and the cost curve along the orbit, with the
-# > cheaper point and the delta-v saved in its readout. Until it lands, the cells above are the analysis;
-# > the panel will call the same functions (`plane_change_burns`, `inclination_change_cost`,
-# > `draw_conic_3d`).
+# `PlaneChangeExplorer` puts the analysis above on sliders: the orbit in space with both crossings on the
+# line where the planes meet, the cost of this turn at every point of the orbit (the crossings are the
+# only points on it that reach the new plane; dashed, the inclination alone with the node left free), and
+# the split of the turn between a main burn at one crossing and a second burn at the other. Driven from
+# code here, first as a pure turn, then raising the perigee in the same burn, then asked whether two
+# burns would do better. Slide the target node or the argument of periapsis to see the crossings move
+# along the orbit and the cheap one trade places.
+
+# %%
+from deltakit.widgets import PlaneChangeExplorer
+
+panel = PlaneChangeExplorer(
+    body=mission.body.name,
+    periapsis_altitude=mission.periapsis_altitude,
+    apoapsis_altitude=mission.apoapsis_altitude,
+    argp=orbit.argp,
+    inc=orbit.inc,
+    raan=orbit.raan,
+    target_inc=inc_new,
+    target_raan=raan_new,
+)
+turn_only = panel.results
+panel.set(apsis_change="periapsis", apsis_altitude=perigee - mission.body.radius)
+with_perigee = panel.results
+print(
+    f"panel, turn only: {turn_only['best_dv']:.0f} m/s at crossing {turn_only['cheaper']}, "
+    f"saving {turn_only['saving']:.0f} m/s against the other"
+)
+print(
+    f"panel, turn and perigee raise: {with_perigee['best_dv']:.0f} m/s in one burn; "
+    f"best two-burn split {with_perigee['split_total']:.0f} m/s"
+)
+assert np.isclose(turn_only["best_dv"], plan.best_dv) and np.isclose(turn_only["saving"], plan.saving)
+assert np.isclose(with_perigee["best_dv"], both.dv[k])  # the same numbers as the cells above
+assert with_perigee["split_saving"] == 0.0  # the rest of the turn would fall at the fast near crossing
+panel
+
+# %% [markdown]
+# The near crossing lies only 634 km up, below the 800 km perigee wanted, so no burn along the velocity
+# there can raise the perigee that far (the panel shows n/a for it); and a second burn for part of the turn
+# would fall at that fast point, so splitting does not pay. One burn at the far crossing it is.
 
 # %% [markdown]
 # ## Decision

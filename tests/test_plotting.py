@@ -45,6 +45,30 @@ def assert_on_conic(x_km, y_km, conic, rtol=1e-9):
     np.testing.assert_allclose(np.hypot(x[keep], y[keep]), expected, rtol=rtol)
 
 
+def test_retrograde_equatorial_orbit_is_drawn_where_it_flies():
+    """inc = pi: seen from +z the orbit runs clockwise, argp and nu measured from +x that way.
+
+    The convention of the Conic module notes (retrograde equatorial), written
+    out by hand here: r (cos(argp + nu), -sin(argp + nu)). The drawing shows
+    the inertial x, y, not the orbit plane's own axes (whose y is -y there).
+    """
+    orbit = dk.Conic(EARTH.radius + 700e3, 0.3, EARTH.mu, argp=0.7, inc=np.pi)
+    x, y = draw_conic(axes(), orbit, n=9).orbit.get_data()
+    nu = np.linspace(-np.pi, np.pi, 9)
+    r = float(orbit.p) / (1.0 + 0.3 * np.cos(nu)) / 1e3
+    np.testing.assert_allclose(x, r * np.cos(0.7 + nu), rtol=1e-12, atol=1e-9)
+    np.testing.assert_allclose(y, -r * np.sin(0.7 + nu), rtol=1e-12, atol=1e-9)
+    burn = draw_burn(axes(), orbit, 0.0, 100.0)  # at periapsis: prograde is clockwise, along -y turned
+    rp = float(orbit.rp) / 1e3
+    np.testing.assert_allclose(burn.marker.get_xydata()[0], [rp * np.cos(0.7), -rp * np.sin(0.7)], rtol=1e-12)
+    u, v = float(burn.arrow.U[0]), float(burn.arrow.V[0])
+    assert u * np.sin(0.7) + v * np.cos(0.7) < 0.0 < abs(u) + abs(v)  # along the clockwise tangent
+    assert_on_conic(
+        *burn.after.orbit.get_data(),
+        dk.Conic(rp * 1e3, float(burn_at_angle(orbit, 0.0, 100.0, 0.0).after.e), EARTH.mu, argp=-0.7),
+    )
+
+
 @pytest.mark.parametrize(
     "conic",
     [

@@ -662,6 +662,11 @@ def test_sheet_refuses_unknown_derivation():
         ("PropellantTrade", {"dry_mass": -5.0}, "dry mass must be > 0 kg"),
         ("TransferTrade", {"final_altitude": -3e3}, "final orbit altitude -3 km is below the surface"),
         ("EscapeFlyby", {"vinf": -100.0}, "excess speed must be >= 0 km/s"),
+        (
+            "PlaneChangeExplorer",
+            {"target_inc": 190 * deg},
+            "target inclination must be between 0 and 180 deg",
+        ),
         ("BudgetBuilder", {"m0": -1.0}, "starting mass must be > 0 kg"),
     ],
 )
@@ -683,6 +688,7 @@ def test_constructor_value_beyond_a_slider_widens_it(panel_name):
         "PropellantTrade": ("speed", 25_000.0),
         "TransferTrade": ("plane_change", 0.0),
         "EscapeFlyby": ("flyby_dv", 4000.0),
+        "PlaneChangeExplorer": ("target_raan", 400 * deg),  # a node past a full turn: the same plane
     }[panel_name]
     panel = cls(**{name: far})
     assert panel.values[name] == pytest.approx(far) and panel.error == ""

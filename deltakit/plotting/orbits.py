@@ -1,7 +1,12 @@
 """Orbits, burns and transfers drawn to scale in the orbit plane.
 
 Conventions: the central body sits at the origin, the reference direction is
-+x, motion is counter-clockwise (as in :class:`deltakit.Conic`). Axes show km;
++x, and an orbit is drawn as seen from the reference plane's pole (+z): in
+inertial x, y (:meth:`deltakit.Conic.state` with ``frame="inertial"``). A
+planar orbit (``inc = 0``) is drawn in its own plane and runs
+counter-clockwise; a retrograde equatorial one (``inc = pi``) runs clockwise,
+as it flies; an inclined orbit shows its projection on the reference plane
+(for the orbit in space, see :mod:`deltakit.plotting.space`). Axes show km;
 the functions take SI (m, m/s, rad) like the numeric layer. Each ``draw_*``
 function returns a small record of the artists it made, and a matching
 ``update_*`` function moves those artists in place (``set_data``), so a panel
@@ -21,7 +26,7 @@ from matplotlib.ticker import MaxNLocator
 
 from .._checks import instance_of, positive
 from ..burns import burn_at_angle
-from ..conic import Conic
+from ..conic import Conic, _plane_to_inertial
 from ..errors import DomainError
 from ..units import km
 from ._style import COLOURS, style_axes
@@ -78,7 +83,7 @@ def _one(conic: Conic, name: str = "conic") -> Conic:
 
 
 def conic_points(conic: Conic, *, n: int = 361, r_max: float | None = None) -> tuple[np.ndarray, np.ndarray]:
-    """Points of one orbit in the plane, km, as ``(x, y)``.
+    """Points of one orbit seen from the reference pole, inertial x and y in km, as ``(x, y)``.
 
     An ellipse is drawn whole unless ``r_max`` (m) cuts it; a parabola or a
     hyperbola is drawn out to ``r_max`` (default five periapsis radii). NaN
@@ -105,7 +110,16 @@ def conic_points(conic: Conic, *, n: int = 361, r_max: float | None = None) -> t
     nu = np.linspace(-nu_max, nu_max, n)
     with np.errstate(divide="ignore", invalid="ignore"):
         r = np.where(1.0 + e * np.cos(nu) > 0.0, p / (1.0 + e * np.cos(nu)), np.nan) / km
-    return r * np.cos(nu + argp), r * np.sin(nu + argp)
+    return _seen_from_pole(conic, r * np.cos(nu + argp), r * np.sin(nu + argp))
+
+
+def _seen_from_pole(conic: Conic, x: Any, y: Any) -> tuple[np.ndarray, np.ndarray]:
+    """Components in the orbit plane's axes (:meth:`Conic.state`, ``"plane"``) as inertial x, y."""
+    inc, raan = float(conic.inc), float(conic.raan)
+    if inc == 0.0 and raan == 0.0:
+        return np.asarray(x), np.asarray(y)  # the planar orbit: its plane is the reference plane
+    inertial = _plane_to_inertial(np.asarray(inc), np.asarray(raan))(x, y)
+    return inertial[..., 0], inertial[..., 1]
 
 
 def _body_disc(ax: Axes, body_radius: float | None) -> Circle | None:
@@ -207,7 +221,8 @@ def _arrow_vector(
         out = np.array([ahead[1], -ahead[0]])  # velocity turned clockwise: the outward side
     direction = np.cos(angle) * ahead + np.sin(angle) * out
     sign = 1.0 if dv >= 0.0 else -1.0
-    return tuple(sign * length * direction)  # type: ignore[return-value]
+    u, v = _seen_from_pole(conic, *(sign * length * direction))
+    return float(u), float(v)
 
 
 def _arrow_length(conic: Conic, nu: float, dv: float) -> float:
@@ -281,8 +296,7 @@ def draw_burn(
     """
     conic = _one(conic)
     nu, dv, angle = float(nu), float(dv), float(angle)
-    r_vec, _ = conic.state(nu)
-    x, y = r_vec / km
+    x, y = (float(c) for c in _seen_from_pole(conic, *(conic.state(nu)[0] / km)))
     kwargs.setdefault("color", COLOURS["burn"])
     kwargs.setdefault("marker", "o")
     kwargs.setdefault("markersize", 7)
@@ -340,8 +354,7 @@ def update_burn(
     """
     conic = _one(conic)
     nu, dv, angle = float(nu), float(dv), float(angle)
-    r_vec, _ = conic.state(nu)
-    x, y = r_vec / km
+    x, y = (float(c) for c in _seen_from_pole(conic, *(conic.state(nu)[0] / km)))
     artists.marker.set_data([x], [y])
     artists.arrow.set_offsets([[x, y]])
     u, v = _arrow_vector(conic, nu, dv, angle, _arrow_length(conic, nu, dv), reference)

@@ -25,6 +25,7 @@ _PANELS = {
     "PropellantTrade": "propellant",
     "TransferTrade": "transfer",
     "EscapeFlyby": "escape",
+    "PlaneChangeExplorer": "plane_change",
     "BudgetBuilder": "budget_builder",
     "FormulaSheet": "formula_sheet",
 }
@@ -42,6 +43,7 @@ __all__ = [
     "FormulaSheet",
     "InputError",
     "Panel",
+    "PlaneChangeExplorer",
     "PropellantTrade",
     "TransferTrade",
 ]
