@@ -54,8 +54,17 @@ PLANE_TOLERANCE = 1.0e-12
 _BATTIN = 0.01  # |x - 1| below which Battin's series gives T(x)
 _LAGRANGE = 0.2  # |x - 1| below which Lagrange's expression gives T(x)
 _MAX_STEPS = 40
-_STEP_TOLERANCE = 1.0e-13  # |dx| of a bisection that ends the iteration
+_STEP_TOLERANCE = 1.0e-13  # |dx| of a bisection that ends the iteration (on the scale of 1 + x near -1)
+_ULPS = 4.0 * np.finfo(float).eps  # a few units in the last place of x near 1: no closer step exists
 _FINAL_STEP = 1.0e-5  # a Householder step this short leaves an error near (1e-5)^4: the last one (as Izzo)
+#: Above this x (N = 0) T(x) = (1 - lam |lam|) / x to rounding (the next term is near ln(2x) / x**2):
+#: the short-time limit, where gravity no longer bends the path; solved in closed form.
+_ASYMPTOTE_X = 1.0e8
+#: Above this T (N = 0) x = -1 to rounding: the long-time limit (1 + x falls as T**(-2/3)).
+_LONGEST_T = 1.0e25
+#: Inputs whose magnitudes stay inside this band (norms, tof, mu) are solved in float64; the others
+#: in extended precision (long double), so 1e300 m or 1e-300 s neither over- nor underflow.
+_BAND = (1.0e-100, 1.0e100)
 
 
 @dataclass(frozen=True, repr=False, eq=False)
@@ -216,7 +225,13 @@ def _solve(
         exact = miss == 0.0
         if exact.any():
             new[exact] = xa[exact]
-        done = exact | (~outside & (np.abs(step) < _FINAL_STEP)) | (np.abs(new - xa) < _STEP_TOLERANCE)
+        # near x = -1 (very long flights) T varies on the scale of 1 + x: steps are measured on it
+        scale = np.minimum(xa + 1.0, 1.0)
+        done = (
+            exact
+            | (~outside & (np.abs(step) < _FINAL_STEP * scale))
+            | (np.abs(new - xa) < np.maximum(_STEP_TOLERANCE * scale, _ULPS))
+        )
         if whole:
             x, low, high = new, lo, hi
             converged = done
@@ -274,11 +289,18 @@ def _solve_x(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray:
 
 
 def _solve_x_flat(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray:
+    longest = None
+    if np.fmax.reduce(target, initial=-np.inf) > _LONGEST_T:  # x = -1 (and +1) to rounding: no iteration
+        longest = target > _LONGEST_T
+        target = np.where(longest, np.nan, target)
     if turns == 0:
         x0 = _zero_revolution_guess(target, lam)
         low = np.full_like(target, -1.0)
         high = np.full_like(target, np.inf)
-        return _solve(target, lam, 0.0, x0, low, high, increasing=False)
+        x = _solve(target, lam, 0.0, x0, low, high, increasing=False)
+        if longest is not None:
+            x[longest] = -1.0
+        return x
     x_min, t_min = _minimum_time(lam, float(turns))
     reachable = target >= t_min
     goal = np.where(reachable, target, np.nan)
@@ -290,6 +312,8 @@ def _solve_x_flat(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray
     left = _solve(goal, lam, float(turns), left0, np.full_like(target, -1.0), x_min, increasing=False)
     right = _solve(goal, lam, float(turns), right0, x_min.copy(), np.ones_like(target), increasing=True)
     # order the branches by semi-major axis a = a_min / (1 - x^2): shorter period first
+    if longest is not None:
+        left[longest], right[longest] = -1.0, 1.0
     left_shorter = np.abs(left) <= np.abs(right)
     short = np.where(left_shorter, left, right)
     long = np.where(left_shorter, right, left)
@@ -318,8 +342,9 @@ def _vector(value: ArrayLike, name: str) -> np.ndarray:
     array = finite(value, name, "m")
     if array.ndim == 0 or array.shape[-1] != 3:
         raise DomainError(f"`{name}` must hold 3-vectors on its last axis, shape (..., 3), got {array.shape}")
-    norm = np.sqrt(np.einsum("...i,...i->...", array, array))
-    require(norm, norm <= 0.0, f"|{name}|", "> 0", "m")
+    zero = ~np.any(array != 0.0, axis=-1)  # by components: the norm of (1e-300, 0, 0) underflows
+    if zero.any():
+        require(zero, zero, name, "a nonzero vector (a position away from the focus)")
     return array
 
 
@@ -376,6 +401,12 @@ def lambert(
     holds a transfer of the same shape: the velocity's direction is undefined
     and no single answer is right. (Shift an arrival date by a fraction of a
     day to leave the singular line.)
+
+    Flights so short that gravity no longer bends the path (Izzo's x above
+    1e8) are solved in closed form, and flights so long that x = -1 to
+    rounding (T above 1e25) take that limit; inputs such as 1e300 m or
+    1e-300 s are solved in long double and give the right answer in float64,
+    or inf where it does not fit one.
 
     Raises
     ------
@@ -451,9 +482,17 @@ def _velocities(
 
     ``r1``, ``r2`` may keep length-1 axes (a grid of departures x arrivals):
     their norms and unit vectors are then computed once per date, not per pair.
+    Inputs beyond ``_BAND`` (1e300 m, 1e-300 s) are solved in long double
+    and returned in float64: the right answer, or inf where it exceeds float64.
     """
-    u1, n1 = _unit(r1)
-    u2, n2 = _unit(r2)
+    with np.errstate(over="ignore", under="ignore"):
+        u1, n1 = _unit(r1)
+        u2, n2 = _unit(r2)
+    if r1.dtype == np.float64 and _beyond_band(n1, n2, tof, mu):
+        wide = [np.asarray(a, dtype=np.longdouble) for a in (r1, r2, tof, mu)]
+        with np.errstate(over="ignore", under="ignore"):
+            v1, v2, angle = _velocities(*wide, turns, prograde)
+            return v1.astype(np.float64), v2.astype(np.float64), angle.astype(np.float64)
     h, angle, planar = transfer_plane(u1, u2, prograde)
     chord = np.sqrt(np.einsum("...i,...i->...", r2 - r1, r2 - r1))
     s = 0.5 * (n1 + n2 + chord)
@@ -461,8 +500,13 @@ def _velocities(
     lam = np.sqrt(n1 * n2) * np.cos(angle / 2.0) / s
     lam = np.where(planar, lam, np.nan)
     target = np.sqrt(2.0 * mu / (s * s * s)) * tof
+    straight = _straight_cases(target, lam) if turns == 0 else None
+    if straight is not None:
+        solved = np.where(straight, np.nan, target)
+    else:
+        solved = target
 
-    x = _solve_x(target, lam, turns)
+    x = _solve_x(solved, lam, turns)
 
     gamma = np.sqrt(mu * s / 2.0)
     rho = (n1 - n2) / chord
@@ -471,11 +515,43 @@ def _velocities(
     radial1 = gamma * ((lam * y - x) - rho * (lam * y + x)) / n1
     radial2 = -gamma * ((lam * y - x) + rho * (lam * y + x)) / n2
     transverse = gamma * sigma * (y + lam * x)
+    if straight is not None:
+        # x = (1 - lam |lam|) / T to rounding: written with y / x and gamma x = s^2 (1 - lam |lam|) / (2 tof),
+        # which neither overflow for the largest x nor need mu (gravity no longer bends the path)
+        with np.errstate(over="ignore", under="ignore", invalid="ignore", divide="ignore"):
+            a = 1.0 - lam * np.abs(lam)
+            inverse_x = target / a
+            q = np.sqrt((1.0 - lam * lam) * inverse_x * inverse_x + lam * lam)
+            gx = a * s * s / (2.0 * tof)
+            radial1 = np.where(straight, gx * ((lam * q - 1.0) - rho * (lam * q + 1.0)) / n1, radial1)
+            radial2 = np.where(straight, -gx * ((lam * q - 1.0) + rho * (lam * q + 1.0)) / n2, radial2)
+            transverse = np.where(straight, gx * sigma * (q + lam), transverse)
     t1 = _cross(h, u1)
     t2 = _cross(h, u2)
     v1 = radial1[..., None] * u1 + (transverse / n1)[..., None] * t1
     v2 = radial2[..., None] * u2 + (transverse / n2)[..., None] * t2
     return v1, v2, angle
+
+
+def _beyond_band(*values: Any) -> bool:
+    """True when any magnitude (NaN aside) lies outside ``_BAND``: the long-double path then."""
+    low, high = _BAND
+    for value in values:
+        value = np.asarray(value)
+        if np.fmin.reduce(value, axis=None, initial=np.inf) < low:
+            return True
+        if np.fmax.reduce(value, axis=None, initial=-np.inf) > high:
+            return True
+    return False
+
+
+def _straight_cases(target: np.ndarray, lam: np.ndarray) -> np.ndarray | None:
+    """Where T is so short that x = (1 - lam |lam|) / T exceeds ``_ASYMPTOTE_X`` (None: nowhere)."""
+    if not np.fmin.reduce(target, axis=None, initial=np.inf) < 2.0 / _ASYMPTOTE_X:  # 1 - lam |lam| <= 2
+        return None
+    with np.errstate(invalid="ignore"):
+        straight = (1.0 - lam * np.abs(lam)) > _ASYMPTOTE_X * target
+    return straight if straight.any() else None
 
 
 def lambert_time_of_flight(x: ArrayLike, lam: ArrayLike, revolutions: int = 0) -> Any:
@@ -508,6 +584,14 @@ def lambert_time_of_flight(x: ArrayLike, lam: ArrayLike, revolutions: int = 0) -
     lam = finite(lam, "lam")
     require(x, ~(x > -1.0), "x", "> -1")
     require(lam, ~(np.abs(lam) <= 1.0), "lam", "within [-1, 1]")
-    x, lam = np.broadcast_arrays(x, lam)
-    t = _tof(np.array(x), np.array(lam), float(revolutions))
+    turns = checked_revolutions(revolutions)
+    shape = broadcast_shape(x=x, lam=lam)
+    x, lam = np.broadcast_to(x, shape).copy(), np.broadcast_to(lam, shape).copy()
+    far = x > _ASYMPTOTE_X  # hyperbolas so fast that T = (1 - lam |lam|) / x to rounding
+    if far.any():
+        x_near = np.where(far, 2.0, x)
+        with np.errstate(invalid="ignore"):
+            t = np.where(far, (1.0 - lam * np.abs(lam)) / x, _tof(x_near, lam, float(turns)))
+    else:
+        t = _tof(x, lam, float(turns))
     return t[()] if t.ndim == 0 else t
