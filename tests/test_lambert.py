@@ -233,6 +233,24 @@ def test_extreme_scales_give_the_scaled_answer(k, m, t):
         assert np.allclose(got, np.ldexp(expected, (m - k) // 2), rtol=1e-13, atol=0.0)
 
 
+@pytest.mark.parametrize("turns", [0, 1])
+def test_many_cases_solved_in_blocks_equal_one_solve(turns):
+    # Above two blocks of cases the solver works block by block (its temporaries stay small);
+    # the answers must be those of one solve over every case, to the bit, grids of dates too.
+    from deltakit.lambert_solver import _CASES_PER_BLOCK, _velocities, _velocities_of_block
+
+    rng = np.random.default_rng(5)
+    n = 2 * _CASES_PER_BLOCK + 1234
+    r1 = rng.uniform(-1.5e11, 1.5e11, (n, 3))
+    r2 = rng.uniform(-2.5e11, 2.5e11, (n, 3))
+    tof = rng.uniform(100.0, 900.0, n) * 86400.0 * (1 + 2 * turns)
+    for args in ((r1, r2, tof), (r1[:400, None], r2[None, :350], tof[:400, None] + tof[None, :350])):
+        blocked = _velocities(*args, MU_SUN, turns, True)
+        whole = _velocities_of_block(*args, MU_SUN, turns, True)
+        for a, b in zip(blocked, whole):
+            np.testing.assert_array_equal(a, b)
+
+
 def test_time_of_flight_forms_agree_where_they_meet():
     # Lancaster, Lagrange and Battin forms must join smoothly at |x - 1| = 0.2 and 0.01.
     from deltakit.lambert_solver import _tof_battin, _tof_lagrange, _tof_lancaster
