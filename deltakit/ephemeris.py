@@ -29,6 +29,7 @@ Results are for preliminary analysis, not for flight operations.
 
 from __future__ import annotations
 
+import atexit
 import functools
 from importlib import resources
 from typing import Any
@@ -91,6 +92,7 @@ def ephemeris_path() -> str:
 def _kernel() -> Any:
     spk = require_planets_extra("jplephem.spk")
     kernel = spk.SPK.open(ephemeris_path())
+    atexit.register(kernel.close)  # the file stays open for the session, closed at exit (no ResourceWarning)
     return {(segment.center, segment.target): segment for segment in kernel.segments}
 
 

@@ -17,7 +17,8 @@ The velocities follow from ``x`` by Izzo's eqs. (11)-(12).
 Every case iterates at once on arrays; cases that have converged drop out of
 later iterations, and a bracket kept per case (``T`` is monotonic on each
 branch) turns any step that leaves it into a bisection, so no case can wander
-off its branch.
+off its branch. Many cases are worked through in blocks of 65,536, so the
+temporaries of a step stay small.
 
 Conventions
 -----------
