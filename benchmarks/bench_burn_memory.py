@@ -12,7 +12,8 @@ Target (issue 15): peak RSS at most 1.5x the bytes of the inputs plus the
 outputs (the new conic's rp, e, argp, the true anomaly after, the energy
 change and the size of each burn). Before, a Conic stored full copies of every
 element, scalar mu included, and 10^8 burns peaked at about 11.5 GB for 3.9 GB
-of inputs. The exit code is non-zero if the target is missed.
+of inputs. One VERDICT line (``_timing.Verdicts``); the exit code is non-zero
+if the target is missed.
 """
 
 from __future__ import annotations
@@ -20,6 +21,8 @@ from __future__ import annotations
 import argparse
 import subprocess
 import sys
+
+from _timing import Verdicts
 
 TARGET = 1.5
 
@@ -54,12 +57,12 @@ def main(argv: list[str]) -> int:
     )
     inputs, outputs, peak = (int(x) for x in done.stdout.split())
     ratio = peak / (inputs + outputs)
-    ok = ratio <= TARGET
     gb = 1e9
     print(f"{cases:.0e} prograde burns on as many orbits, fresh process")
     print(f"  inputs {inputs / gb:5.2f} GB   outputs {outputs / gb:5.2f} GB   peak RSS {peak / gb:5.2f} GB")
-    print(f"  peak / (inputs + outputs) = {ratio:4.2f}x   target <= {TARGET}x   {'OK' if ok else 'MISSED'}")
-    return 0 if ok else 1
+    verdicts = Verdicts()
+    verdicts.at_most(f"peak RSS / (inputs + outputs), {cases:.0e} burns", ratio, TARGET)
+    return verdicts.finish()
 
 
 if __name__ == "__main__":

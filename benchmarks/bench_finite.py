@@ -15,8 +15,9 @@ subset). It times, in one run and side by side,
 
 The two answers are compared case by case (energy change within 1e-6
 relative) so the speed-up is at equal accuracy. Target (issue 4): the
-vectorised call at least 20x faster. The exit code is non-zero if the target
-or the accuracy check fails. The machine is shared: the ratio, not the absolute
+vectorised call at least 20x faster. One VERDICT line each for the speed-up
+and the accuracy (``_timing.Verdicts``); the exit code is non-zero if either
+fails. The machine is shared: the ratio, not the absolute
 times, is what matters.
 """
 
@@ -28,6 +29,7 @@ import sys
 import time
 
 import numpy as np
+from _timing import Verdicts
 from scipy.integrate import solve_ivp
 
 from deltakit import Conic, propagate, thrust_arc
@@ -118,14 +120,10 @@ def main(argv: list[str]) -> int:
         else (f"timed on {subset_size} cases: {loop_time:.2f} s, scaled x{N / subset_size:.1f}")
     )
     print(f"  {'scipy solve_ivp DOP853 loop':44s} {loop_scaled:9.3f} s   ({note})")
-    print(f"  speed-up {ratio:8.1f}x   (target >= {TARGET:.0f}x)")
-    print(
-        "  largest relative difference in energy change over the compared "
-        f"cases: {error:.1e} (must be < 1e-6)"
-    )
-    ok = ratio >= TARGET and error < 1e-6
-    print("  target met" if ok else "  TARGET MISSED")
-    return 0 if ok else 1
+    verdicts = Verdicts()
+    verdicts.at_least("scipy DOP853 loop / thrust_arc, 1,000 finite burns", ratio, TARGET)
+    verdicts.at_most("largest relative energy-change difference, thrust_arc vs scipy", error, 1e-6, unit="")
+    return verdicts.finish()
 
 
 if __name__ == "__main__":

@@ -19,9 +19,9 @@ Conic.from_apsides) it times, interleaved in one run,
   unfavourable to deltakit.
 
 Target: each deltakit call within 5x of its hand calculation. The script prints
-the per-call times, the ratio and a verdict per target, and exits non-zero
-when a target is missed. The machine is shared: read the ratios, and run it
-more than once.
+the per-call times, the ratio with its range and one VERDICT line per target
+(``_timing.Verdicts``), and exits non-zero when a target is missed. The machine
+is shared: read the ratios, and run it more than once.
 """
 
 from __future__ import annotations
@@ -34,6 +34,7 @@ from collections.abc import Callable
 from typing import Any
 
 import numpy as np
+from _timing import Verdicts, spread
 
 import deltakit as dk
 from deltakit.constants import EARTH
@@ -41,13 +42,6 @@ from deltakit.constants import EARTH
 TARGET = 5.0
 _NUMBER = (float, int, np.float64)  # what a hand calculation takes as a number (bool is not)
 _INF = math.inf
-
-
-def _verdict(label: str, ratio: float, target: float) -> bool:
-    """One verdict line, in the style of the other benchmarks (benchmarks/_timing.py may take it over)."""
-    ok = ratio <= target
-    print(f"  {label:<22} = {ratio:6.2f}x   target <= {target:.0f}x   {'OK' if ok else 'FAIL'}")
-    return ok
 
 
 # ---------------------------------------------------------------------- hand calculations with math
@@ -225,20 +219,22 @@ def main(argv: list[str]) -> int:
     runs, number = (3, 2000) if quick else (7, 10000)
     check_same_numbers()
     print(f"scalar calls: deltakit on plain floats vs the same work with math, {runs} interleaved runs")
-    all_ok = True
+    results = []
     for name, (ours, theirs, args, _) in TARGETS.items():
         t_ours, t_math = [], []
         for _ in range(runs):  # interleaved, so a noisy neighbour hits both alike
             t_ours.append(per_call(ours, args, number))
             t_math.append(per_call(theirs, args, number))
         ratios = [a / b for a, b in zip(t_ours, t_math)]
-        ratio = statistics.median(ratios)
         print(f"{name}:")
         print(f"  deltakit               {statistics.median(t_ours) * 1e6:8.2f} us per call")
         print(f"  math, same checks      {statistics.median(t_math) * 1e6:8.2f} us per call")
-        print(f"  (ratio over the runs: {min(ratios):.2f}x to {max(ratios):.2f}x)")
-        all_ok &= _verdict("deltakit / math", ratio, TARGET)
-    return 0 if all_ok else 1
+        print(f"  deltakit / math        {spread(ratios)}")
+        results.append((name, statistics.median(ratios)))
+    verdicts = Verdicts()  # one line per target, together at the end
+    for name, ratio in results:
+        verdicts.at_most(f"{name}: deltakit / math per scalar call", ratio, TARGET)
+    return verdicts.finish()
 
 
 if __name__ == "__main__":

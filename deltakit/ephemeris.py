@@ -29,16 +29,16 @@ Results are for preliminary analysis, not for flight operations.
 
 from __future__ import annotations
 
+import atexit
 import functools
 from importlib import resources
 from typing import Any
 
 import numpy as np
 
-from ._checks import finite
 from .constants import BODIES, CentralBody
 from .errors import DomainError
-from .timescales import J2000_JD, epoch, require_planets_extra
+from .timescales import J2000_JD, require_planets_extra, tdb_seconds
 
 __all__ = [
     "BODY_CODES",
@@ -92,6 +92,7 @@ def ephemeris_path() -> str:
 def _kernel() -> Any:
     spk = require_planets_extra("jplephem.spk")
     kernel = spk.SPK.open(ephemeris_path())
+    atexit.register(kernel.close)  # the file stays open for the session, closed at exit (no ResourceWarning)
     return {(segment.center, segment.target): segment for segment in kernel.segments}
 
 
@@ -140,18 +141,15 @@ def _code_of(body: Any, name: str) -> int:
     raise DomainError(f"`{name}` must be one of {known_names} (or its deltakit.constants body), got {body!r}")
 
 
-def _times(t: Any) -> np.ndarray:
-    array = np.asarray(t) if not isinstance(t, str) else None
-    if array is not None and array.dtype.kind in "fiu":
-        seconds = finite(t, "t", "s")
-    else:
-        seconds = np.asarray(epoch(t))
+def _times(t: Any, name: str = "t") -> np.ndarray:
+    """TDB seconds of times or dates given as ``name``, checked inside DE421's span."""
+    seconds = np.asarray(tdb_seconds(t, name), dtype=float)
     start, stop = EPHEMERIS_SPAN
     outside = (seconds < start) | (seconds > stop)
     if outside.any():
         count = int(np.count_nonzero(outside))
         raise DomainError(
-            f"`t` must lie within DE421's span, 1899-07-29 to 2053-10-09 TDB: "
+            f"`{name}` must lie within DE421's span, 1899-07-29 to 2053-10-09 TDB: "
             f"{count} of {seconds.size} times lie outside"
         )
     return seconds

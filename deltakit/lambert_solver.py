@@ -17,7 +17,8 @@ The velocities follow from ``x`` by Izzo's eqs. (11)-(12).
 Every case iterates at once on arrays; cases that have converged drop out of
 later iterations, and a bracket kept per case (``T`` is monotonic on each
 branch) turns any step that leaves it into a bisection, so no case can wander
-off its branch.
+off its branch. Many cases are worked through in blocks of 65,536, so the
+temporaries of a step stay small.
 
 Conventions
 -----------
@@ -37,11 +38,13 @@ Results are for preliminary analysis, not for flight operations.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from math import prod
 from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike
 
+from ._blocks import _block
 from ._checks import broadcast_shape, finite, positive, require
 from ._results import Result, quantity
 from .errors import DomainError
@@ -54,8 +57,19 @@ PLANE_TOLERANCE = 1.0e-12
 _BATTIN = 0.01  # |x - 1| below which Battin's series gives T(x)
 _LAGRANGE = 0.2  # |x - 1| below which Lagrange's expression gives T(x)
 _MAX_STEPS = 40
-_STEP_TOLERANCE = 1.0e-13  # |dx| of a bisection that ends the iteration
+_STEP_TOLERANCE = 1.0e-13  # |dx| of a bisection that ends the iteration (on the scale of 1 + x near -1)
+_ULPS = 4.0 * np.finfo(float).eps  # a few units in the last place of x near 1: no closer step exists
 _FINAL_STEP = 1.0e-5  # a Householder step this short leaves an error near (1e-5)^4: the last one (as Izzo)
+#: Above this x (N = 0) T(x) = (1 - lam |lam|) / x to rounding (the next term is near ln(2x) / x**2):
+#: the short-time limit, where gravity no longer bends the path; solved in closed form.
+_ASYMPTOTE_X = 1.0e8
+#: Above this T (N = 0) x = -1 to rounding: the long-time limit (1 + x falls as T**(-2/3)).
+_LONGEST_T = 1.0e25
+#: Cases solved together: 512 kB per float array, so a step's temporaries stay small and warm.
+_CASES_PER_BLOCK = 65536
+#: Inputs whose magnitudes stay inside this band (norms, tof, mu) are solved in float64; the others
+#: in extended precision (long double), so 1e300 m or 1e-300 s neither over- nor underflow.
+_BAND = (1.0e-100, 1.0e100)
 
 
 @dataclass(frozen=True, repr=False, eq=False)
@@ -89,6 +103,13 @@ def _hypergeometric(z: np.ndarray) -> np.ndarray:
 
 def _tof_lancaster(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
     """T(x) by Lancaster's expression (Izzo 2015, eqs. 18 and 19 with the N pi term)."""
+    return _lancaster_parts(x, lam, turns)[0]
+
+
+def _lancaster_parts(
+    x: np.ndarray, lam: np.ndarray, turns: float
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """T(x) by Lancaster's expression, with x^2 - 1 and sqrt(1 + lam^2 (x^2 - 1)) (the derivatives' too)."""
     energy = x * x - 1.0  # E < 0 ellipse, E > 0 hyperbola
     z = np.sqrt(1.0 + lam * lam * energy)
     y = np.sqrt(np.abs(energy))
@@ -104,7 +125,7 @@ def _tof_lancaster(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
         with np.errstate(divide="ignore", invalid="ignore"):
             np.log(y * (z - lam * x) + g, out=d, where=hyperbolic)
     with np.errstate(divide="ignore", invalid="ignore"):
-        return (x - lam * z - d / y) / energy
+        return (x - lam * z - d / y) / energy, energy, z
 
 
 def _tof_lagrange(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
@@ -141,7 +162,12 @@ def _tof_battin(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
 
 def _tof(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
     """Non-dimensional time of flight T(x) for N = ``turns`` revolutions."""
-    t = _tof_lancaster(x, lam, turns)
+    return _tof_parts(x, lam, turns)[0]
+
+
+def _tof_parts(x: np.ndarray, lam: np.ndarray, turns: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """T(x), with x^2 - 1 and sqrt(1 + lam^2 (x^2 - 1)), which :func:`_derivatives` needs as well."""
+    t, energy, z = _lancaster_parts(x, lam, turns)
     distance = np.abs(x - 1.0)
     near = distance < _LAGRANGE
     if near.any():
@@ -149,23 +175,31 @@ def _tof(x: np.ndarray, lam: np.ndarray, turns: float) -> np.ndarray:
         xs, ls, ds = x.ravel()[index], lam.ravel()[index], distance.ravel()[index]
         series = ds < _BATTIN
         t_near = np.where(series, _tof_battin(xs, ls, turns), _tof_lagrange(xs, ls, turns))
-        t = t.copy()
         t.ravel()[index] = t_near
-    return t
+    return t, energy, z
 
 
-def _derivatives(x: np.ndarray, t: np.ndarray, lam: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """dT/dx, d2T/dx2, d3T/dx3 at x where T(x) = t (Izzo 2015, eq. 22)."""
+def _derivatives(
+    x: np.ndarray, t: np.ndarray, lam: np.ndarray, energy: Any = None, y: Any = None
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """dT/dx, d2T/dx2, d3T/dx3 at x where T(x) = t (Izzo 2015, eq. 22).
+
+    ``energy`` = x^2 - 1 and ``y`` = sqrt(1 - lam^2 (1 - x^2)) when the caller has them already.
+    """
     lam2 = lam * lam
-    lam3 = lam2 * lam
-    one_minus_x2 = 1.0 - x * x
-    y = np.sqrt(1.0 - lam2 * one_minus_x2)
+    if energy is None:
+        energy = x * x - 1.0
+    if y is None:
+        y = np.sqrt(1.0 + lam2 * energy)
     with np.errstate(divide="ignore", invalid="ignore"):
-        inverse = 1.0 / one_minus_x2
-        y3 = y * y * y
-        d1 = (3.0 * t * x - 2.0 + 2.0 * lam3 * x / y) * inverse
-        d2 = (3.0 * t + 5.0 * x * d1 + 2.0 * (1.0 - lam2) * lam3 / y3) * inverse
-        d3 = (7.0 * x * d2 + 8.0 * d1 - 6.0 * (1.0 - lam2) * lam2 * lam3 * x / (y3 * y * y)) * inverse
+        inverse = -1.0 / energy  # 1 / (1 - x^2)
+        twice_lam3 = 2.0 * lam2 * lam
+        rest = 1.0 - lam2
+        y2 = y * y
+        y3 = y2 * y
+        d1 = (3.0 * t * x - 2.0 + twice_lam3 * x / y) * inverse
+        d2 = (3.0 * t + 5.0 * x * d1 + rest * twice_lam3 / y3) * inverse
+        d3 = (7.0 * x * d2 + 8.0 * d1 - 3.0 * rest * lam2 * twice_lam3 * x / (y3 * y2)) * inverse
     return d1, d2, d3
 
 
@@ -196,27 +230,35 @@ def _solve(
             xa, la, ta, lo, hi = x, lam, target, low, high
         else:
             xa, la, ta, lo, hi = x[active], lam[active], target[active], low[active], high[active]
-        t = _tof(xa, la, turns)
+        t, energy, z = _tof_parts(xa, la, turns)
         miss = t - ta
         # keep the bracket: T decreases with x on the zero-revolution and left branches
-        above = (miss > 0.0) != increasing
+        above = ~(miss > 0.0) if increasing else miss > 0.0
         np.copyto(lo, xa, where=above)
         np.copyto(hi, xa, where=~above)
-        d1, d2, d3 = _derivatives(xa, t, la)
+        d1, d2, d3 = _derivatives(xa, t, la, energy, z)
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-            step = miss * (d1 * d1 - miss * d2 / 2.0) / (d1 * (d1 * d1 - miss * d2) + d3 * miss * miss / 6.0)
-            new = xa - step
+            d1_squared, miss_d2 = d1 * d1, miss * d2
+            step = (
+                miss * (d1_squared - 0.5 * miss_d2) / (d1 * (d1_squared - miss_d2) + d3 * (miss * miss / 6.0))
+            )
+            new = xa - step  # a case with T = target steps by 0 (and is done) unless the step is NaN
             outside = ~((new >= lo) & (new <= hi))  # NaN too
+            # near x = -1 (very long flights) T varies on the scale of 1 + x: steps are measured on it,
+            # down to the few units in the last place that x can still resolve there
+            scale = np.maximum(np.minimum(xa + 1.0, 1.0), _ULPS / _FINAL_STEP)
+            done = np.abs(step) < _FINAL_STEP * scale
         if outside.any():  # rare: bisect those cases (an open bracket doubles outwards)
             index = np.flatnonzero(outside)
-            lo_out, hi_out = lo[index], hi[index]
-            new[index] = np.where(
+            lo_out, hi_out, x_out = lo[index], hi[index], xa[index]
+            bisected = np.where(
                 np.isfinite(hi_out), 0.5 * (lo_out + hi_out), lo_out + np.maximum(1.0, np.abs(lo_out))
             )
-        exact = miss == 0.0
-        if exact.any():
-            new[exact] = xa[exact]
-        done = exact | (~outside & (np.abs(step) < _FINAL_STEP)) | (np.abs(new - xa) < _STEP_TOLERANCE)
+            exact = miss[index] == 0.0
+            bisected = np.where(exact, x_out, bisected)
+            new[index] = bisected
+            tolerance = np.maximum(_STEP_TOLERANCE * scale[index], _ULPS)
+            done[index] = exact | (np.abs(bisected - x_out) < tolerance)
         if whole:
             x, low, high = new, lo, hi
             converged = done
@@ -274,11 +316,18 @@ def _solve_x(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray:
 
 
 def _solve_x_flat(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray:
+    longest = None
+    if np.fmax.reduce(target, initial=-np.inf) > _LONGEST_T:  # x = -1 (and +1) to rounding: no iteration
+        longest = target > _LONGEST_T
+        target = np.where(longest, np.nan, target)
     if turns == 0:
         x0 = _zero_revolution_guess(target, lam)
         low = np.full_like(target, -1.0)
         high = np.full_like(target, np.inf)
-        return _solve(target, lam, 0.0, x0, low, high, increasing=False)
+        x = _solve(target, lam, 0.0, x0, low, high, increasing=False)
+        if longest is not None:
+            x[longest] = -1.0
+        return x
     x_min, t_min = _minimum_time(lam, float(turns))
     reachable = target >= t_min
     goal = np.where(reachable, target, np.nan)
@@ -290,6 +339,8 @@ def _solve_x_flat(target: np.ndarray, lam: np.ndarray, turns: int) -> np.ndarray
     left = _solve(goal, lam, float(turns), left0, np.full_like(target, -1.0), x_min, increasing=False)
     right = _solve(goal, lam, float(turns), right0, x_min.copy(), np.ones_like(target), increasing=True)
     # order the branches by semi-major axis a = a_min / (1 - x^2): shorter period first
+    if longest is not None:
+        left[longest], right[longest] = -1.0, 1.0
     left_shorter = np.abs(left) <= np.abs(right)
     short = np.where(left_shorter, left, right)
     long = np.where(left_shorter, right, left)
@@ -318,8 +369,9 @@ def _vector(value: ArrayLike, name: str) -> np.ndarray:
     array = finite(value, name, "m")
     if array.ndim == 0 or array.shape[-1] != 3:
         raise DomainError(f"`{name}` must hold 3-vectors on its last axis, shape (..., 3), got {array.shape}")
-    norm = np.sqrt(np.einsum("...i,...i->...", array, array))
-    require(norm, norm <= 0.0, f"|{name}|", "> 0", "m")
+    zero = ~np.any(array != 0.0, axis=-1)  # by components: the norm of (1e-300, 0, 0) underflows
+    if zero.any():
+        require(zero, zero, name, "a nonzero vector (a position away from the focus)")
     return array
 
 
@@ -376,6 +428,12 @@ def lambert(
     holds a transfer of the same shape: the velocity's direction is undefined
     and no single answer is right. (Shift an arrival date by a fraction of a
     day to leave the singular line.)
+
+    Flights so short that gravity no longer bends the path (Izzo's x above
+    1e8) are solved in closed form, and flights so long that x = -1 to
+    rounding (T above 1e25) take that limit; inputs such as 1e300 m or
+    1e-300 s are solved in long double and give the right answer in float64,
+    or inf where it does not fit one.
 
     Raises
     ------
@@ -449,20 +507,85 @@ def _velocities(
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """The solver on checked arrays that broadcast together (the map's fast path): v1, v2, transfer angle.
 
+    Many cases are solved in blocks of about ``_CASES_PER_BLOCK`` (cut as
+    :mod:`deltakit._blocks` cuts them), so the solver's temporaries stay small
+    and warm instead of being fresh arrays of every case at each step.
+    """
+    r1, r2, tof, mu = (np.asarray(a) for a in (r1, r2, tof, mu))
+    shape = np.broadcast_shapes(r1.shape[:-1], r2.shape[:-1], tof.shape, mu.shape)
+    if prod(shape) <= 2 * _CASES_PER_BLOCK:
+        return _velocities_of_block(r1, r2, tof, mu, turns, prograde)
+    ndim = len(shape)
+    r1, r2 = (a.reshape((1,) * (ndim + 1 - a.ndim) + a.shape) for a in (r1, r2))
+    tof, mu = (a.reshape((1,) * (ndim - a.ndim) + a.shape) for a in (tof, mu))
+    axis, inner = ndim - 1, 1  # cut along `axis`; the axes after it go whole into each block
+    while axis > 0 and inner * shape[axis] <= _CASES_PER_BLOCK:
+        inner *= shape[axis]
+        axis -= 1
+    step = max(1, _CASES_PER_BLOCK // inner)
+    branches = (slice(None),) if turns else ()
+    v1 = np.empty((2, *shape, 3) if turns else (*shape, 3))
+    v2 = np.empty_like(v1)
+    angle = np.empty(shape)
+    for outer in np.ndindex(*shape[:axis]):
+        for start in range(0, shape[axis], step):
+            cut = slice(start, start + step)
+            parts = [_block(a, outer, axis, cut) for a in (r1, r2, tof, mu)]
+            index = (*outer, cut)
+            v1[branches + index], v2[branches + index], angle[index] = _velocities_of_block(
+                *parts, turns, prograde
+            )
+    return v1, v2, angle
+
+
+def _velocities_of_block(
+    r1: np.ndarray, r2: np.ndarray, tof: np.ndarray, mu: Any, turns: int, prograde: bool
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """:func:`_velocities` on one block of cases.
+
     ``r1``, ``r2`` may keep length-1 axes (a grid of departures x arrivals):
     their norms and unit vectors are then computed once per date, not per pair.
+    Inputs beyond ``_BAND`` (1e300 m, 1e-300 s) are solved in long double
+    and returned in float64: the right answer, or inf where it exceeds float64.
     """
-    u1, n1 = _unit(r1)
-    u2, n2 = _unit(r2)
-    h, angle, planar = transfer_plane(u1, u2, prograde)
-    chord = np.sqrt(np.einsum("...i,...i->...", r2 - r1, r2 - r1))
+    # vectors as contiguous components: every step below is then a plain pass over the cases
+    x1, y1, z1 = (r1[..., k].copy() for k in range(3))
+    x2, y2, z2 = (r2[..., k].copy() for k in range(3))
+    with np.errstate(over="ignore", under="ignore"):
+        n1 = np.sqrt(x1 * x1 + y1 * y1 + z1 * z1)
+        n2 = np.sqrt(x2 * x2 + y2 * y2 + z2 * z2)
+    if r1.dtype == np.float64 and _beyond_band(n1, n2, tof, mu):
+        wide = [np.asarray(a, dtype=np.longdouble) for a in (r1, r2, tof, mu)]
+        with np.errstate(over="ignore", under="ignore"):
+            v1, v2, angle = _velocities_of_block(*wide, turns, prograde)
+            return v1.astype(np.float64), v2.astype(np.float64), angle.astype(np.float64)
+    # the plane of the motion, as transfer_plane finds it, component by component
+    with np.errstate(invalid="ignore", divide="ignore"):
+        inverse1, inverse2 = 1.0 / n1, 1.0 / n2
+        a1, b1, c1 = x1 * inverse1, y1 * inverse1, z1 * inverse1
+        a2, b2, c2 = x2 * inverse2, y2 * inverse2, z2 * inverse2
+        nx, ny, nz = b1 * c2 - c1 * b2, c1 * a2 - a1 * c2, a1 * b2 - b1 * a2
+        sin_angle = np.sqrt(nx * nx + ny * ny + nz * nz)
+        sign = np.where((nz < 0.0) if prograde else (nz >= 0.0), -1.0, 1.0)
+        inverse = sign / sin_angle
+        hx, hy, hz = nx * inverse, ny * inverse, nz * inverse
+    angle = np.asarray(np.arctan2(sign * sin_angle, a1 * a2 + b1 * b2 + c1 * c2))  # (-pi, pi] to [0, 2 pi)
+    np.add(angle, 2.0 * np.pi, out=angle, where=angle < 0.0)
+    planar = sin_angle > PLANE_TOLERANCE
+    dx, dy, dz = x2 - x1, y2 - y1, z2 - z1
+    chord = np.sqrt(dx * dx + dy * dy + dz * dz)
     s = 0.5 * (n1 + n2 + chord)
     # lam = sqrt(1 - c/s) with its sign, from the half angle: no cancellation near 180 degrees
     lam = np.sqrt(n1 * n2) * np.cos(angle / 2.0) / s
     lam = np.where(planar, lam, np.nan)
     target = np.sqrt(2.0 * mu / (s * s * s)) * tof
+    straight = _straight_cases(target, lam) if turns == 0 else None
+    if straight is not None:
+        solved = np.where(straight, np.nan, target)
+    else:
+        solved = target
 
-    x = _solve_x(target, lam, turns)
+    x = _solve_x(solved, lam, turns)
 
     gamma = np.sqrt(mu * s / 2.0)
     rho = (n1 - n2) / chord
@@ -471,11 +594,54 @@ def _velocities(
     radial1 = gamma * ((lam * y - x) - rho * (lam * y + x)) / n1
     radial2 = -gamma * ((lam * y - x) + rho * (lam * y + x)) / n2
     transverse = gamma * sigma * (y + lam * x)
-    t1 = _cross(h, u1)
-    t2 = _cross(h, u2)
-    v1 = radial1[..., None] * u1 + (transverse / n1)[..., None] * t1
-    v2 = radial2[..., None] * u2 + (transverse / n2)[..., None] * t2
+    if straight is not None:
+        # x = (1 - lam |lam|) / T to rounding: written with y / x and gamma x = s^2 (1 - lam |lam|) / (2 tof),
+        # which neither overflow for the largest x nor need mu (gravity no longer bends the path)
+        with np.errstate(over="ignore", under="ignore", invalid="ignore", divide="ignore"):
+            a = 1.0 - lam * np.abs(lam)
+            inverse_x = target / a
+            q = np.sqrt((1.0 - lam * lam) * inverse_x * inverse_x + lam * lam)
+            gx = a * s * s / (2.0 * tof)
+            radial1 = np.where(straight, gx * ((lam * q - 1.0) - rho * (lam * q + 1.0)) / n1, radial1)
+            radial2 = np.where(straight, -gx * ((lam * q - 1.0) + rho * (lam * q + 1.0)) / n2, radial2)
+            transverse = np.where(straight, gx * sigma * (q + lam), transverse)
+    # v = radial u + transverse (h x u) / |r| at each end
+    v1 = _along(radial1, transverse / n1, (a1, b1, c1), (hx, hy, hz))
+    v2 = _along(radial2, transverse / n2, (a2, b2, c2), (hx, hy, hz))
     return v1, v2, angle
+
+
+def _along(radial: np.ndarray, transverse: np.ndarray, u: tuple, h: tuple) -> np.ndarray:
+    """``radial u + transverse (h x u)`` as vectors on the last axis, from components."""
+    ux, uy, uz = u
+    hx, hy, hz = h
+    shape = np.broadcast_shapes(radial.shape, transverse.shape, ux.shape, hx.shape)
+    out = np.empty((*shape, 3), dtype=np.result_type(radial, ux))
+    out[..., 0] = radial * ux + transverse * (hy * uz - hz * uy)
+    out[..., 1] = radial * uy + transverse * (hz * ux - hx * uz)
+    out[..., 2] = radial * uz + transverse * (hx * uy - hy * ux)
+    return out
+
+
+def _beyond_band(*values: Any) -> bool:
+    """True when any magnitude (NaN aside) lies outside ``_BAND``: the long-double path then."""
+    low, high = _BAND
+    for value in values:
+        value = np.asarray(value)
+        if np.fmin.reduce(value, axis=None, initial=np.inf) < low:
+            return True
+        if np.fmax.reduce(value, axis=None, initial=-np.inf) > high:
+            return True
+    return False
+
+
+def _straight_cases(target: np.ndarray, lam: np.ndarray) -> np.ndarray | None:
+    """Where T is so short that x = (1 - lam |lam|) / T exceeds ``_ASYMPTOTE_X`` (None: nowhere)."""
+    if not np.fmin.reduce(target, axis=None, initial=np.inf) < 2.0 / _ASYMPTOTE_X:  # 1 - lam |lam| <= 2
+        return None
+    with np.errstate(invalid="ignore"):
+        straight = (1.0 - lam * np.abs(lam)) > _ASYMPTOTE_X * target
+    return straight if straight.any() else None
 
 
 def lambert_time_of_flight(x: ArrayLike, lam: ArrayLike, revolutions: int = 0) -> Any:
@@ -508,6 +674,14 @@ def lambert_time_of_flight(x: ArrayLike, lam: ArrayLike, revolutions: int = 0) -
     lam = finite(lam, "lam")
     require(x, ~(x > -1.0), "x", "> -1")
     require(lam, ~(np.abs(lam) <= 1.0), "lam", "within [-1, 1]")
-    x, lam = np.broadcast_arrays(x, lam)
-    t = _tof(np.array(x), np.array(lam), float(revolutions))
+    turns = checked_revolutions(revolutions)
+    shape = broadcast_shape(x=x, lam=lam)
+    x, lam = np.broadcast_to(x, shape).copy(), np.broadcast_to(lam, shape).copy()
+    far = x > _ASYMPTOTE_X  # hyperbolas so fast that T = (1 - lam |lam|) / x to rounding
+    if far.any():
+        x_near = np.where(far, 2.0, x)
+        with np.errstate(invalid="ignore"):
+            t = np.where(far, (1.0 - lam * np.abs(lam)) / x, _tof(x_near, lam, float(turns)))
+    else:
+        t = _tof(x, lam, float(turns))
     return t[()] if t.ndim == 0 else t

@@ -38,8 +38,9 @@ import numpy as np
 
 from ._checks import finite, scalar_or_array
 from .errors import DomainError
+from .units import is_quantity
 
-__all__ = ["J2000_JD", "epoch", "require_planets_extra", "to_datetime64"]
+__all__ = ["J2000_JD", "epoch", "require_planets_extra", "tdb_seconds", "to_datetime64"]
 
 #: Julian date of the J2000.0 epoch (2000-01-01 12:00 TDB), days.
 J2000_JD: float = 2451545.0
@@ -69,10 +70,10 @@ def require_planets_extra(module: str) -> Any:
 
 
 # ---------------------------------------------------------------------- calendar fields
-def _fields_of_datetime64(values: np.ndarray) -> tuple[np.ndarray, ...]:
+def _fields_of_datetime64(values: np.ndarray, name: str) -> tuple[np.ndarray, ...]:
     """Year, month, day, hour, minute (ints) and seconds (float) of datetime64 values."""
     if np.isnat(values).any():
-        raise DomainError("`value` holds NaT (not a time); give real dates")
+        raise DomainError(f"`{name}` holds NaT (not a time); give real dates")
     ns = values.astype("datetime64[ns]")
     days = ns.astype("datetime64[D]")
     months = days.astype("datetime64[M]")
@@ -87,12 +88,12 @@ def _fields_of_datetime64(values: np.ndarray) -> tuple[np.ndarray, ...]:
     return year, month, day, hour, minute, second
 
 
-def _fields_of_text(text: str) -> tuple[int, int, int, int, int, float, float]:
+def _fields_of_text(text: str, name: str) -> tuple[int, int, int, int, int, float, float]:
     """Calendar fields of one ISO 8601 date, and its zone offset in minutes (leap second 60 allowed)."""
     match = _ISO.match(text)
     if match is None:
         raise DomainError(
-            f"`value` must be an ISO 8601 date such as '2028-11-10' or '2028-11-10T06:30:00', got {text!r}"
+            f"`{name}` must be an ISO 8601 date such as '2028-11-10' or '2028-11-10T06:30:00', got {text!r}"
         )
     part = match.groupdict()
     zone = (part["zone"] or "").upper()
@@ -112,9 +113,12 @@ def _fields_of_text(text: str) -> tuple[int, int, int, int, int, float, float]:
     )
 
 
-def _fields_of_object(item: Any) -> tuple[int, int, int, int, int, float, float]:
+_NOT_DATES = "must be dates: ISO 8601 text, datetime, numpy.datetime64, or TDB seconds past J2000 as numbers"
+
+
+def _fields_of_object(item: Any, name: str) -> tuple[int, int, int, int, int, float, float]:
     if isinstance(item, str):
-        return _fields_of_text(item)
+        return _fields_of_text(item, name)
     if isinstance(item, _dt.datetime):
         if item.tzinfo is not None:
             item = item.astimezone(_dt.timezone.utc).replace(tzinfo=None)
@@ -130,31 +134,27 @@ def _fields_of_object(item: Any) -> tuple[int, int, int, int, int, float, float]
     if isinstance(item, _dt.date):
         return (item.year, item.month, item.day, 0, 0, 0.0, 0.0)
     if isinstance(item, np.datetime64):
-        fields = _fields_of_datetime64(np.asarray(item))
+        fields = _fields_of_datetime64(np.asarray(item), name)
         return (*(f.item() for f in fields), 0.0)  # type: ignore[return-value]
-    raise DomainError(
-        "`value` must be dates: ISO 8601 text, datetime, numpy.datetime64, or TDB seconds past J2000 "
-        f"as numbers; got {type(item).__name__} ({item!r})"
-    )
+    shown = repr(item) if len(repr(item)) <= 60 else repr(item)[:57] + "..."
+    raise DomainError(f"`{name}` {_NOT_DATES}; got {type(item).__name__} ({shown})")
 
 
-def _calendar_fields(value: Any) -> tuple[tuple[np.ndarray, ...], np.ndarray, tuple[int, ...]]:
+def _calendar_fields(value: Any, name: str) -> tuple[tuple[np.ndarray, ...], np.ndarray, tuple[int, ...]]:
     """Calendar fields as arrays, the zone offsets (minutes) and the shape of ``value``."""
     array = np.asarray(value)
     if array.dtype.kind == "M":
-        return _fields_of_datetime64(array), np.zeros(array.shape), array.shape
+        return _fields_of_datetime64(array, name), np.zeros(array.shape), array.shape
     if array.dtype.kind in "USO":
-        flat = [_fields_of_object(item) for item in array.reshape(-1).tolist()]
+        flat = [_fields_of_object(item, name) for item in array.reshape(-1).tolist()]
         if not flat:
             columns = [np.zeros(0)] * 7
         else:
             columns = [np.asarray(column) for column in zip(*flat)]
         shaped = [column.reshape(array.shape) for column in columns]
         return tuple(shaped[:6]), shaped[6], array.shape
-    raise DomainError(
-        "`value` must be dates: ISO 8601 text, datetime, numpy.datetime64, or TDB seconds past J2000 "
-        f"as numbers; got an array of {array.dtype}"
-    )
+    what = f"an array of {array.dtype}" if array.ndim else f"{type(value).__name__} ({value!r})"
+    raise DomainError(f"`{name}` {_NOT_DATES}; got {what}")
 
 
 # ---------------------------------------------------------------------- public
@@ -200,22 +200,39 @@ def epoch(value: Any, scale: str = "utc") -> Any:
     >>> float(epoch("2017-01-01T00:00:00") - epoch("2016-12-31T23:59:59"))
     2.0
     """
+    return tdb_seconds(value, "value", scale)
+
+
+def tdb_seconds(value: Any, name: str, scale: str = "utc") -> Any:
+    """:func:`epoch` for a parameter called ``name``: its errors name that parameter.
+
+    Numbers (and time quantities, read in seconds) are TDB seconds past J2000
+    already and come back checked finite; masked arrays are refused.
+
+    Examples
+    --------
+    >>> from deltakit.timescales import tdb_seconds
+    >>> float(tdb_seconds(86400.0, "departure"))
+    86400.0
+    """
     if scale not in _SCALES:
         raise DomainError(f"`scale` must be one of {_SCALES}, got {scale!r}")
+    if is_quantity(value) or isinstance(value, np.ma.MaskedArray):  # seconds, or refused: never stripped
+        return scalar_or_array(finite(value, name, "s"))
     array = np.asarray(value) if not isinstance(value, (_dt.date, str)) else None
     if array is not None and array.dtype.kind in "fiu" and not isinstance(value, np.datetime64):
-        return scalar_or_array(finite(value, "value", "s"))
+        return scalar_or_array(finite(value, name, "s"))
     erfa = require_planets_extra("erfa")
-    (year, month, day, hour, minute, second), offset, shape = _calendar_fields(value)
+    (year, month, day, hour, minute, second), offset, shape = _calendar_fields(value, name)
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", erfa.ErfaWarning)  # "dubious year": see the module notes
         try:
             jd1, jd2 = erfa.dtf2d(scale.upper(), year, month, day, hour, minute, second)
         except erfa.ErfaError as err:
-            raise DomainError(f"`value` holds a date that does not exist on the calendar ({err})") from None
+            raise DomainError(f"`{name}` holds a date that does not exist on the calendar ({err})") from None
         if any("end of day" in str(warning.message) for warning in caught):
             raise DomainError(
-                "`value` holds a time past the end of its day (second 60 exists only on a leap-second day)"
+                f"`{name}` holds a time past the end of its day (second 60 exists only on a leap-second day)"
             )
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", erfa.ErfaWarning)

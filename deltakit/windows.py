@@ -47,7 +47,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from ._checks import positive, require
+from ._checks import broadcast_shape, positive, require
 from ._results import Result, quantity
 from .conic import Conic
 from .constants import SUN, CentralBody
@@ -56,7 +56,8 @@ from .ephemeris import _times as ephemeris_times
 from .ephemeris import body_name, central_body, ecliptic_rotation, planet_state
 from .errors import DomainError
 from .lambert_solver import _velocities, checked_prograde, checked_revolutions
-from .timescales import epoch, to_datetime64
+from .timescales import tdb_seconds, to_datetime64
+from .units import is_quantity
 
 if TYPE_CHECKING:  # the `scale` extra; the sweep imports it at run time
     import xarray
@@ -256,15 +257,19 @@ def _check_common(
 
 
 def _dates(values: Any, name: str) -> tuple[np.ndarray, np.ndarray]:
-    """A 1-D axis of dates: (the coordinate as given, TDB seconds)."""
-    array = np.asarray(values)
+    """A 1-D axis of dates: (the coordinate as given, TDB seconds inside DE421's span)."""
+    if is_quantity(values) or isinstance(values, np.ma.MaskedArray):  # read in seconds, or refused
+        array = np.asarray(tdb_seconds(values, name), dtype=float)
+    else:
+        array = np.asarray(values)
     if array.ndim != 1 or array.size == 0:
         raise DomainError(f"`{name}` must be a 1-D sequence of dates, got shape {array.shape}")
+    seconds = ephemeris_times(array, name)  # dates outside DE421 fail here, not later inside a lazy block
     if array.dtype.kind in "USO":
-        coordinate = np.asarray([np.datetime64(to_datetime64(epoch(item)), "s") for item in array.tolist()])
+        coordinate = np.asarray([np.datetime64(to_datetime64(t), "s") for t in seconds.tolist()])
     else:
         coordinate = array
-    return coordinate, np.asarray(epoch(array), dtype=float)
+    return coordinate, seconds
 
 
 # ---------------------------------------------------------------------- public
@@ -361,8 +366,6 @@ def transfer_map(
     settings = _check_common(origin, target, revolutions, parking, arrival_orbit, vehicle, prograde)
     departure_dates, departure_tdb = _dates(departures, "departures")
     arrival_dates, arrival_tdb = _dates(arrivals, "arrivals")
-    for tdb in (departure_tdb, arrival_tdb):
-        ephemeris_times(tdb)  # dates outside DE421 fail here, not later inside a lazy block
 
     units = {**_UNITS, **{f"{key}__{k}": unit for key, unit in _UNITS.items() for k in range(2)}}
     units.update(departure_tdb="s", arrival_tdb="s")
@@ -469,10 +472,15 @@ def transfer_pair(
     (True, True)
     """
     settings = _check_common(origin, target, revolutions, parking, arrival_orbit, vehicle, prograde)
-    if branch not in (0, 1):
+    if (
+        isinstance(branch, (bool, np.bool_))
+        or not isinstance(branch, (int, np.integer))
+        or branch not in (0, 1)
+    ):
         raise DomainError(f"`branch` must be 0 (shorter period) or 1 (longer period), got {branch!r}")
-    t_departure = np.asarray(epoch(departure), dtype=float)
-    t_arrival = np.asarray(epoch(arrival), dtype=float)
+    t_departure = ephemeris_times(departure, "departure")
+    t_arrival = ephemeris_times(arrival, "arrival")
+    broadcast_shape(departure=t_departure, arrival=t_arrival)
     fields = _pair_fields(t_departure, t_arrival, **settings)
     shape = np.shape(fields["c3"])
     if settings["revolutions"] > 0:

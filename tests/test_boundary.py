@@ -60,6 +60,8 @@ class Case:
     arrays: bool = True
     #: Trades take axes of a grid: 1-D arrays of any lengths, not arrays that broadcast.
     grid: bool = False
+    #: Parameters that take dates as well as TDB seconds: a datetime there is a value, not hostile.
+    dates: frozenset[str] = frozenset()
 
 
 def _numbers(record):
@@ -80,6 +82,38 @@ def _trade(name):
 
     call.__name__ = name
     return call
+
+
+def _planets(function):
+    """``function`` of the `planets` extra (pyerfa, jplephem, skyfield-data; maps also xarray)."""
+
+    def call(**kwargs):
+        for module in ("erfa", "jplephem", "skyfield_data"):
+            pytest.importorskip(module)
+        if function is dk.transfer_map:
+            pytest.importorskip("xarray")
+        return function(**kwargs)
+
+    call.__name__ = function.__name__
+    return call
+
+
+#: TDB seconds past J2000 of 2028-11-15 and 2029-08-20 UTC: an Earth-Mars pair of the 2028 window.
+DEPART, ARRIVE = 911131269.18, 935150469.18
+DAY = 86400.0
+EARTH_PARKING, MARS_ORBIT = 6678.137e3, 3789.5e3  # 300 km and 400 km up (radii of deltakit.constants)
+
+
+def _add_transfer(margin):
+    pair = _planets(dk.transfer_pair)(
+        origin="Earth",
+        target="Mars",
+        departure=DEPART,
+        arrival=ARRIVE,
+        parking=EARTH_PARKING,
+        arrival_orbit=MARS_ORBIT,
+    )
+    return dk.add_transfer(dk.Budget(3000.0, 3200.0), pair, margin=margin)
 
 
 M, MPS, MU_UNIT, RAD, KG, S = "m", "m/s", "m^3/s^2", "rad", "kg", "s"
@@ -306,6 +340,72 @@ CASES: dict[str, Case] = {
         "structure",
         grid=True,
     ),
+    # between the planets (the planets branch): dates are TDB seconds here, or dates where marked
+    "epoch": Case(_planets(dk.epoch), {"value": DEPART}, {"value": S}, "planets", dates=frozenset({"value"})),
+    "planet_state": Case(
+        _planets(dk.planet_state),
+        {"body": "Mars", "t": DEPART, "center": "Sun", "frame": "ecliptic"},
+        {"t": S},
+        "planets",
+        dates=frozenset({"t"}),
+    ),
+    # Curtis, Orbital Mechanics for Engineering Students, 3rd ed., Example 5.2 (quoted from memory)
+    "lambert": Case(
+        dk.lambert,
+        {
+            "r1": [5000e3, 10000e3, 2100e3],
+            "r2": [-14600e3, 2500e3, 7000e3],
+            "tof": 3600.0,
+            "mu": MU,
+            "revolutions": 0,
+            "prograde": True,
+        },
+        {"r1": M, "r2": M, "tof": S, "mu": MU_UNIT},
+        "planets",
+    ),
+    "lambert(revolutions)": Case(
+        dk.lambert,
+        {"r1": [7000e3, 0.0, 0.0], "r2": [0.0, 8000e3, 0.0], "tof": 4 * 3600.0, "mu": MU, "revolutions": 2},
+        {"r1": M, "r2": M, "tof": S, "mu": MU_UNIT},
+        "planets",
+    ),
+    "lambert_time_of_flight": Case(
+        dk.lambert_time_of_flight, {"x": 0.3, "lam": 0.5, "revolutions": 0}, {"x": "", "lam": ""}, "planets"
+    ),
+    "transfer_pair": Case(
+        _planets(dk.transfer_pair),
+        {"origin": "Earth", "target": "Mars", "departure": DEPART, "arrival": ARRIVE},
+        {"departure": S, "arrival": S},
+        "planets",
+        dates=frozenset({"departure", "arrival"}),
+    ),
+    "transfer_pair(orbits)": Case(
+        lambda parking, arrival_orbit: _planets(dk.transfer_pair)(
+            origin="Earth",
+            target="Mars",
+            departure=DEPART,
+            arrival=ARRIVE,
+            parking=parking,
+            arrival_orbit=arrival_orbit,
+        ),
+        {"parking": EARTH_PARKING, "arrival_orbit": MARS_ORBIT},
+        {"parking": M, "arrival_orbit": M},
+        "planets",
+        arrays=False,  # one orbit about each body
+    ),
+    "transfer_map": Case(
+        _planets(dk.transfer_map),
+        {
+            "origin": "Earth",
+            "target": "Mars",
+            "departures": np.array([DEPART, DEPART + 10 * DAY]),
+            "arrivals": np.array([ARRIVE, ARRIVE + 10 * DAY, ARRIVE + 20 * DAY]),
+        },
+        {"departures": S, "arrivals": S},
+        "planets",
+        grid=True,
+    ),
+    "add_transfer": Case(_add_transfer, {"margin": 0.05}, {"margin": ""}, "planets", arrays=False),
 }
 
 #: Public names that are not numeric functions of values, and why.
@@ -326,6 +426,8 @@ NOT_NUMERIC = {
     "MarginPolicy": "tables of fractions by name (tests/test_vehicles.py, the margins doctests)",
     "disperse": "takes a budget and spreads, each checked by its own Case (tests/test_dispersions.py)",
     "report": "writes documents (tests/test_reports.py)",
+    "LambertSolution": "a result type",
+    "TransferPair": "a result type",
 }
 
 
@@ -333,6 +435,48 @@ def test_every_public_name_is_covered():
     covered = {name.partition(".")[0].partition("(")[0] for name in CASES}
     missing = sorted(set(dk._NAMES) - covered - set(NOT_NUMERIC))
     assert not missing, f"add a Case for each new public function to tests/test_boundary.py: {missing}"
+
+
+#: The planets' parameters that are names, choices or counts, not numbers: each refusal names it.
+CHOICES = [
+    ("epoch", {"scale": "gps"}, "scale"),
+    ("epoch", {"scale": 3}, "scale"),
+    ("epoch", {"value": "2028-02-30"}, "value"),  # no such day
+    ("epoch", {"value": "2028-11-15T24:00:01"}, "value"),
+    ("planet_state", {"body": 499}, "body"),  # a NAIF code is not a name here
+    ("planet_state", {"center": None}, "center"),
+    ("planet_state", {"frame": "galactic"}, "frame"),
+    ("planet_state", {"t": "2028-13-01"}, "t"),
+    ("planet_state", {"t": "1850-01-01"}, "t"),  # before DE421
+    ("lambert", {"revolutions": 1.0}, "revolutions"),
+    ("lambert", {"revolutions": True}, "revolutions"),
+    ("lambert", {"prograde": 1}, "prograde"),
+    ("lambert", {"r1": [7e6, 0.0]}, "r1"),
+    ("lambert", {"r2": [0.0, 0.0, 0.0]}, "r2"),
+    ("lambert_time_of_flight", {"revolutions": "1"}, "revolutions"),
+    ("lambert_time_of_flight", {"x": -1.0}, "x"),
+    ("lambert_time_of_flight", {"lam": 1.5}, "lam"),
+    ("transfer_pair", {"origin": 3}, "origin"),
+    ("transfer_pair", {"target": "Sun"}, "target"),
+    ("transfer_pair", {"departure": "next spring"}, "departure"),
+    ("transfer_pair", {"arrival": "2060-01-01"}, "arrival"),  # after DE421
+    ("transfer_map", {"origin": "Pluto"}, "origin"),
+    ("transfer_map", {"departures": ["2028-13-01"]}, "departures"),
+    ("transfer_map", {"arrivals": ["2060-01-01"]}, "arrivals"),
+]
+
+
+@pytest.mark.parametrize("case_name, changes, param", CHOICES, ids=lambda v: str(v))
+def test_names_choices_and_counts_are_refused_naming_the_parameter(case_name, changes, param):
+    with pytest.raises((TypeError, dk.DomainError)) as info:
+        _call(CASES[case_name], **changes)
+    assert f"`{param}`" in str(info.value), str(info.value)
+
+
+@pytest.mark.parametrize("branch", [2, True, 1.0, "1"])
+def test_transfer_pair_branch_is_zero_or_one(branch):
+    with pytest.raises(dk.DomainError, match="`branch`"):
+        _call(CASES["transfer_pair"], revolutions=1, branch=branch)
 
 
 # ---------------------------------------------------------------------- hostile values
@@ -361,6 +505,8 @@ HOSTILE: dict[str, Callable[[Any], Any]] = {
 }
 #: Kinds refused outright: a TypeError or DomainError naming the parameter.
 REFUSED = sorted(HOSTILE)
+#: Kinds that are dates: read as UTC dates where a parameter takes dates (Case.dates), refused elsewhere.
+DATE_KINDS = {"datetime", "date", "datetime64"}
 #: Parameters where None means "not given".
 OPTIONAL = {
     ("escape_burn", "ra"),
@@ -369,6 +515,9 @@ OPTIONAL = {
     ("Budget.add", "margin"),  # None: the margin policy's, by the line's category
     ("Budget", "ve"),  # None: the systems are declared with Budget.system
     ("PropulsionSystem", "propellant"),  # None: the tank holds what the start mass leaves
+    ("transfer_pair(orbits)", "parking"),  # None: no escape burn
+    ("transfer_pair(orbits)", "arrival_orbit"),  # None: no capture burn
+    ("add_transfer", "margin"),  # None: the margin policy's, as Budget.add
 }
 EXTREMES = {"1e300": 1e300, "1e-300": 1e-300, "-1e300": -1e300}
 
@@ -460,6 +609,10 @@ def test_hostile_input_is_refused_naming_the_parameter(case_name, param, kind):
     case = CASES[case_name]
     if kind == "None" and (case_name, param) in OPTIONAL:
         pytest.skip("None is the default of this parameter: not given")
+    if kind in DATE_KINDS and param in case.dates:  # a date here is a value: read as UTC, as epoch reads it
+        date = HOSTILE[kind](case.good[param])
+        _same_result(_call(case, **{param: date}), _call(case, **{param: dk.epoch(date)}))
+        return
     with pytest.raises((TypeError, dk.DomainError)) as info:
         _call(case, **{param: HOSTILE[kind](case.good[param])})
     assert _names_the_parameter(info.value, param), str(info.value)
@@ -498,6 +651,8 @@ def _same_result(a: Any, b: Any, rtol: float = 1e-13) -> None:
             _same_result(a[name].values, b[name].values, rtol)
     elif hasattr(a, "to_numpy"):  # a pandas DataFrame
         _same_result(a.to_numpy(dtype=float), b.to_numpy(dtype=float), rtol)
+    elif isinstance(a, str) or np.asarray(a).dtype.kind in "Mb":  # names, dates, flags: exactly
+        np.testing.assert_array_equal(a, b)
     else:
         assert_same_to_rounding(a, b, rtol)
 

@@ -6,9 +6,9 @@ import math
 
 import numpy as np
 import pytest
+from helpers import apsis_event, propagate, specific_energy
 from hypothesis import assume, given
 from hypothesis import strategies as st
-from scipy.integrate import solve_ivp
 
 from deltakit import Conic, DomainError, burn, burn_prograde, energy_gain
 from deltakit.constants import EARTH, MARS
@@ -41,11 +41,6 @@ def _reachable(conic, nu):
 
 
 # ---------------------------------------------------------------- independent route: 3-D integration
-def _two_body(t, y, mu):
-    r3 = np.linalg.norm(y[:3]) ** 3
-    return [y[3], y[4], y[5], -mu * y[0] / r3, -mu * y[1] / r3, -mu * y[2] / r3]
-
-
 @pytest.mark.parametrize(
     "rp, ra, argp, inc, raan, nu, radial, transverse, normal",
     [
@@ -71,19 +66,7 @@ def test_out_of_plane_burn_against_integrated_trajectory(
     after = out.after
     assert float(after.e) < 1.0
 
-    def radial_speed(t, y, mu):  # r . v = 0 at an apsis
-        return y[0] * y[3] + y[1] * y[4] + y[2] * y[5]
-
-    sol = solve_ivp(
-        _two_body,
-        (0.0, 1.02 * float(after.period)),
-        [*r0, *v0],
-        method="DOP853",
-        rtol=1e-12,
-        atol=1e-6,
-        args=(MU,),
-        events=radial_speed,
-    )
+    sol = propagate(r0, v0, MU, 1.02 * float(after.period), rtol=1e-12, atol=1e-6, events=apsis_event())
     apsides = np.linalg.norm(sol.y_events[0][:, :3], axis=1)
     assert apsides.min() == pytest.approx(float(after.rp), rel=1e-9)
     assert apsides.max() == pytest.approx(float(after.ra), rel=1e-9)
@@ -94,8 +77,7 @@ def test_out_of_plane_burn_against_integrated_trajectory(
     if math.hypot(h[0], h[1]) > 1e-6 * np.linalg.norm(h):
         node = math.atan2(h[0], -h[1])
         assert math.remainder(float(after.raan) - node, 2 * math.pi) == pytest.approx(0.0, abs=1e-9)
-    energy = 0.5 * end[3:] @ end[3:] - MU / np.linalg.norm(end[:3])
-    assert float(after.energy) == pytest.approx(energy, rel=1e-9)
+    assert float(after.energy) == pytest.approx(specific_energy(end[:3], end[3:], MU), rel=1e-9)
     # the energy change is v . dv + |dv|^2 / 2, with v the velocity before
     _, v_before = before.state(nu, "inertial")
     assert float(out.energy_change) == pytest.approx(

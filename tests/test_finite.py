@@ -4,7 +4,8 @@ The reference in this file never uses deltakit's Kepler solver or integrator:
 it starts from the state at the burn centre (Conic.state), coasts backwards
 half the burn time with solve_ivp, burns forward with solve_ivp, and for split
 burns finds the next periapsis with a solve_ivp event (r . v crossing zero
-upwards). The equations are the same planar two-body + thrust equations.
+upwards). The coasts are tests/helpers.py's two-body propagation; the burns add
+the thrust to its two-body rates.
 """
 
 from __future__ import annotations
@@ -12,6 +13,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 import pytest
+from helpers import apsis_event, propagate, specific_energy, two_body_rates
 from scipy.integrate import solve_ivp
 
 from deltakit import ArcOutcome, Conic, DomainError, loss_table, thrust_arc
@@ -22,14 +24,13 @@ RTOL = 1e-12  # the tolerances the brief asks of the reference
 
 def _rates(mu, thrust, ve, m_start, direction):
     def rates(t, s):
-        x, y, vx, vy = s
-        r3 = np.hypot(x, y) ** 3
+        vx, vy, gx, gy = two_body_rates(t, s, mu)
         if direction is None:
             ux, uy = np.array([vx, vy]) / np.hypot(vx, vy)
         else:
             ux, uy = direction
-        a = thrust / (m_start - thrust / ve * t) if thrust else 0.0
-        return [vx, vy, -mu * x / r3 + a * ux, -mu * y / r3 + a * uy]
+        a = thrust / (m_start - thrust / ve * t)
+        return [vx, vy, gx + a * ux, gy + a * uy]
 
     return rates
 
@@ -42,35 +43,18 @@ def _atol(state):
 def _coast(mu, state, dt):
     if dt == 0.0:
         return np.asarray(state, float)
-    sol = solve_ivp(
-        _rates(mu, 0.0, 1.0, 1.0, (0.0, 0.0)), (0.0, dt), state, method="DOP853", rtol=RTOL, atol=_atol(state)
-    )
-    return sol.y[:, -1]
+    return propagate(state[:2], state[2:], mu, dt, rtol=RTOL, atol=_atol(state)).y[:, -1]
 
 
 def _next_periapsis(mu, state):
     """Coast to the next periapsis with an event; None if the orbit is not bound."""
-    r, v = np.hypot(*state[:2]), np.hypot(*state[2:])
-    energy = 0.5 * v * v - mu / r
+    energy = specific_energy(state[:2], state[2:], mu)
     if energy >= 0.0:
         return None
     period = 2 * np.pi * np.sqrt((-mu / (2 * energy)) ** 3 / mu)
-
-    def periapsis(t, s):
-        return s[0] * s[2] + s[1] * s[3]
-
-    periapsis.direction = 1.0
-    periapsis.terminal = True
-    # the burn just ended after periapsis (r . v > 0): skip the start
-    sol = solve_ivp(
-        _rates(mu, 0.0, 1.0, 1.0, (0.0, 0.0)),
-        (0.0, 1.5 * period),
-        state,
-        method="DOP853",
-        rtol=RTOL,
-        atol=_atol(state),
-        events=periapsis,
-    )
+    # the burn just ended after periapsis (r . v > 0): the rising crossing is the next one
+    periapsis = apsis_event(direction=1.0, terminal=True)
+    sol = propagate(state[:2], state[2:], mu, 1.5 * period, rtol=RTOL, atol=_atol(state), events=periapsis)
     times = sol.t_events[0]
     return sol.y_events[0][0] if times.size else None
 
@@ -92,7 +76,7 @@ def _scipy_arc(conic, thrust, ve, m0, dv, nu_center=0.0, steering="prograde", sp
                 return np.nan, np.full(4, np.nan)
         start = _coast(mu, centre, -0.5 * burn_time)
         if start_energy is None:
-            start_energy = 0.5 * np.dot(start[2:], start[2:]) - mu / np.hypot(*start[:2])
+            start_energy = specific_energy(start[:2], start[2:], mu)
         direction = None if steering == "prograde" else centre[2:] / np.hypot(*centre[2:])
         sol = solve_ivp(
             _rates(mu, thrust, ve, m0 - k * each, direction),
@@ -103,8 +87,7 @@ def _scipy_arc(conic, thrust, ve, m0, dv, nu_center=0.0, steering="prograde", sp
             atol=_atol(start),
         )
         state = sol.y[:, -1]
-    energy = 0.5 * np.dot(state[2:], state[2:]) - mu / np.hypot(*state[:2])
-    return energy - start_energy, state
+    return specific_energy(state[:2], state[2:], mu) - start_energy, state
 
 
 # name, conic, thrust N, ve m/s, m0 kg, dv m/s, nu_center rad, steering

@@ -1,9 +1,9 @@
 """Lambert's problem, checked against a textbook example and scipy's integration.
 
 Independent route: every solution's departure state is propagated with
-scipy.integrate.solve_ivp (DOP853, two-body equations written here) for the
-time of flight; the end point must land on r2 and the end velocity on v2.
-The equations are integrated in units of |r1| and the circular period, so
+scipy's DOP853 (tests/helpers.py's two-body equations) for the time of
+flight; the end point must land on r2 and the end velocity on v2. The
+absolute tolerances are 1e-16 of |r1| and of the circular speed there, so
 the integrator's tolerances mean the same for every geometry.
 """
 
@@ -11,9 +11,9 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from helpers import propagate
 from hypothesis import assume, given
 from hypothesis import strategies as st
-from scipy.integrate import solve_ivp
 
 from deltakit import DomainError, lambert
 from deltakit.lambert_solver import PLANE_TOLERANCE, lambert_time_of_flight
@@ -23,20 +23,12 @@ MU_SUN = 1.32712440041279e20
 
 
 def _propagate(r1, v1, tof, mu):
-    """End state of a two-body arc from (r1, v1) after tof, by solve_ivp in scaled units."""
+    """End state of a two-body arc from (r1, v1) after tof, tolerances on the scale of r1."""
     length = np.linalg.norm(r1)
-    time = np.sqrt(length**3 / mu)
-    speed = length / time
-
-    def rhs(_, y):
-        r = y[:3]
-        return np.concatenate([y[3:], -r / np.dot(r, r) ** 1.5])
-
-    y0 = np.concatenate([np.asarray(r1) / length, np.asarray(v1) / speed])
+    speed = np.sqrt(mu / length)
     # rtol near DOP853's floor (100 eps): slow arrivals on long arcs magnify looser integration
-    out = solve_ivp(rhs, (0.0, tof / time), y0, method="DOP853", rtol=2.5e-14, atol=1e-16)
-    assert out.success
-    return out.y[:3, -1] * length, out.y[3:, -1] * speed
+    out = propagate(r1, v1, mu, tof, rtol=2.5e-14, atol=1e-16 * np.repeat([length, speed], 3))
+    return out.y[:3, -1], out.y[3:, -1]
 
 
 def _lands(r1, r2, tof, mu, v1, v2, tolerance=1e-9):
@@ -200,6 +192,65 @@ def test_time_of_flight_function_is_inverted_by_the_solver():
     assert np.allclose(_solve_x(t, lam, 0), x, rtol=1e-10, atol=1e-12)
 
 
+def test_very_long_flights_find_x_near_minus_one():
+    # T grows as (1 + x)**(-3/2) towards x = -1: the iteration must close on 1 + x, not on a fixed
+    # step in x (a fixed step of 1e-5 once stopped T = 1e9 at 37 % off). x is given exactly and T
+    # computed from it, so the reference is exact; near -1 x is known to a unit in the last place.
+    from deltakit.lambert_solver import _solve_x
+
+    x = -1.0 + np.array([1e-3, 1e-5, 1e-7, 1e-9, 1e-11])
+    lam = np.array([0.3, -0.6, 0.8, 0.0, -0.2])
+    t = lambert_time_of_flight(x, lam)
+    assert t.max() > 1e15
+    assert np.abs(_solve_x(t, lam, 0) - x).max() <= 8 * np.finfo(float).eps
+
+
+CURTIS_R1, CURTIS_R2 = np.array([5000e3, 10000e3, 2100e3]), np.array([-14600e3, 2500e3, 7000e3])
+
+
+@pytest.mark.parametrize(
+    "tof, mu", [(1e-6, MU_CURTIS), (1e-100, MU_CURTIS), (1e-300, MU_CURTIS), (3600.0, 1e-300)]
+)
+def test_flights_too_short_for_gravity_follow_the_chord(tof, mu):
+    # Gravity bends the path by about g tof^2 / chord (common practice: the first term of the
+    # expansion in tof), below 1e-18 here: the velocity is the chord over the time, at both ends.
+    out = lambert(CURTIS_R1, CURTIS_R2, tof, mu)
+    chord_speed = (CURTIS_R2 - CURTIS_R1) / tof
+    assert np.allclose(out.v1, chord_speed, rtol=1e-14, atol=0.0)
+    assert np.allclose(out.v2, chord_speed, rtol=1e-14, atol=0.0)
+
+
+@pytest.mark.parametrize("k, m, t", [(900, 800, 950), (-900, -800, -950)])
+def test_extreme_scales_give_the_scaled_answer(k, m, t):
+    # Lambert's problem is unchanged by r -> 2^k r, mu -> 2^m mu, tof -> 2^((3k - m)/2) tof, and the
+    # velocities scale by 2^((m - k)/2): exact powers of two, with lengths near 1e+-278.
+    assert 3 * k - m == 2 * t
+    nominal = lambert(CURTIS_R1, CURTIS_R2, 3600.0, MU_CURTIS)
+    scaled = lambert(
+        np.ldexp(CURTIS_R1, k), np.ldexp(CURTIS_R2, k), np.ldexp(3600.0, t), np.ldexp(MU_CURTIS, m)
+    )
+    for got, expected in ((scaled.v1, nominal.v1), (scaled.v2, nominal.v2)):
+        assert np.allclose(got, np.ldexp(expected, (m - k) // 2), rtol=1e-13, atol=0.0)
+
+
+@pytest.mark.parametrize("turns", [0, 1])
+def test_many_cases_solved_in_blocks_equal_one_solve(turns):
+    # Above two blocks of cases the solver works block by block (its temporaries stay small);
+    # the answers must be those of one solve over every case, to the bit, grids of dates too.
+    from deltakit.lambert_solver import _CASES_PER_BLOCK, _velocities, _velocities_of_block
+
+    rng = np.random.default_rng(5)
+    n = 2 * _CASES_PER_BLOCK + 1234
+    r1 = rng.uniform(-1.5e11, 1.5e11, (n, 3))
+    r2 = rng.uniform(-2.5e11, 2.5e11, (n, 3))
+    tof = rng.uniform(100.0, 900.0, n) * 86400.0 * (1 + 2 * turns)
+    for args in ((r1, r2, tof), (r1[:400, None], r2[None, :350], tof[:400, None] + tof[None, :350])):
+        blocked = _velocities(*args, MU_SUN, turns, True)
+        whole = _velocities_of_block(*args, MU_SUN, turns, True)
+        for a, b in zip(blocked, whole):
+            np.testing.assert_array_equal(a, b)
+
+
 def test_time_of_flight_forms_agree_where_they_meet():
     # Lancaster, Lagrange and Battin forms must join smoothly at |x - 1| = 0.2 and 0.01.
     from deltakit.lambert_solver import _tof_battin, _tof_lagrange, _tof_lancaster
@@ -219,7 +270,7 @@ def test_time_of_flight_forms_agree_where_they_meet():
 @pytest.mark.parametrize(
     "kwargs, match",
     [
-        ({"r1": [0.0, 0.0, 0.0]}, "`|r1|` must be > 0"),
+        ({"r1": [0.0, 0.0, 0.0]}, "`r1` must be a nonzero vector"),
         ({"r2": [1.0, 2.0]}, "`r2` must hold 3-vectors"),
         ({"tof": -5.0}, "`tof` must be > 0 s"),
         ({"mu": 0.0}, "`mu` must be > 0"),
