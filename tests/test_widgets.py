@@ -663,6 +663,7 @@ def test_sheet_refuses_unknown_derivation():
         ("TransferTrade", {"final_altitude": -3e3}, "final orbit altitude -3 km is below the surface"),
         ("EscapeFlyby", {"vinf": -100.0}, "excess speed must be >= 0 km/s"),
         ("BudgetBuilder", {"m0": -1.0}, "starting mass must be > 0 kg"),
+        ("DispersionView", {"samples": 2500.5}, "number of samples must be a whole number"),
     ],
 )
 def test_constructor_checks_like_set(panel_name, bad, words):
@@ -683,6 +684,7 @@ def test_constructor_value_beyond_a_slider_widens_it(panel_name):
         "PropellantTrade": ("speed", 25_000.0),
         "TransferTrade": ("plane_change", 0.0),
         "EscapeFlyby": ("flyby_dv", 4000.0),
+        "DispersionView": ("isp_spread", 12.0),
     }[panel_name]
     panel = cls(**{name: far})
     assert panel.values[name] == pytest.approx(far) and panel.error == ""

@@ -26,6 +26,7 @@ _PANELS = {
     "TransferTrade": "transfer",
     "EscapeFlyby": "escape",
     "BudgetBuilder": "budget_builder",
+    "DispersionView": "dispersion_view",
     "FormulaSheet": "formula_sheet",
 }
 
@@ -38,6 +39,7 @@ __all__ = [
     "BudgetBuilder",
     "BurnPointExplorer",
     "Computed",
+    "DispersionView",
     "EscapeFlyby",
     "FormulaSheet",
     "InputError",
