@@ -246,9 +246,14 @@ def build(values: Mapping[str, Any]) -> Budget:
     systems = systems_checked(values.get("systems", []))
     stages = stages_checked(values.get("stages", []))
     staged = bool(systems or stages)
+    first = "declare the propulsion systems and their loads first (vehicle editor)"
+    if m0 == 0.0 and not staged:
+        raise InputError(f"starting mass 0 kg stands for the sum of the masses: {first}.", "m0")
     if not (m0 > 0.0 or (staged and m0 == 0.0)):
         rule = ">= 0 kg (0: the sum of the masses)" if staged else "> 0 kg"
         raise InputError(f"starting mass must be {rule} (got {m0:g} kg).", "m0")
+    if isp == 0.0 and not staged:
+        raise InputError(f"specific impulse 0 s stands for no engine of the starting mass: {first}.", "isp")
     if not (isp > 0.0 or (staged and isp == 0.0)):
         rule = ">= 0 s (0: no engine of the starting mass)" if staged else "> 0 s"
         raise InputError(f"specific impulse must be {rule} (got {isp:g} s).", "isp")
