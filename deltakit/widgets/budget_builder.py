@@ -388,6 +388,11 @@ class BudgetBuilder(Panel):
             },
         }
         notes = []
+        if budget.policy is not None:
+            notes.append(
+                f"Margin policy: {budget.policy.name} (lines with a category and no margin of their own "
+                "take its margin; maturities add its growth allowance)."
+            )
         if budget.first_infeasible is not None:
             notes.append(
                 f"Line {budget.first_infeasible + 1} ({budget.lines[budget.first_infeasible].label}) "

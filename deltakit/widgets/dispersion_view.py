@@ -76,7 +76,7 @@ def _as_budget(value: Any) -> Budget:
     raise DomainError(f"`budget` must be a deltakit.Budget or its to_dict() data, not {type(value).__name__}")
 
 
-def _short(label: str, room: int = 34) -> str:
+def _short(label: str, room: int = 30) -> str:
     """A cause's name cut to ``room`` characters (the ranking's tick labels must stay in its cell)."""
     return label if len(label) <= room else label[: room - 1].rstrip() + "\u2026"
 
@@ -375,9 +375,9 @@ class DispersionView(Panel):
 
     # ------------------------------------------------------------------ figure
     def _build_figure(self) -> None:
-        fig = self._figure(10.4, 4.3)
-        self.axes = fig.add_axes((0.065, 0.27, 0.37, 0.62))
-        self.ranking_axes = fig.add_axes((0.735, 0.27, 0.25, 0.62))
+        fig = self._figure(8.4, 4.3)  # as wide as a notebook's output area with the file browser open
+        self.axes = fig.add_axes((0.08, 0.27, 0.33, 0.62))
+        self.ranking_axes = fig.add_axes((0.72, 0.27, 0.265, 0.62))
 
     def _first_draw(self, ds: Any) -> None:
         """Make the artists once (the plotting helper's histogram and style), then only move them."""
@@ -385,9 +385,19 @@ class DispersionView(Panel):
         self._left = left
         self.twin = left.twin
         self._title = self.axes.title
-        self.axes.set_xlabel("propellant left in the tank shown (kg; below 0: short by that much)")
+        self.axes.set_xlabel("propellant left in the tank shown (kg; < 0: short)")
+        self._title.set_fontsize("small")
+        # the helper's bars become two step outlines, the samples that close and those short: two
+        # artists for a slider step to move and redraw instead of one per bin
+        edges = np.linspace(*self.axes.get_xlim(), BINS + 1)
         for patch in left.histogram:
-            patch.set_label("_nolegend_")
+            patch.remove()
+        self._close_bins = self.axes.stairs(
+            np.zeros(BINS), edges, fill=True, color=COLOURS["vehicle"], alpha=0.85, label="_nolegend_"
+        )
+        self._short_bins = self.axes.stairs(
+            np.zeros(BINS), edges, fill=True, color=COLOURS["burn"], alpha=0.85, label="_nolegend_"
+        )
         left.dry.set_label("tank dry (0 kg)")
         from matplotlib.patches import Patch
 
@@ -414,7 +424,7 @@ class DispersionView(Panel):
         # never a redraw of the plot
         self._names = [
             self.ranking_axes.text(
-                -0.02,
+                -0.035,
                 yy,
                 "",
                 transform=self.ranking_axes.get_yaxis_transform(),
@@ -432,7 +442,7 @@ class DispersionView(Panel):
         self.ranking_axes.set_ylim(-0.6, TOP - 0.4)
         style_axes(
             self.ranking_axes,
-            xlabel="share of the spread of propellant left (%)",
+            xlabel="share of the spread (%)",
             title="what drives the spread",
         )
         self.ranking_axes.grid(False, axis="y")
@@ -446,7 +456,8 @@ class DispersionView(Panel):
         self._ticks: list[str] = [""] * TOP
         self._order: list[str] = []
         self.view.animate(
-            *left.histogram,
+            self._close_bins,
+            self._short_bins,
             left.cumulative,
             *left.percentiles,
             *left.labels,
@@ -484,23 +495,22 @@ class DispersionView(Panel):
         x0, x1 = ax.get_xlim()
         edges = np.linspace(x0, x1, BINS + 1)
         counts, _ = np.histogram(np.clip(left, x0, x1), bins=edges)
-        for patch, a, b, count in zip(art.histogram, edges[:-1], edges[1:], counts):
-            if moved or patch.get_x() != a:
-                patch.set_x(a)
-                patch.set_width(b - a)
-            patch.set_height(float(count))
-            patch.set_facecolor(COLOURS["burn"] if b <= 0.0 else COLOURS["vehicle"])
+        short = edges[1:] <= 0.0  # bins wholly below zero: samples short
+        counts = counts.astype(float)
+        self._close_bins.set_data(np.where(short, 0.0, counts), edges)
+        self._short_bins.set_data(np.where(short, counts, 0.0), edges)
         moved |= follow_limits(ax, 0.0, 1.35 * float(counts.max()))
-        ordered = np.sort(left)
-        art.cumulative.set_data(ordered, 100.0 * np.arange(1, ordered.size + 1) / ordered.size)
+        levels = np.linspace(0.0, 100.0, 401)  # the cumulative curve at 401 levels: smooth, and cheap to draw
+        art.cumulative.set_data(np.percentile(left, levels), levels)
         top = ax.get_ylim()[1]
         for row, (line, label, level, value) in enumerate(zip(art.percentiles, art.labels, LEVELS, marks)):
             line.set_xdata([value, value])
             label.set_position((value, top * (0.99 - 0.075 * (row % 4))))
             label.set_text(f"P{level:g}: {value:,.1f}")
         self._title.set_text(
-            f"{escape_mathtext(one_line(results['tank']))}: holds in {100.0 * results['tank_holds']:.1f} % "
-            f"(budget closes in {100.0 * results['probability_closes']:.1f} %)"
+            f"{escape_mathtext(_short(one_line(results['tank']), 26))}: holds in "
+            f"{100.0 * results['tank_holds']:.1f} %\nthe whole budget closes in "
+            f"{100.0 * results['probability_closes']:.1f} %"
         )
         if moved:
             self.view.invalidate(ax, self.twin)
