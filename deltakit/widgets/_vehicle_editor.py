@@ -140,9 +140,9 @@ class VehicleEditor:
         self._keep(self.stages, stages)
         self.system_form["stage"].options = [ON_VEHICLE, *((name, name) for name in budget.stages)]
         maturity = self.stage_form["maturity"]
-        known = [v for _, v in self.panel.controls["dry_maturity"].options]
-        if [v for _, v in maturity.options] != known:
-            maturity.options = list(self.panel.controls["dry_maturity"].options)
+        known = [("not given", None), *((m, m) for m in self.panel.controls["dry_maturity"].options[1:])]
+        if list(maturity.options) != known:
+            maturity.options = known
 
     @staticmethod
     def _keep(select: widgets.Select, options: list[tuple[str, int]]) -> None:

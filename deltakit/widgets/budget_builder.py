@@ -42,7 +42,7 @@ from ..plotting.waterfall import update_budget_waterfall
 from ..transfers import hohmann
 from ..twobody import circular_speed
 from ..units import deg, percent
-from ._base import Computed, Panel, _Plan, json_ready, number, number_width
+from ._base import Computed, Panel, _Plan, json_ready, number, number_width, toggle
 from ._budget_html import tables_html
 from ._budget_recipes import (
     build,
@@ -60,6 +60,8 @@ from ._vehicle_editor import LineKindFields, VehicleEditor
 __all__ = ["BudgetBuilder", "default_lines", "recipes"]
 
 _recipe = line_recipe  # the name earlier code imported
+#: The dry-mass maturity choice that stands for none given.
+NOT_GIVEN = "not given"
 #: Margin policies offered by name (a budget given to the panel adds its own).
 POLICIES: dict[str, MarginPolicy | None] = {"none": None, STUDY_POLICY.name: STUDY_POLICY}
 
@@ -209,21 +211,14 @@ class BudgetBuilder(Panel):
         self._control("dry_mass", number("dry mass (kg, 0: not given)", 0.0), 1.0, "kg")
         self._control(
             "dry_maturity",
-            widgets.Dropdown(
-                options=self._maturities(None),
-                value=None,
-                description="dry mass maturity",
-                layout=widgets.Layout(width="300px"),
+            toggle(
+                "dry mass maturity", [NOT_GIVEN, *self._maturities(None)], NOT_GIVEN, button_width="110px"
             ),
         )
+        # a few named policies, shown whole: radio buttons (a custom policy from a budget joins them)
         self._control(
             "policy",
-            widgets.Dropdown(
-                options=list(self._policies),
-                value="none",
-                description="margin policy",
-                layout=widgets.Layout(width="340px"),
-            ),
+            widgets.RadioButtons(options=list(self._policies), value="none", description="margin policy"),
         )
         self._control(
             "lines",
@@ -268,11 +263,13 @@ class BudgetBuilder(Panel):
         self._select(0 if self.budget.lines else None)
 
     # ------------------------------------------------------------------ values
-    def _maturities(self, policy: MarginPolicy | None) -> list[tuple[str, str | None]]:
+    @staticmethod
+    def _maturities(policy: MarginPolicy | None) -> list[str]:
+        """Design maturities offered: the study policy's and those of the policy in use."""
         known = dict(STUDY_POLICY.mass_growth)
         if policy is not None:
             known.update(policy.mass_growth)
-        return [("not given", None), *((key, key) for key in known)]
+        return list(known)
 
     def _si(self, name: str) -> Any:
         if name == "lines":
@@ -284,6 +281,9 @@ class BudgetBuilder(Panel):
         if name == "policy":
             policy = self._policies[self.controls["policy"].value]
             return None if policy is None else json_ready(policy.to_dict())
+        if name == "dry_maturity":
+            value = self.controls["dry_maturity"].value
+            return None if value == NOT_GIVEN else value
         return super()._si(name)
 
     def _policy_named(self, value: Any) -> tuple[str, MarginPolicy | None]:
@@ -327,22 +327,27 @@ class BudgetBuilder(Panel):
                     widget.options = list(self._policies)
                 widget.value = key
                 maturity = self.controls["dry_maturity"]
-                options = self._maturities(policy)
+                options = [NOT_GIVEN, *self._maturities(policy)]
+                for extra in maturity.options:
+                    if extra not in options:
+                        options.append(extra)
                 if list(maturity.options) != options:
                     current = maturity.value
                     maturity.options = options
-                    maturity.value = current if current in [v for _, v in options] else None
+                    maturity.value = current
 
             return _Plan(None if policy is None else json_ready(policy.to_dict()), choose)
         if name == "dry_maturity":
             if value is not None and not isinstance(value, str):
                 raise DomainError(f"`dry_maturity` must be text or None, not {type(value).__name__}")
 
+            shown = NOT_GIVEN if value is None else value
+
             def pick() -> None:
                 widget = self.controls["dry_maturity"]
-                if value not in [v for _, v in widget.options]:
-                    widget.options = [*widget.options, (value, value)]
-                widget.value = value
+                if shown not in widget.options:
+                    widget.options = [*widget.options, shown]
+                widget.value = shown
 
             return _Plan(value, pick)
         return super()._plan(name, value)
