@@ -43,7 +43,7 @@ def _add_system(builder, name, isp, load, residual_percent=0.0, stage=None):
     _type(form["isp"], isp)
     _type(form["propellant"], load)
     _type(form["residual"], residual_percent)
-    _type(form["stage"], stage)
+    _type(form["stage"], stage or "")  # "" is the drop-down's "none"
     builder.vehicle.buttons["add_system"].click()
     assert builder.error == "", builder.error
 
@@ -53,8 +53,8 @@ def _add_burn(builder, label, dv, category, system=None):
     _type(builder.line_fields.kind, "burn")
     _type(builder.form["formula"], "number")
     _type(builder._param_widgets["number"]["dv"], dv)
-    _type(builder.line_fields.system, system)
-    _type(builder.line_fields.category, category)
+    _type(builder.line_fields.system, system or "")
+    _type(builder.line_fields.category, category or "")
     _type(builder.line_fields.from_policy, True)
     builder.buttons["add"].click()
     assert builder.error == "", builder.error

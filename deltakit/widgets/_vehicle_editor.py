@@ -29,8 +29,10 @@ __all__ = ["LineKindFields", "VehicleEditor"]
 _STYLE = {"description_width": "initial"}
 _WRAP = {"flex_flow": "row wrap"}
 #: The drop-down entry of "no stage" (a system on the vehicle that stays) and of "the main engine".
-ON_VEHICLE = ("on the vehicle that stays", None)
-MAIN_ENGINE = ("main system", None)
+#: (A drop-down whose value is None shows blank in the browser: "" stands for none.)
+ON_VEHICLE = ("on the vehicle that stays", "")
+MAIN_ENGINE = ("main system", "")
+NOT_GIVEN = ("not given", "")
 
 
 def _box(description: str, value: float = 0.0) -> widgets.FloatText:
@@ -76,7 +78,7 @@ class VehicleEditor:
             "drop": _pick(
                 "dropped", [("at a stage-drop line", "line"), ("when its tanks are spent", "spent")]
             ),
-            "maturity": _pick("maturity", [("not given", None)]),
+            "maturity": _pick("maturity", [NOT_GIVEN]),
         }
         self.buttons = {
             "add_system": widgets.Button(description="Add system", icon="plus"),
@@ -140,7 +142,7 @@ class VehicleEditor:
         self._keep(self.stages, stages)
         self.system_form["stage"].options = [ON_VEHICLE, *((name, name) for name in budget.stages)]
         maturity = self.stage_form["maturity"]
-        known = [("not given", None), *((m, m) for m in self.panel.controls["dry_maturity"].options[1:])]
+        known = [NOT_GIVEN, *((m, m) for m in self.panel.controls["dry_maturity"].options[1:])]
         if list(maturity.options) != known:
             maturity.options = known
 
@@ -160,7 +162,7 @@ class VehicleEditor:
         self.system_form["fills"].value = s["propellant"] is None
         self.system_form["propellant"].value = 0.0 if s["propellant"] is None else s["propellant"]
         self.system_form["residual"].value = round(s["residual"] / percent, 9)
-        self.system_form["stage"].value = s["stage"]
+        self.system_form["stage"].value = s["stage"] or ""
 
     def select_stage(self, index: int | None) -> None:
         budget = self.panel.budget
@@ -170,7 +172,7 @@ class VehicleEditor:
         self.stage_form["name"].value = s["name"]
         self.stage_form["dry_mass"].value = s["dry_mass"]
         self.stage_form["drop"].value = s["drop"]
-        self.stage_form["maturity"].value = s["maturity"]
+        self.stage_form["maturity"].value = s["maturity"] or ""
 
     # ------------------------------------------------------------------ edits
     def _system(self) -> dict[str, Any]:
@@ -188,7 +190,7 @@ class VehicleEditor:
             "ve": isp * G0,
             "propellant": None if form["fills"].value else float(form["propellant"].value),
             "residual": residual * percent,
-            "stage": form["stage"].value,
+            "stage": form["stage"].value or None,
         }
 
     def _stage(self) -> dict[str, Any]:
@@ -197,7 +199,7 @@ class VehicleEditor:
             "name": form["name"].value,
             "dry_mass": float(form["dry_mass"].value),
             "drop": form["drop"].value,
-            "maturity": form["maturity"].value,
+            "maturity": form["maturity"].value or None,
         }
 
     def _edit(self, action: str) -> None:
@@ -234,10 +236,10 @@ class LineKindFields:
     def __init__(self) -> None:
         self.kind = _pick("kind", [(words, key) for key, words in KINDS.items()], width="200px")
         self.system = _pick("flown by", [MAIN_ENGINE])
-        self.category = _pick("margin category", [("none", None)], width="300px")
+        self.category = _pick("margin category", [("none", "")], width="300px")
         self.from_policy = widgets.Checkbox(value=False, description="margin from the policy", indent=False)
         self.mass = _box("mass (kg)", 0.0)
-        self.stage = _pick("stage dropped", [("(no stage)", None)])
+        self.stage = _pick("stage dropped", [("(no stage)", "")])
         self.burn_box = widgets.HBox([self.system, self.category], layout=widgets.Layout(**_WRAP))
         self.event_box = widgets.HBox([self.mass, self.stage], layout=widgets.Layout(**_WRAP))
 
@@ -247,13 +249,13 @@ class LineKindFields:
         if list(self.system.options) != systems:
             value = self.system.value
             self.system.options = systems
-            self.system.value = value if value in budget.systems else None
-        categories = [("none", None), *((c, c) for c in (budget.policy.dv if budget.policy else {}))]
+            self.system.value = value if value in budget.systems else ""
+        categories = [("none", ""), *((c, c) for c in (budget.policy.dv if budget.policy else {}))]
         if list(self.category.options) != categories:
             value = self.category.value
             self.category.options = categories
-            self.category.value = value if value in [v for _, v in categories] else None
-        stages = [(name, name) for name in budget.stages] or [("(no stage)", None)]
+            self.category.value = value if value in [v for _, v in categories] else ""
+        stages = [(name, name) for name in budget.stages] or [("(no stage)", "")]
         if list(self.stage.options) != stages:
             self.stage.options = stages
 
@@ -264,13 +266,13 @@ class LineKindFields:
 
     def burn(self) -> dict[str, Any]:
         """A burn's system and category (None: the main system, no category)."""
-        return {"system": self.system.value, "category": self.category.value}
+        return {"system": self.system.value or None, "category": self.category.value or None}
 
     def event(self) -> dict[str, Any]:
         """A mass event or a stage drop as a recipe (without its label)."""
         kind = self.kind.value
         if kind == "drop_stage":
-            if self.stage.value is None:
+            if not self.stage.value:
                 raise DomainError("a stage drop needs a stage: declare one in the vehicle editor first")
             return {"kind": kind, "stage": self.stage.value}
         mass = float(self.mass.value)
@@ -283,10 +285,10 @@ class LineKindFields:
         kind = line.get("kind", "burn")
         self.kind.value = kind
         if kind == "burn":
-            if line.get("system") in [v for _, v in self.system.options]:
-                self.system.value = line.get("system")
-            if line.get("category") in [v for _, v in self.category.options]:
-                self.category.value = line.get("category")
+            if (line.get("system") or "") in [v for _, v in self.system.options]:
+                self.system.value = line.get("system") or ""
+            if (line.get("category") or "") in [v for _, v in self.category.options]:
+                self.category.value = line.get("category") or ""
             self.from_policy.value = line.get("margin") is None
         elif kind == "drop_stage":
             if line["stage"] in [v for _, v in self.stage.options]:

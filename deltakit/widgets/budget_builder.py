@@ -218,7 +218,12 @@ class BudgetBuilder(Panel):
         # a few named policies, shown whole: radio buttons (a custom policy from a budget joins them)
         self._control(
             "policy",
-            widgets.RadioButtons(options=list(self._policies), value="none", description="margin policy"),
+            widgets.RadioButtons(
+                options=list(self._policies),
+                value="none",
+                description="margin policy",
+                layout=widgets.Layout(width="auto", min_width="420px"),
+            ),
         )
         self._control(
             "lines",
