@@ -78,7 +78,6 @@ def test_choosing_a_tank_and_all_tanks(quillwort):
     "bad, words",
     [
         ({"samples": 50.0}, "number of samples must be between 100"),
-        ({"samples": 2500.5}, "number of samples must be a whole number"),
         ({"seed": -1.0}, "seed must be between 0"),
         ({"dv_spread": -0.01}, "delta-v spread must be between 0 and 100 %"),
         ({"isp_spread": 500.0}, "specific impulse spread must be between 0 and 100 s"),
@@ -155,3 +154,14 @@ def test_figures_default_and_stressed(view, quillwort, artifacts):
     assert broke.results["probability_closes"] < 0.2 and broke.results["left_p50"] < 0.0
     assert broke.results["tank"] == "carrier engine"
     broke.figure.savefig(artifacts / "dispersion_view_does_not_close.png")
+
+
+def test_samples_and_seed_take_whole_numbers_and_say_so(quillwort):
+    panel = DispersionView(budget=quillwort)
+    panel.set(seed=2071.62)
+    assert panel.error == "" and panel.values["seed"] == 2072.0
+    assert "taken as 2072" in panel.adjusted["seed"]
+    ds = dk.disperse(quillwort, samples=2000, seed=2072, **panel.spreads())
+    assert panel.results["probability_closes"] == float(ds.probability_closes)
+    panel.controls["samples"].value = 3000.4  # typed in the browser
+    assert panel.controls["samples"].value == 3000.0 and panel.dispersion.sizes["sample"] == 3000

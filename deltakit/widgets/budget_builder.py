@@ -421,6 +421,8 @@ class BudgetBuilder(Panel):
             select.options = [(self._describe(i, line, budget), i) for i, line in enumerate(budget.lines)]
             select.value = selected if selected is not None and selected < len(budget.lines) else None
             self.vehicle.show(budget)
+            # a maturity adds the policy's growth allowance: without a policy there is none to choose
+            self.controls["dry_maturity"].disabled = budget.policy is None and budget.dry_maturity is None
             self.line_fields.show(budget)
         self.tables.value = tables_html(budget)
         self._show_export()

@@ -232,11 +232,29 @@ class DispersionView(Panel):
                 widget.value = value
 
             return _Plan(value, pick)
+        if name in ("samples", "seed"):
+            plan = super()._plan(name, value)
+            whole = float(round(plan.si))
+            if whole == plan.si or not math.isfinite(whole):
+                return plan
+            widget = self.controls[name]
+            note = f"{widget.description} {plan.si:g} taken as {whole:.0f} (a whole number)."
+
+            def apply() -> None:
+                widget.value = whole
+
+            return _Plan(whole, apply, note)
         return super()._plan(name, value)
 
     def _on_change(self, change: dict[str, Any]) -> None:
         if change["owner"] in (self.controls["path"], self.controls["budget"]):
             return  # the report's file name is read when the report is written; the budget is set from code
+        widget = change["owner"]
+        if widget in (self.controls["samples"], self.controls["seed"]) and change["new"] != round(
+            change["new"]
+        ):
+            with self._quietly():  # typed in the browser: the box takes the whole number it will use
+                widget.value = float(round(change["new"]))
         super()._on_change(change)
 
     @staticmethod
