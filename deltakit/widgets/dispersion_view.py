@@ -472,6 +472,9 @@ class DispersionView(Panel):
             framealpha=0.9,
         )
         self._ticks: list[str] = [""] * TOP
+        self._shown_bars: list[tuple[float, str, str] | None] = [None] * TOP
+        for bar in self._bars:
+            bar.set_clip_on(False)  # within the axes anyway: each bar then redraws only its own place
         self._order: list[str] = []
         self.view.animate(
             self._close_bins,
@@ -523,13 +526,18 @@ class DispersionView(Panel):
         top = ax.get_ylim()[1]
         for row, (line, label, level, value) in enumerate(zip(art.percentiles, art.labels, LEVELS, marks)):
             line.set_xdata([value, value])
-            label.set_position((value, top * (0.99 - 0.075 * (row % 4))))
-            label.set_text(f"P{level:g}: {value:,.1f}")
-        self._title.set_text(
+            text = f"P{level:g}: {value:,.1f}"
+            where = (value, top * (0.99 - 0.075 * (row % 4)))
+            if label.get_text() != text or label.get_position() != where:
+                label.set_position(where)
+                label.set_text(text)
+        title = (
             f"{escape_mathtext(_short(one_line(results['tank']), 26))}: holds in "
             f"{100.0 * results['tank_holds']:.1f} %\nthe whole budget closes in "
             f"{100.0 * results['probability_closes']:.1f} %"
         )
+        if self._title.get_text() != title:
+            self._title.set_text(title)
         if moved:
             self.view.invalidate(ax, self.twin)
 
@@ -560,16 +568,19 @@ class DispersionView(Panel):
         ticks = [_short(escape_mathtext(one_line(cause))) for cause, _, _ in ranking] + [""] * (
             TOP - len(ranking)
         )
-        for k, bar in enumerate(self._bars):
-            if k < len(ranking):
-                _, share, more = ranking[k]
-                bar.set_width(100.0 * share)
-                bar.set_color(COLOURS["hohmann"] if more else COLOURS["burn"])
-                self._bar_labels[k].set_position((100.0 * share + 1.0, bar.get_y() + 0.3))
-                self._bar_labels[k].set_text(f"{100.0 * share:.1f} %")
-            else:
-                bar.set_width(0.0)
-                self._bar_labels[k].set_text("")
+        for k, (bar, label) in enumerate(zip(self._bars, self._bar_labels)):
+            share, more = (
+                (round(100.0 * ranking[k][1], 1), ranking[k][2]) if k < len(ranking) else (0.0, True)
+            )
+            text = f"{share:.1f} %" if k < len(ranking) else ""
+            colour = COLOURS["hohmann"] if more else COLOURS["burn"]
+            if self._shown_bars[k] == (share, colour, text):
+                continue  # unchanged at the shown precision: not touched, so not drawn again
+            self._shown_bars[k] = (share, colour, text)
+            bar.set_width(share)
+            bar.set_color(colour)
+            label.set_position((share + 1.0, bar.get_y() + 0.3))
+            label.set_text(text)
         if ticks != self._ticks:
             self._ticks = ticks
             for name, tick in zip(self._names, ticks):
