@@ -1,20 +1,29 @@
-"""BudgetBuilder: a delta-v budget built line by line, with its mass waterfall.
+"""BudgetBuilder: a delta-v budget line by line, with its mass waterfall: one engine or a staged vehicle.
 
 Lines come from a typed delta-v or from a manoeuvre formula with its
-parameters (Hohmann, bi-elliptic, plane change, escape, capture); each can
-carry a margin and its own specific impulse. Select a line to edit it, move it
-up or down, or remove it. The waterfall shows the mass after each line; the
+parameters (Hohmann, bi-elliptic, plane change, escape, capture); each burn
+can carry a margin (or take its category's margin from the margin policy),
+its own specific impulse and the propulsion system that flies it. Lines may
+also be mass events (a jettison, an added mass) or the drop of a stage. The
+vehicle editor declares the propulsion systems (specific impulse, usable
+load, residual, the stage they sit on) and the stages (dry mass, how they are
+dropped, design maturity). Select a line, system or stage to edit it, move a
+line up or down, or remove it. The waterfall shows the mass after each line;
+the tables show each line's nominal delta-v, margin and total apart and what
+each tank used and kept, with the first line where a tank runs dry; the
 readouts give the totals. Save and load go through :class:`deltakit.Budget`
 files (atomic, versioned JSON; a foreign or damaged file is refused and left
 as it is); Markdown, LaTeX and CSV exports are shown and offered as downloads.
 
-The panel's model of the lines is its :attr:`BudgetBuilder.budget`, a
-:class:`deltakit.Budget` edited with the budget's own methods (add, replace,
-move, remove). A line made from a formula keeps the formula and its
-parameters in its ``source``, so a saved budget opens again with its lines
-editable. ``values["lines"]`` reads the lines back as recipes ``{"label",
-"formula", "params", "margin", "isp"}``; margins are fractions there, as in
-:meth:`deltakit.Budget.add` (0.05 = +5 %), and the editor shows them in percent.
+The panel's model is its :attr:`BudgetBuilder.budget`, a :class:`deltakit.Budget`;
+``BudgetBuilder(budget=b)`` opens one as it is, and :meth:`BudgetBuilder.dispersion_view`
+gives a :class:`~deltakit.widgets.DispersionView` that follows each valid edit.
+A line made from a formula keeps the formula and its parameters in its
+``source``, so a saved budget opens again with its lines editable.
+``values["lines"]``, ``values["systems"]`` and ``values["stages"]`` read the
+budget back as recipes (:mod:`deltakit.widgets._budget_recipes`); margins are
+fractions there, as in :meth:`deltakit.Budget.add` (0.05 = +5 %), and the
+editor shows them in percent.
 
 Default case: the invented Halyard tug (:mod:`deltakit.demo`) taking cargo
 from a 400 km Earth orbit to a 100 km lunar orbit.
