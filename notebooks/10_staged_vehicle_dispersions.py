@@ -181,10 +181,49 @@ assert driver == "navigation" and set(top) == {"dry mass", "navigation"}
 # %% [markdown]
 # ## The panel
 #
-# **Place for the dispersion panel.** A panel of our own will sit here: the budget of this notebook
-# edited line by line (as `BudgetBuilder` does), with the spreads beside it and the two figures above
-# answering each change. Until it lands, the cells above are the way to explore: change a spread or a
-# line and run them again.
+# The same budget in the two panels of its kind. `BudgetBuilder` opens it as it is: the propulsion
+# systems and the carrier stage in the vehicle editor, each line with its kind, system and margin
+# category, the tables with nominal delta-v, margin and total apart and what each tank keeps. Its
+# `dispersion_view()` is a `DispersionView` that follows the builder: change a line, a load or a
+# stage there, and the histogram, the ranking and the probability of closing answer. The view's
+# spreads are simpler than the cell above (one delta-v spread for every burn, one specific impulse
+# spread for every system, one dry-mass spread): slide them to see how much each kind of uncertainty
+# costs. Its *Write report* button (or `write_report()`) writes the HTML, and the PDF when LaTeX is
+# installed, in one call.
+
+# %%
+from deltakit.widgets import BudgetBuilder
+
+builder = BudgetBuilder(budget=budget)
+assert builder.budget == budget  # the panel's model is this very budget: lines, systems, stages, policy
+display(builder)
+
+# %%
+view = builder.dispersion_view(dv_spread=0.01, isp_spread=2.0, dry_mass_spread=0.03, seed=2031)
+display(view)
+again = dk.disperse(budget, samples=int(view.values["samples"]), seed=2031, **view.spreads())
+assert view.results["probability_closes"] == float(again.probability_closes)  # the panel runs disperse
+print(
+    f"panel: closes in {100 * view.results['probability_closes']:.1f} % of "
+    f"{int(view.values['samples']):,} samples; tightest tank {view.results['tightest']}"
+)
+
+# %% [markdown]
+# Driving the panels from code is what the analyst does by hand. A dearer capture (60 m/s more, as a
+# faster arrival would ask) in the builder moves the dispersion view at once:
+
+# %%
+booked = builder.values  # to go back to the budget as booked
+lines = list(booked["lines"])  # a copy: booked stays as it was
+capture = next(i for i, line in enumerate(lines) if line["label"] == "capture into low orbit")
+lines[capture] = {**lines[capture], "params": {"dv": lines[capture]["params"]["dv"] + 60.0}}
+before = view.results["probability_closes"]
+builder.set(lines=lines)
+after = view.results["probability_closes"]
+print(f"P(closes): {100 * before:.1f} % as booked, {100 * after:.1f} % with the dearer capture")
+assert view.budget == builder.budget and after < before
+builder.set(**booked)  # back to the budget as booked, and the view with it
+assert builder.budget == budget and view.results["probability_closes"] == before
 
 # %% [markdown]
 # ## The report, in one call
@@ -216,6 +255,17 @@ if "pdf" in written:
     text = subprocess.run(["pdftotext", str(written["pdf"]), "-"], capture_output=True, text=True).stdout
     assert f"{float(budget.propellant):.2f}" in text, "the PDF carries the budget totals"
 display(Markdown(written["markdown"].read_text(encoding="utf-8").split("## Dispersion")[0][:3000]))
+
+# %% [markdown]
+# The dispersion panel writes its own report the same way, with its figure and its spreads in the notes:
+
+# %%
+from_panel = view.write_report(out / "quillwort-panel")  # HTML, and PDF when pdflatex is installed
+for fmt, path in from_panel.items():
+    print(f"{fmt:8s} {path} ({path.stat().st_size / 1024:.0f} KiB)")
+panel_html = from_panel["html"].read_text(encoding="utf-8")
+assert "not for flight operations" in panel_html and budget.name in panel_html
+assert ("pdf" in from_panel) == bool(shutil.which("pdflatex"))
 
 # %% [markdown]
 # ## Decision

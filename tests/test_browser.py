@@ -480,7 +480,15 @@ e => {
 
 
 @pytest.mark.parametrize(
-    "name", ["BurnPointExplorer", "PropellantTrade", "TransferTrade", "EscapeFlyby", "BudgetBuilder"]
+    "name",
+    [
+        "BurnPointExplorer",
+        "PropellantTrade",
+        "TransferTrade",
+        "EscapeFlyby",
+        "BudgetBuilder",
+        "DispersionView",
+    ],
 )
 def test_figure_toolbar_never_covers_the_figure(notebook_page: Any, artifacts: Path, name: str) -> None:
     """With the pointer over a live figure no toolbar shows over its axis labels, ticks, titles or legends."""

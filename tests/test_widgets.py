@@ -668,6 +668,7 @@ def test_sheet_refuses_unknown_derivation():
             "target inclination must be between 0 and 180 deg",
         ),
         ("BudgetBuilder", {"m0": -1.0}, "starting mass must be > 0 kg"),
+        ("DispersionView", {"samples": 50.0}, "number of samples must be between 100"),
     ],
 )
 def test_constructor_checks_like_set(panel_name, bad, words):
@@ -689,6 +690,7 @@ def test_constructor_value_beyond_a_slider_widens_it(panel_name):
         "TransferTrade": ("plane_change", 0.0),
         "EscapeFlyby": ("flyby_dv", 4000.0),
         "PlaneChangeExplorer": ("target_raan", 400 * deg),  # a node past a full turn: the same plane
+        "DispersionView": ("isp_spread", 12.0),
     }[panel_name]
     panel = cls(**{name: far})
     assert panel.values[name] == pytest.approx(far) and panel.error == ""

@@ -27,6 +27,7 @@ _PANELS = {
     "EscapeFlyby": "escape",
     "PlaneChangeExplorer": "plane_change",
     "BudgetBuilder": "budget_builder",
+    "DispersionView": "dispersion_view",
     "FormulaSheet": "formula_sheet",
 }
 
@@ -39,6 +40,7 @@ __all__ = [
     "BudgetBuilder",
     "BurnPointExplorer",
     "Computed",
+    "DispersionView",
     "EscapeFlyby",
     "FormulaSheet",
     "InputError",

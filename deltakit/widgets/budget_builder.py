@@ -1,20 +1,29 @@
-"""BudgetBuilder: a delta-v budget built line by line, with its mass waterfall.
+"""BudgetBuilder: a delta-v budget line by line, with its mass waterfall: one engine or a staged vehicle.
 
 Lines come from a typed delta-v or from a manoeuvre formula with its
-parameters (Hohmann, bi-elliptic, plane change, escape, capture); each can
-carry a margin and its own specific impulse. Select a line to edit it, move it
-up or down, or remove it. The waterfall shows the mass after each line; the
+parameters (Hohmann, bi-elliptic, plane change, escape, capture); each burn
+can carry a margin (or take its category's margin from the margin policy),
+its own specific impulse and the propulsion system that flies it. Lines may
+also be mass events (a jettison, an added mass) or the drop of a stage. The
+vehicle editor declares the propulsion systems (specific impulse, usable
+load, residual, the stage they sit on) and the stages (dry mass, how they are
+dropped, design maturity). Select a line, system or stage to edit it, move a
+line up or down, or remove it. The waterfall shows the mass after each line;
+the tables show each line's nominal delta-v, margin and total apart and what
+each tank used and kept, with the first line where a tank runs dry; the
 readouts give the totals. Save and load go through :class:`deltakit.Budget`
 files (atomic, versioned JSON; a foreign or damaged file is refused and left
 as it is); Markdown, LaTeX and CSV exports are shown and offered as downloads.
 
-The panel's model of the lines is its :attr:`BudgetBuilder.budget`, a
-:class:`deltakit.Budget` edited with the budget's own methods (add, replace,
-move, remove). A line made from a formula keeps the formula and its
-parameters in its ``source``, so a saved budget opens again with its lines
-editable. ``values["lines"]`` reads the lines back as recipes ``{"label",
-"formula", "params", "margin", "isp"}``; margins are fractions there, as in
-:meth:`deltakit.Budget.add` (0.05 = +5 %), and the editor shows them in percent.
+The panel's model is its :attr:`BudgetBuilder.budget`, a :class:`deltakit.Budget`;
+``BudgetBuilder(budget=b)`` opens one as it is, and :meth:`BudgetBuilder.dispersion_view`
+gives a :class:`~deltakit.widgets.DispersionView` that follows each valid edit.
+A line made from a formula keeps the formula and its parameters in its
+``source``, so a saved budget opens again with its lines editable.
+``values["lines"]``, ``values["systems"]`` and ``values["stages"]`` read the
+budget back as recipes (:mod:`deltakit.widgets._budget_recipes`); margins are
+fractions there, as in :meth:`deltakit.Budget.add` (0.05 = +5 %), and the
+editor shows them in percent.
 
 Default case: the invented Halyard tug (:mod:`deltakit.demo`) taking cargo
 from a 400 km Earth orbit to a 100 km lunar orbit.
@@ -34,17 +43,36 @@ import ipywidgets as widgets
 
 from .._text import escape_html, one_line
 from ..budget import Budget
-from ..constants import BODIES, EARTH, G0, MOON
+from ..constants import BODIES, EARTH, MOON
 from ..demo import HALYARD, LUNAR_ORBIT_ALTITUDE, MOON_DISTANCE
 from ..errors import DomainError
+from ..margins import STUDY_POLICY, MarginPolicy
 from ..plotting.waterfall import update_budget_waterfall
 from ..transfers import hohmann
 from ..twobody import circular_speed
 from ..units import deg, percent
-from ._base import Computed, InputError, Panel, _Plan, _round_si, json_ready, number, number_width
+from ._base import Computed, Panel, _Plan, json_ready, number, number_width, toggle
+from ._budget_html import tables_html
+from ._budget_recipes import (
+    build,
+    line_recipe,
+    recipes,
+    stage_recipes,
+    stages_checked,
+    system_recipes,
+    systems_checked,
+    values_of,
+)
 from ._formulas import FORMULAS, evaluate
+from ._vehicle_editor import LineKindFields, VehicleEditor
 
-__all__ = ["BudgetBuilder", "default_lines"]
+__all__ = ["BudgetBuilder", "default_lines", "recipes"]
+
+_recipe = line_recipe  # the name earlier code imported
+#: The dry-mass maturity choice that stands for none given.
+NOT_GIVEN = "not given"
+#: Margin policies offered by name (a budget given to the panel adds its own).
+POLICIES: dict[str, MarginPolicy | None] = {"none": None, STUDY_POLICY.name: STUDY_POLICY}
 
 
 def default_lines() -> list[dict[str, Any]]:
@@ -79,65 +107,6 @@ def default_lines() -> list[dict[str, Any]]:
     ]
 
 
-def _recipe(line: Any, number: int) -> dict[str, Any]:
-    """A line recipe checked and completed (SI; margin a fraction), or DomainError naming the line."""
-    if not isinstance(line, Mapping):
-        raise DomainError(f"line {number + 1} must be a dict, not {type(line).__name__}")
-    formula = line.get("formula", "number")
-    if formula not in FORMULAS:
-        raise DomainError(f"line {number + 1}: `formula` must be one of {list(FORMULAS)}, not {formula!r}")
-    params = dict(line.get("params", {}))
-    label = line.get("label", f"line {number + 1}")
-    if not isinstance(label, str):
-        raise DomainError(f"line {number + 1}: `label` must be text, not {type(label).__name__}")
-    isp = line.get("isp")
-    return {
-        "label": label,
-        "formula": formula,
-        "params": {p.key: params.get(p.key, p.default) for p in FORMULAS[formula].parameters},
-        "margin": float(line.get("margin", 0.0)),
-        "isp": None if isp in (None, 0, 0.0) else float(isp),
-    }
-
-
-def recipes(budget: Budget) -> list[dict[str, Any]]:
-    """A budget's lines as recipes: a formula and its parameters where the line came from one."""
-    out = []
-    for line in budget.lines:
-        source = line.source
-        formula = source.get("formula") if source.get("formula") in FORMULAS else "number"
-        params = dict(source.get("params", {})) if formula != "number" else {"dv": line.dv}
-        out.append(
-            {
-                "label": line.label,
-                "formula": formula,
-                "params": params,
-                "margin": line.margin,
-                "isp": None if line.ve is None else _round_si(line.ve / G0),
-            }
-        )
-    return out
-
-
-def _with_recipes(budget: Budget, lines: list[dict[str, Any]], indices: range | list[int]) -> Budget:
-    """The budget with the formula and parameters of ``lines`` kept in the sources of those lines."""
-    data = budget.to_dict()
-    for index in indices:
-        line = lines[index]
-        if line["formula"] != "number":
-            entry = data["lines"][index]
-            params = json_ready(line["params"])
-            entry["source"] = dict(entry["source"], formula=line["formula"], params=params)
-    return Budget.from_dict(data)
-
-
-def _line_dv(line: dict[str, Any], index: int) -> Any:
-    try:
-        return evaluate(line["formula"], line["params"])
-    except (DomainError, TypeError, ValueError) as err:
-        raise InputError(f"line {index + 1} ({one_line(line['label'])}): {err}", "lines") from None
-
-
 def _file_stem(name: str) -> str:
     """A download name from the budget's name: letters, digits, ``_`` and single dashes.
 
@@ -154,25 +123,46 @@ def _csv_text(budget: Budget) -> str:
 
 
 class BudgetBuilder(Panel):
-    """Build, edit, save and export a delta-v budget.
+    """Build, edit, save and export a delta-v budget: one engine, or a staged vehicle with several.
 
     Parameters (keyword-only, SI)
     -----------------------------
     name : str
         Title of the budget.
     m0 : float
-        Vehicle mass at the start, kg.
+        Vehicle mass at the start, kg. With systems or stages, 0 means "the
+        sum of the dry mass, the stages and the loads".
     isp : float
-        Specific impulse of the main engine, s (lines may override).
+        Specific impulse of the main engine, s (lines may override). With
+        systems or stages, 0 means "no engine of the starting mass": the
+        systems listed fly the lines.
     dry_mass : float
         Mass without usable propellant, kg; 0 for "not given" (then every
         budget closes; with it, a line that burns below it is infeasible).
     lines : list of dict or None
-        Line recipes ``{"label", "formula", "params", "margin", "isp"}`` with
-        ``formula`` a key of ``FORMULAS``, ``params`` in SI and ``margin`` a
-        fraction (0.05 = +5 %); None gives the Halyard example.
+        Line recipes: burns ``{"label", "formula", "params", "margin", "isp"}``
+        (and ``"system"``, ``"category"``; ``"margin": None`` takes the
+        policy's margin of the category) with ``formula`` a key of
+        ``FORMULAS``, ``params`` in SI and ``margin`` a fraction (0.05 = +5 %);
+        mass events ``{"label", "kind": "jettison" | "add_mass", "mass"}``
+        and stage drops ``{"label", "kind": "drop_stage", "stage"}``. None
+        gives the Halyard example.
     path : str
         File for save and load.
+    systems : list of dict or None
+        Propulsion systems ``{"name", "ve" (m/s) or "isp" (s), "propellant"
+        (kg; None: what the start mass leaves), "residual" (fraction),
+        "stage"}``.
+    stages : list of dict or None
+        Stages, bottom first: ``{"name", "dry_mass", "drop" ("line" or
+        "spent"), "maturity"}``.
+    policy : MarginPolicy, dict, str or None
+        The margin policy (a policy, its ``to_dict()`` data, or the name of
+        one the panel offers); None for none.
+    dry_maturity : str or None
+        Design maturity of the dry mass (the policy's growth allowance is added).
+    budget : Budget or None
+        Open this budget: every setting above comes from it.
 
     Examples
     --------
@@ -183,6 +173,13 @@ class BudgetBuilder(Panel):
     843.7
     >>> round(float(panel.budget.propellant), 1)
     156.3
+
+    A staged budget opens as it is:
+
+    >>> from deltakit.demo import QUILLWORT
+    >>> staged = BudgetBuilder(budget=QUILLWORT.budget())
+    >>> staged.budget == QUILLWORT.budget(), len(staged.values["systems"])
+    (True, 4)
     """
 
     #: a budget that does not close has no final mass; without a dry mass, no propellant left
@@ -192,6 +189,7 @@ class BudgetBuilder(Panel):
         "propellant": ("propellant used", 1.0, "kg"),
         "final_mass": ("mass at the end", 1.0, "kg"),
         "propellant_left": ("usable propellant left", 1.0, "kg"),
+        "shortfall": ("propellant missing (all tanks)", 1.0, "kg"),
     }
 
     def __init__(
@@ -203,10 +201,17 @@ class BudgetBuilder(Panel):
         dry_mass: float = HALYARD.vehicle.dry_mass,
         lines: list[dict[str, Any]] | None = None,
         path: str = "budget.json",
+        systems: list[dict[str, Any]] | None = None,
+        stages: list[dict[str, Any]] | None = None,
+        policy: Any = None,
+        dry_maturity: str | None = None,
+        budget: Budget | None = None,
     ) -> None:
         super().__init__()
         #: The budget the panel shows (the last valid one), lines and all.
         self.budget: Budget | None = None
+        self._followers: list[Any] = []
+        self._policies: dict[str, MarginPolicy | None] = dict(POLICIES)
         self._control(
             "name", widgets.Text(value="", description="budget name", layout=widgets.Layout(width="420px"))
         )
@@ -214,48 +219,162 @@ class BudgetBuilder(Panel):
         self._control("isp", number("specific impulse (s)", 0.0), 1.0, "s")
         self._control("dry_mass", number("dry mass (kg, 0: not given)", 0.0), 1.0, "kg")
         self._control(
+            "dry_maturity",
+            toggle(
+                "dry mass maturity", [NOT_GIVEN, *self._maturities(None)], NOT_GIVEN, button_width="110px"
+            ),
+        )
+        # a few named policies, shown whole: radio buttons (a custom policy from a budget joins them)
+        self._control(
+            "policy",
+            widgets.RadioButtons(
+                options=list(self._policies),
+                value="none",
+                description="margin policy",
+                layout=widgets.Layout(width="auto", min_width="420px"),
+            ),
+        )
+        self._control(
             "lines",
             widgets.Select(options=[], rows=6, description="lines", layout=widgets.Layout(width="640px")),
         )
         self._control(
             "path", widgets.Text(value="", description="file", layout=widgets.Layout(width="340px"))
         )
+        self.vehicle = VehicleEditor(self)
+        self._control("systems", self.vehicle.systems)
+        self._control("stages", self.vehicle.stages)
         self._waterfall = None
+        self.tables = widgets.HTML("")
+        self.tables.add_class("deltakit-budget-tables")
         self._build_editor()
         self._build_exports()
         self._build_figure()
-        self._finish(
-            "Budget builder: lines, propellant, mass after each line",
-            [["name"], ["m0", "isp", "dry_mass"], ["lines"]],
-            initial={
+        if budget is not None:
+            if not isinstance(budget, Budget):
+                raise DomainError(f"`budget` must be a deltakit.Budget, not {type(budget).__name__}")
+            initial = {**values_of(budget), "path": path}
+        else:
+            initial = {
                 "name": name,
                 "m0": m0,
                 "isp": isp,
                 "dry_mass": dry_mass,
+                "dry_maturity": dry_maturity,
+                "policy": policy,
+                "systems": systems or [],
+                "stages": stages or [],
                 "lines": default_lines() if lines is None else lines,
                 "path": path,
-            },
-            extra=[self._editor_box, self._file_box],
-            below=[self._export_box],
+            }
+        self._finish(
+            "Budget builder: lines, propellant, mass after each line",
+            [["name"], ["m0", "isp", "dry_mass"], ["policy", "dry_maturity"], ["lines"]],
+            initial=initial,
+            extra=[self.vehicle.box, self._editor_box, self._file_box],
+            below=[self.tables, self._export_box],
         )
         self._select(0 if self.budget.lines else None)
 
     # ------------------------------------------------------------------ values
+    @staticmethod
+    def _maturities(policy: MarginPolicy | None) -> list[str]:
+        """Design maturities offered: the study policy's and those of the policy in use."""
+        known = dict(STUDY_POLICY.mass_growth)
+        if policy is not None:
+            known.update(policy.mass_growth)
+        return list(known)
+
     def _si(self, name: str) -> Any:
         if name == "lines":
             return json_ready(recipes(self.budget)) if self.budget is not None else []
+        if name == "systems":
+            return json_ready(system_recipes(self.budget)) if self.budget is not None else []
+        if name == "stages":
+            return json_ready(stage_recipes(self.budget)) if self.budget is not None else []
+        if name == "policy":
+            policy = self._policies[self.controls["policy"].value]
+            return None if policy is None else json_ready(policy.to_dict())
+        if name == "dry_maturity":
+            value = self.controls["dry_maturity"].value
+            return None if value == NOT_GIVEN else value
         return super()._si(name)
 
+    def _policy_named(self, value: Any) -> tuple[str, MarginPolicy | None]:
+        """The drop-down entry of a policy given as None, a name, a MarginPolicy or its data."""
+        if value is None:
+            return "none", None
+        if isinstance(value, str):
+            if value not in self._policies:
+                raise DomainError(
+                    f"`policy` must be one of {list(self._policies)} or a MarginPolicy, not {value!r}"
+                )
+            return value, self._policies[value]
+        if isinstance(value, Mapping):
+            value = MarginPolicy.from_dict(dict(value))
+        if not isinstance(value, MarginPolicy):
+            raise DomainError(
+                f"`policy` must be a MarginPolicy, its data or a name, not {type(value).__name__}"
+            )
+        for key, known in self._policies.items():
+            if known == value:
+                return key, known
+        key = value.name if value.name not in self._policies else f"{value.name} ({len(self._policies)})"
+        return key, value
+
     def _plan(self, name: str, value: Any) -> _Plan:
-        if name != "lines":
-            return super()._plan(name, value)
-        if not isinstance(value, (list, tuple)):
-            raise DomainError(f"`lines` must be a list of line dicts, not {type(value).__name__}")
-        return _Plan([_recipe(line, i) for i, line in enumerate(value)], lambda: None)
+        if name == "lines":
+            if not isinstance(value, (list, tuple)):
+                raise DomainError(f"`lines` must be a list of line dicts, not {type(value).__name__}")
+            return _Plan([line_recipe(line, i) for i, line in enumerate(value)], lambda: None)
+        if name == "systems":
+            return _Plan(systems_checked(value), lambda: None)
+        if name == "stages":
+            return _Plan(stages_checked(value), lambda: None)
+        if name == "policy":
+            key, policy = self._policy_named(value)
+
+            def choose() -> None:
+                self._policies.setdefault(key, policy)
+                widget = self.controls["policy"]
+                if key not in widget.options:
+                    widget.options = list(self._policies)
+                widget.value = key
+                maturity = self.controls["dry_maturity"]
+                options = [NOT_GIVEN, *self._maturities(policy)]
+                for extra in maturity.options:
+                    if extra not in options:
+                        options.append(extra)
+                if list(maturity.options) != options:
+                    current = maturity.value
+                    maturity.options = options
+                    maturity.value = current
+
+            return _Plan(None if policy is None else json_ready(policy.to_dict()), choose)
+        if name == "dry_maturity":
+            if value is not None and not isinstance(value, str):
+                raise DomainError(f"`dry_maturity` must be text or None, not {type(value).__name__}")
+
+            shown = NOT_GIVEN if value is None else value
+
+            def pick() -> None:
+                widget = self.controls["dry_maturity"]
+                if shown not in widget.options:
+                    widget.options = [*widget.options, shown]
+                widget.value = shown
+
+            return _Plan(value, pick)
+        return super()._plan(name, value)
 
     def _on_change(self, change: dict[str, Any]) -> None:
         if change["owner"] is self.controls["lines"]:
             self._select(change["new"])  # choosing a line only fills the editor
+            return
+        if change["owner"] is self.controls["systems"]:
+            self.vehicle.select_system(change["new"])
+            return
+        if change["owner"] is self.controls["stages"]:
+            self.vehicle.select_stage(change["new"])
             return
         if change["owner"] is self.controls["path"]:
             return
@@ -265,43 +384,34 @@ class BudgetBuilder(Panel):
     @classmethod
     def compute(cls, values: Mapping[str, Any]) -> Computed:
         """The budget of ``values`` (SI, keyed like the controls; lines as recipes) and its totals."""
-        m0, isp, dry = values["m0"], values["isp"], values["dry_mass"]
-        if not m0 > 0.0:
-            raise InputError(f"starting mass must be > 0 kg (got {m0:g} kg).", "m0")
-        if not isp > 0.0:
-            raise InputError(f"specific impulse must be > 0 s (got {isp:g} s).", "isp")
-        if dry < 0.0 or (dry and dry >= m0):
-            raise InputError(
-                f"dry mass must be between 0 and the starting mass {m0:g} kg (got {dry:g} kg).", "dry_mass"
-            )
-        lines = [_recipe(line, i) for i, line in enumerate(values["lines"])]
-        budget = Budget(m0, isp * G0, values["name"], dry_mass=dry or None)
-        for index, line in enumerate(lines):
-            margin = line["margin"]
-            if not 0.0 <= margin <= 1.0:
-                raise InputError(
-                    f"line {index + 1} ({one_line(line['label'])}): margin {margin / percent:g} % must be "
-                    "between 0 and 100 % of the line's delta-v (+5 % is 5 in the editor, 0.05 in code).",
-                    "lines",
-                )
-            if line["isp"] is not None and not line["isp"] > 0.0:
-                raise InputError(
-                    f"line {index + 1} ({one_line(line['label'])}): its own specific impulse must be > 0 s.",
-                    "lines",
-                )
-            ve = None if line["isp"] is None else line["isp"] * G0
-            budget.add(line["label"], _line_dv(line, index), ve=ve, margin=margin)
-        budget = _with_recipes(budget, lines, range(len(lines)))
+        budget = build(values)
         left = budget.propellant_left
+        usage = budget.usage
         results = {
             "total_dv": float(budget.total_dv),
             "propellant": float(budget.propellant),
             "final_mass": float(budget.final_mass),
             "propellant_left": float(left) if left is not None else math.nan,
+            "shortfall": float(budget.shortfall),
             "mass_after": [float(m) for m in budget.mass_after],
             "propellant_per_line": [float(m) for m in budget.propellant_per_line],
+            "first_dry_line": None if budget.first_infeasible is None else budget.first_infeasible + 1,
+            "systems": {
+                name: {
+                    "used": use.used,
+                    "left": use.left,
+                    "shortfall": use.shortfall,
+                    "runs_dry_at_line": None if use.runs_dry_at is None else use.runs_dry_at + 1,
+                }
+                for name, use in usage.items()
+            },
         }
         notes = []
+        if budget.policy is not None:
+            notes.append(
+                f"Margin policy: {budget.policy.name} (lines with a category and no margin of their own "
+                "take its margin; maturities add its growth allowance)."
+            )
         if budget.first_infeasible is not None:
             notes.append(
                 f"Line {budget.first_infeasible + 1} ({budget.lines[budget.first_infeasible].label}) "
@@ -319,13 +429,47 @@ class BudgetBuilder(Panel):
         with self._quietly():
             select.options = [(self._describe(i, line, budget), i) for i, line in enumerate(budget.lines)]
             select.value = selected if selected is not None and selected < len(budget.lines) else None
+            self.vehicle.show(budget)
+            # a maturity adds the policy's growth allowance: without a policy there is none to choose
+            self.controls["dry_maturity"].disabled = budget.policy is None and budget.dry_maturity is None
+            self.line_fields.show(budget)
+        self.tables.value = tables_html(budget)
         self._show_export()
+        for follower in list(self._followers):
+            follower(budget)
 
     @staticmethod
     def _describe(index: int, line: Any, budget: Budget) -> str:
         after = float(budget.mass_after[index])
-        margin = f" +{line.margin / percent:g} %" if line.margin else ""
-        return f"{index + 1}. {one_line(line.label)}: {line.dv:,.1f} m/s{margin} -> {after:,.1f} kg"
+        if line.kind == "burn":
+            margin = f" +{line.margin / percent:g} %" if line.margin else ""
+            what = f"{line.dv:,.1f} m/s{margin}"
+            if line.system:
+                what += f" ({one_line(line.system)})"
+        elif line.kind == "drop_stage":
+            what = f"drop stage {one_line(line.stage)}"
+        else:
+            sign = "-" if line.kind == "jettison" else "+"
+            what = f"{sign}{line.mass:,.1f} kg"
+        return f"{index + 1}. {one_line(line.label)}: {what} -> {after:,.1f} kg"
+
+    def dispersion_view(self, **kwargs: Any) -> Any:
+        """A :class:`~deltakit.widgets.DispersionView` of this budget that follows each valid edit here.
+
+        Keywords go to the view's constructor (spreads, samples, seed, ...).
+        """
+        from .dispersion_view import DispersionView
+
+        view = DispersionView(budget=self.budget, **kwargs)
+
+        def follow(budget: Budget) -> None:
+            if view.controls:  # not closed
+                view.set(budget=budget)
+            elif follow in self._followers:
+                self._followers.remove(follow)
+
+        self._followers.append(follow)
+        return view
 
     # ------------------------------------------------------------------ editor
     def _build_editor(self) -> None:
@@ -375,6 +519,9 @@ class BudgetBuilder(Panel):
             self._param_widgets[key] = fields
             boxes.append(widgets.HBox(list(fields.values()), layout=widgets.Layout(flex_flow="row wrap")))
         self._param_boxes = dict(zip(FORMULAS, boxes))
+        self._formula_box = widgets.VBox(boxes)
+        self.line_fields = LineKindFields()
+        self.line_fields.kind.observe(lambda change: self._show_kind(change["new"]), names="value")
         self.form["formula"].observe(lambda change: self._show_params(change["new"]), names="value")
         self.buttons = {
             "add": widgets.Button(description="Add line", button_style="primary", icon="plus"),
@@ -387,17 +534,33 @@ class BudgetBuilder(Panel):
             button.add_class(f"deltakit-budget-{key}")
             button.on_click(lambda _, key=key: self._edit(key))
         wrap = widgets.Layout(flex_flow="row wrap")
+        self._burn_box = widgets.VBox(
+            [
+                widgets.HBox(
+                    [self.form["margin"], self.line_fields.from_policy, self.form["isp"]], layout=wrap
+                ),
+                self.line_fields.burn_box,
+            ]
+        )
         self._editor_box = widgets.VBox(
             [
                 widgets.HTML("<b>Line editor</b> (select a line above to edit it)"),
-                widgets.HBox([self.form["label"], self.form["formula"]], layout=wrap),
-                *boxes,
-                widgets.HBox([self.form["margin"], self.form["isp"]], layout=wrap),
+                widgets.HBox([self.form["label"], self.line_fields.kind, self.form["formula"]], layout=wrap),
+                self._formula_box,
+                self._burn_box,
+                self.line_fields.event_box,
                 widgets.HBox(list(self.buttons.values()), layout=wrap),
             ],
             layout=widgets.Layout(border="1px solid #d0d7de", padding="4px", margin="4px 0"),
         )
         self._show_params("number")
+        self._show_kind("burn")
+
+    def _show_kind(self, kind: str) -> None:
+        burn = kind == "burn"
+        for box in (self._formula_box, self._burn_box, self.form["formula"]):
+            box.layout.display = None if burn else "none"
+        self.line_fields.show_kind(kind)
 
     def _show_params(self, formula: str) -> None:
         for key, box in self._param_boxes.items():
@@ -405,6 +568,10 @@ class BudgetBuilder(Panel):
 
     def _form_line(self) -> dict[str, Any]:
         """The editor's line as a recipe (SI), or DomainError saying what is wrong with it."""
+        kind = self.line_fields.kind.value
+        label = self.form["label"].value
+        if kind != "burn":
+            return line_recipe({"label": label, **self.line_fields.event()}, len(self.budget.lines))
         formula = self.form["formula"].value
         params = {}
         for p in FORMULAS[formula].parameters:
@@ -418,13 +585,21 @@ class BudgetBuilder(Panel):
             raise DomainError(
                 f"a line's own specific impulse must be > 0 s, or 0 for the budget's (got {isp:g} s)"
             )
-        line = _recipe(
+        burn = self.line_fields.burn()
+        if self.line_fields.from_policy.value:
+            if burn.get("category") is None:
+                raise DomainError("a margin from the policy needs a margin category: choose one")
+            margin_fraction = None
+        else:
+            margin_fraction = margin * percent
+        line = line_recipe(
             {
-                "label": self.form["label"].value,
+                "label": label,
                 "formula": formula,
                 "params": params,
-                "margin": margin * percent,
+                "margin": margin_fraction,
                 "isp": isp or None,
+                **burn,
             },
             len(self.budget.lines),
         )
@@ -436,53 +611,49 @@ class BudgetBuilder(Panel):
             return
         line = recipes(self.budget)[index]
         self.form["label"].value = line["label"]
+        kind = line.get("kind", "burn")
+        self.line_fields.fill(line)
+        if kind != "burn":
+            return
         self.form["formula"].value = line["formula"]
         for p in FORMULAS[line["formula"]].parameters:
             value = line["params"][p.key]
             self._param_widgets[line["formula"]][p.key].value = (
                 value if p.scale is None else round(value / p.scale, 9)
             )
-        self.form["margin"].value = round(line["margin"] / percent, 9)
+        margin = self.budget.lines[index].margin
+        self.form["margin"].value = round(margin / percent, 9)
         self.form["isp"].value = line["isp"] or 0.0
 
     def _edit(self, action: str) -> None:
-        """Apply an editor button to a copy of the budget; problems go to the message line, never raise."""
+        """Apply an editor button to the budget's lines; problems go to the message line, never raise."""
         selected = self.controls["lines"].value
+        lines = recipes(self.budget)
         try:
-            budget = Budget.from_dict(self.budget.to_dict())
             if action == "add":
-                line = self._form_line()
-                budget.add(line["label"], _line_dv(line, len(budget.lines)), **self._burn(line))
-                selected = len(budget.lines) - 1
-                budget = _with_recipes(budget, [*recipes(budget)[:-1], line], [selected])
-            elif selected is None or not 0 <= selected < len(budget.lines):
+                lines.append(self._form_line())
+                selected = len(lines) - 1
+            elif selected is None or not 0 <= selected < len(lines):
                 raise DomainError("select a line first")
             elif action == "update":
-                line = self._form_line()
-                budget.replace(selected, line["label"], _line_dv(line, selected), **self._burn(line))
-                lines = recipes(budget)
-                lines[selected] = line
-                budget = _with_recipes(budget, lines, [selected])
+                lines[selected] = self._form_line()
             elif action == "remove":
-                budget.remove(selected)
-                selected = min(selected, len(budget.lines) - 1) if budget.lines else None
+                lines.pop(selected)
+                selected = min(selected, len(lines) - 1) if lines else None
             elif action in ("up", "down"):
                 target = selected - 1 if action == "up" else selected + 1
-                if 0 <= target < len(budget.lines):
-                    budget.move(selected, target)
+                if 0 <= target < len(lines):
+                    lines.insert(target, lines.pop(selected))
                     selected = target
         except (DomainError, ValueError) as err:
             self._show_message(str(err))
             return
-        self.set(lines=recipes(budget))
+        self.set(lines=lines)
+        if self.error:
+            return
         select = self.controls["lines"]
         if selected is not None and 0 <= selected < len(select.options):
             select.value = selected
-
-    @staticmethod
-    def _burn(line: dict[str, Any]) -> dict[str, Any]:
-        """A recipe's exhaust velocity and margin as :meth:`Budget.add` takes them."""
-        return {"ve": None if line["isp"] is None else line["isp"] * G0, "margin": line["margin"]}
 
     # ------------------------------------------------------------------ files and exports
     def _build_exports(self) -> None:
@@ -550,13 +721,7 @@ class BudgetBuilder(Panel):
                 self.file_status.value = f"saved {escape_html(path)}"
             else:
                 budget = Budget.load(path)
-                self.set(
-                    name=budget.name,
-                    m0=budget.m0,
-                    isp=_round_si(budget.ve / G0),
-                    dry_mass=budget.dry_mass or 0.0,
-                    lines=recipes(budget),
-                )
+                self.set(**values_of(budget))
                 self.file_status.value = f"loaded {escape_html(path)}" if not self.error else ""
         except (DomainError, ValueError, OSError) as err:
             self.file_status.value = ""
@@ -567,4 +732,4 @@ class BudgetBuilder(Panel):
         fig = self._figure(7.6, 3.6)
         self.axes = fig.add_subplot()
         self.axes.set_title("vehicle mass, line by line", fontsize="medium", pad=22)  # above the legend
-        fig.subplots_adjust(left=0.09, right=0.985, bottom=0.3, top=0.84)
+        fig.subplots_adjust(left=0.105, right=0.985, bottom=0.3, top=0.84)
