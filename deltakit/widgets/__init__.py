@@ -25,6 +25,7 @@ _PANELS = {
     "PropellantTrade": "propellant",
     "TransferTrade": "transfer",
     "EscapeFlyby": "escape",
+    "LaunchDatePicker": "launch_dates",
     "BudgetBuilder": "budget_builder",
     "FormulaSheet": "formula_sheet",
 }
@@ -41,6 +42,7 @@ __all__ = [
     "EscapeFlyby",
     "FormulaSheet",
     "InputError",
+    "LaunchDatePicker",
     "Panel",
     "PropellantTrade",
     "TransferTrade",
