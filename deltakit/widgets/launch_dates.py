@@ -330,7 +330,7 @@ class LaunchDatePicker(Panel):
         contours: str = "C3",
     ) -> None:
         super().__init__()
-        self._asked: dict[str, Any] = {}
+        self._follow_notes: dict[str, str] = {}
         asked_dates = {"departure": departure, "arrival": arrival}
         self._choose_cheapest = {name for name, value in asked_dates.items() if value is None}
         self._map: _WindowMap | None = None
@@ -338,6 +338,7 @@ class LaunchDatePicker(Panel):
         self._colorbar: Any = None
         self._shown_fill: tuple[int, str] | None = None
         self._pair: Any = None
+        self._case: _Case | None = None
         #: The budget the button adds pairs to: made empty for the panel's tank (New budget starts again).
         self.budget: Budget | None = None
         self._control("origin", choice("from", list(PLANETS), "Earth", width="160px"))
@@ -443,24 +444,29 @@ class LaunchDatePicker(Panel):
         return _Plan(float(days * day), lambda: setattr(widget, "value", date), note)
 
     # ------------------------------------------------------------------ what follows what
-    def _apply(self, si_values: dict[str, Any], **kwargs: Any) -> bool:
-        self._asked = si_values
-        try:
-            return super()._apply(si_values, **kwargs)
-        finally:
-            self._asked = {}
+    def _apply(self, si_values: dict[str, Any], *, touched: set[str], **kwargs: Any) -> bool:
+        # the dates' follow-ups are merged here, over the constructor's own values of the controls
+        # that follow (the base's hook would keep those), and their notes go through the hook
+        followed, self._follow_notes = self._dates_follow(si_values, touched)
+        return super()._apply({**si_values, **followed}, touched=touched, **kwargs)
 
     def _follow_up(self, touched: set[str]) -> tuple[dict[str, Any], dict[str, str]]:
+        notes, self._follow_notes = self._follow_notes, {}
+        return {}, notes
+
+    def _dates_follow(
+        self, given: dict[str, Any], touched: set[str]
+    ) -> tuple[dict[str, Any], dict[str, str]]:
         """Ranges widen to hold a date chosen beyond them; dates outside new ranges go to the cheapest."""
         try:
-            asked = {name: self._plan(name, value).si for name, value in self._asked.items()}
+            asked = {name: self._plan(name, value).si for name, value in given.items()}
         except DomainError:
             return {}, {}  # the plan of set() raises the message itself
         candidate = {**self.values, **asked}
         followed: dict[str, Any] = {}
         notes: dict[str, str] = {}
-        if touched == {"origin"} and candidate["origin"] == candidate["target"]:
-            followed["target"] = self.controls["origin"].value
+        if touched == {"origin"} and candidate["origin"] == candidate["target"] and self._case is not None:
+            followed["target"] = self._case.origin  # the origin of the last view: the two swap
             notes["target"] = f"target set to {followed['target']}: origin and target must differ."
             candidate.update(followed)
         for name in _CHOSEN:
@@ -486,7 +492,7 @@ class LaunchDatePicker(Panel):
             try:
                 window = _window_map(_case_of(candidate))
             except (DomainError, ArithmeticError, ValueError):
-                return followed, notes  # compute shows what is wrong with the case
+                return {k: v for k, v in followed.items() if k not in touched}, notes  # compute says why
             if window.cheapest is not None:
                 i, j = window.cheapest
                 if free == ["arrival"]:  # the cheapest arrival for the departure given
@@ -509,7 +515,7 @@ class LaunchDatePicker(Panel):
                         f"{' and '.join(free)} moved to the map's cheapest pair (least delta-v, both burns): "
                         "the chosen dates lay outside the new ranges."
                     )
-        return followed, notes
+        return {k: v for k, v in followed.items() if k not in touched}, notes
 
     # ------------------------------------------------------------------ the case
     @classmethod
@@ -746,12 +752,12 @@ class LaunchDatePicker(Panel):
     def _draw_map(self, window: _WindowMap, case: _Case, contours: str) -> None:
         """The map's fill, time-of-flight lines, affordable region and colour bar, drawn anew."""
         ax = self.axes
+        if self._colorbar is not None:  # before its fill: removing a colour bar asks its fill for the axes
+            self._colorbar.remove()
+            self._colorbar = None
         for artist in self._map_artists:
             artist.remove()
         self._map_artists = []
-        if self._colorbar is not None:
-            self._colorbar.remove()
-            self._colorbar = None
         x = _AXIS_J2000 + window.departures / day
         y = _AXIS_J2000 + window.arrivals / day
         c3_shown = contours == "C3"
@@ -784,10 +790,8 @@ class LaunchDatePicker(Panel):
                         linewidths=0.8,
                         linestyles=":",
                     )
-                    self._map_artists += [
-                        lines,
-                        *ax.clabel(lines, fmt="%.0f", fontsize="x-small", inline=True),
-                    ]
+                    ax.clabel(lines, fmt="%.0f", fontsize="x-small", inline=True)  # removed with the lines
+                    self._map_artists.append(lines)
             mask = window.affordable.T.astype(float)
             if mask.any():
                 hatch = ax.contourf(x, y, mask, levels=[0.5, 1.5], colors="none", hatches=["///"], zorder=2)
