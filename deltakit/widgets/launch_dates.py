@@ -691,7 +691,7 @@ class LaunchDatePicker(Panel):
         from matplotlib.patches import Patch
 
         fig = self._figure(7.6, 5.6)
-        self.axes = ax = fig.add_axes((0.11, 0.1, 0.72, 0.72))
+        self.axes = ax = fig.add_axes((0.14, 0.1, 0.69, 0.72))
         self._colorbar_rect = (0.855, 0.1, 0.025, 0.72)
         (self._cheapest,) = ax.plot(
             [],
