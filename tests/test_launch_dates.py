@@ -337,3 +337,20 @@ def test_figures_of_the_default_and_stressed_cases(artifacts):
     assert panel.error
     panel.figure.savefig(artifacts / "launch-dates-refused-click.png")
     panel.close()
+
+
+def test_a_map_drawn_again_is_the_map_of_a_fresh_panel(monkeypatch):
+    """The colour bar and fill are updated in place: after several maps the picture is a fresh panel's."""
+    monkeypatch.setenv("DELTAKIT_FIGURES", "static")
+    panel = LaunchDatePicker()
+    panel.set(contours="total delta-v")
+    panel.set(contours="C3", wet_mass=20_000.0)
+    panel.set(wet_mass=LaunchDatePicker().values["wet_mass"], contours="total delta-v")
+    fresh = LaunchDatePicker(contours="total delta-v")
+    for figure in (panel.figure, fresh.figure):
+        figure.canvas.draw()
+    np.testing.assert_array_equal(
+        np.asarray(panel.figure.canvas.buffer_rgba()), np.asarray(fresh.figure.canvas.buffer_rgba())
+    )
+    panel.close()
+    fresh.close()

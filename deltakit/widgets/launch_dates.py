@@ -752,9 +752,6 @@ class LaunchDatePicker(Panel):
     def _draw_map(self, window: _WindowMap, case: _Case, contours: str) -> None:
         """The map's fill, time-of-flight lines, affordable region and colour bar, drawn anew."""
         ax = self.axes
-        if self._colorbar is not None:  # before its fill: removing a colour bar asks its fill for the axes
-            self._colorbar.remove()
-            self._colorbar = None
         for artist in self._map_artists:
             artist.remove()
         self._map_artists = []
@@ -771,8 +768,7 @@ class LaunchDatePicker(Panel):
             if levels is not None:
                 fill = ax.contourf(x, y, field.T / scale, levels=levels, cmap="cividis", alpha=0.85, zorder=1)
                 self._map_artists.append(fill)
-                cax = self.figure.add_axes(self._colorbar_rect)
-                self._colorbar = self.figure.colorbar(fill, cax=cax, label=label)
+                self._show_colorbar(fill, label)
             tof = window.time_of_flight / day
             finite = tof[np.isfinite(tof)]
             if finite.size >= 4:
@@ -815,6 +811,18 @@ class LaunchDatePicker(Panel):
             fontsize="medium",
             pad=24,
         )
+
+    def _show_colorbar(self, fill: Any, label: str) -> None:
+        """The colour bar of the new fill: made once, then given the fill's levels (no new axes each map)."""
+        bar = self._colorbar
+        if bar is None:
+            self._colorbar = self.figure.colorbar(
+                fill, cax=self.figure.add_axes(self._colorbar_rect), label=label
+            )
+            return
+        bar.boundaries, bar.values = fill._levels, fill.cvalues  # what Colorbar takes from a fill when made
+        bar.update_normal(fill)
+        bar.set_label(label)
 
     def draw(self, computed: Computed, changed: set[str]) -> None:
         d = computed.drawing
