@@ -57,7 +57,7 @@ from ..errors import DomainError
 from ..plotting._style import COLOURS, style_axes
 from ..units import day, deg, km, km2_per_s2, km_per_s
 from ._base import Computed, InputError, Panel, _Plan, choice, fmt, number, radius_at, slider, toggle
-from ._format import html_table
+from ._format import html_notes, html_table
 
 __all__ = ["CONTOURS", "LaunchDatePicker", "PLANETS"]
 
@@ -599,15 +599,18 @@ class LaunchDatePicker(Panel):
         return Computed(results, tuple(notes), drawing)
 
     def _show_readouts(self, computed: Computed) -> None:
-        super()._show_readouts(computed)
+        """The base's readouts with the chosen dates as their first rows (one table)."""
         r = computed.results
-        dates = html_table(
-            [
-                ("departure_date", "departure", f"{r['departure_date']} (12:00 TDB)"),
-                ("arrival_date", "arrival", f"{r['arrival_date']} (12:00 TDB)"),
-            ]
-        )
-        self.readouts.value = dates + self.readouts.value
+        rows = [
+            ("departure_date", "departure", f"{r['departure_date']} (12:00 TDB)"),
+            ("arrival_date", "arrival", f"{r['arrival_date']} (12:00 TDB)"),
+            *(
+                (key, label, fmt(r[key], scale, unit))
+                for key, (label, scale, unit) in self.readout_spec.items()
+                if key in r
+            ),
+        ]
+        self.readouts.value = html_table(rows) + html_notes([*self._adjusted.values(), *computed.notes])
 
     # ------------------------------------------------------------------ the pair and the budget
     @property
@@ -635,7 +638,12 @@ class LaunchDatePicker(Panel):
 
     def _build_budget_box(self) -> None:
         self.budget_buttons = {
-            "add": widgets.Button(description="Add pair to budget", button_style="primary", icon="plus"),
+            "add": widgets.Button(
+                description="Add pair to budget",
+                button_style="primary",
+                icon="plus",
+                layout=widgets.Layout(width="190px"),
+            ),
             "clear": widgets.Button(description="New budget", icon="file"),
         }
         for key, button in self.budget_buttons.items():
