@@ -245,6 +245,7 @@ def test_picking_the_target_as_origin_swaps_the_two(panel):
         ({"arrival_apoapsis_altitude": 100e3}, "below the arrival periapsis altitude", "apoapsis"),
         ({"parking_altitude": 0.0}, "above the surface of Earth", "parking"),
         ({"departure": "2028-12-01", "departure_first": "2028-12-10"}, "lies outside the map's", "departure"),
+        ({"arrival_first": "2028-01-01", "arrival_last": "2028-03-01"}, "no transfer on this map", "arrival"),
     ],
 )
 def test_invalid_input_shows_a_message_and_keeps_the_view(panel, bad, words, control):
@@ -354,3 +355,15 @@ def test_a_map_drawn_again_is_the_map_of_a_fresh_panel(monkeypatch):
     )
     panel.close()
     fresh.close()
+
+
+def test_an_emptied_date_box_is_a_message_and_a_date_again_restores_the_view():
+    panel = LaunchDatePicker()
+    before = panel.results
+    picker = panel.controls["departure_first"]
+    first = picker.value
+    picker.value = None  # the browser's date box cleared
+    assert panel.error == "first departure date is empty: give a date." and panel.results == before
+    picker.value = first
+    assert panel.error == "" and panel.results == before
+    panel.close()

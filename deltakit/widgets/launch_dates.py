@@ -206,6 +206,12 @@ def _case_of(values: Mapping[str, Any]) -> _Case:
                 f"{_date_text(values[first])}.",
                 last,
             )
+    if not values["arrival_last"] > values["departure_first"]:
+        raise InputError(
+            f"last arrival date {_date_text(values['arrival_last'])} is not after the first departure date "
+            f"{_date_text(values['departure_first'])}: no transfer on this map.",
+            "arrival_last",
+        )
     origin_body, target_body = BODIES[origin], BODIES[target]
     orbits = (
         ("parking_altitude", "parking orbit altitude", origin_body),
@@ -447,7 +453,10 @@ class LaunchDatePicker(Panel):
     def _apply(self, si_values: dict[str, Any], *, touched: set[str], **kwargs: Any) -> bool:
         # the dates' follow-ups are merged here, over the constructor's own values of the controls
         # that follow (the base's hook would keep those), and their notes go through the hook
-        followed, self._follow_notes = self._dates_follow(si_values, touched)
+        try:
+            followed, self._follow_notes = self._dates_follow(si_values, touched)
+        except (TypeError, ValueError, OverflowError):  # an empty date box: compute names it
+            followed, self._follow_notes = {}, {}
         return super()._apply({**si_values, **followed}, touched=touched, **kwargs)
 
     def _follow_up(self, touched: set[str]) -> tuple[dict[str, Any], dict[str, str]]:
@@ -777,6 +786,8 @@ class LaunchDatePicker(Panel):
                 fill = ax.contourf(x, y, field.T / scale, levels=levels, cmap="cividis", alpha=0.85, zorder=1)
                 self._map_artists.append(fill)
                 self._show_colorbar(fill, label)
+            elif self._colorbar is not None:  # nothing to fill (no transfer on the map): no scale either
+                self._colorbar.ax.set_visible(False)
             tof = window.time_of_flight / day
             finite = tof[np.isfinite(tof)]
             if finite.size >= 4:
@@ -828,6 +839,7 @@ class LaunchDatePicker(Panel):
                 fill, cax=self.figure.add_axes(self._colorbar_rect), label=label
             )
             return
+        bar.ax.set_visible(True)
         bar.boundaries, bar.values = fill._levels, fill.cvalues  # what Colorbar takes from a fill when made
         bar.update_normal(fill)
         bar.set_label(label)
