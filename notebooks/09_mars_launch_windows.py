@@ -177,9 +177,60 @@ assert cheapest["2026"] < cheapest["2028"] < vehicle.propellant_mass < cheapest[
 # %% [markdown]
 # ## 4 · Choosing dates in a panel
 #
-# *(Placeholder: a date-choosing panel comes here in a later release. It will show this map with the
-# region the tank affords, let the analyst slide or click a pair of dates, read that pair with
-# `dk.transfer_pair`, and book it with `dk.add_transfer`, the two functions used above.)*
+# `LaunchDatePicker` puts the same map in a panel: the bodies, the two date ranges, both orbits and the
+# tank are its controls; the map (C3 or the delta-v of both burns, with the pairs the tank affords
+# hatched) is computed once for them, on a 40 x 40 grid of whole days. The two sliders (or a click on
+# the map) choose a pair of dates, and the readouts are `dk.transfer_pair` at exactly that pair: one
+# Lambert solution per step. *Add pair to budget* books the pair's two burns in the panel's own
+# `.budget` through `dk.add_transfer`; `.add_to(budget)` books them in any budget. Dates are whole days
+# at 12:00 TDB; `.values` holds them as TDB seconds past J2000.
+#
+# Here it opens on the 2028 window with the Ochrewing orbiter; the chosen pair starts at the cheapest
+# pair of its map. Then we move it to the pair of section 3.
+
+# %%
+from deltakit.widgets import LaunchDatePicker
+
+first_departure, first_arrival = (np.datetime64(d) for d in OPPORTUNITIES["2028"])
+dates = LaunchDatePicker(
+    departure_first=first_departure,
+    departure_last=first_departure + 148,
+    arrival_first=first_arrival,
+    arrival_last=first_arrival + 328,
+    parking_altitude=mission.periapsis_altitude,
+    arrival_periapsis_altitude=demo.OCHREWING_CAPTURE_ALTITUDES[0],
+    arrival_apoapsis_altitude=demo.OCHREWING_CAPTURE_ALTITUDES[1],
+    wet_mass=vehicle.wet_mass,
+    propellant=vehicle.propellant_mass,
+    isp=vehicle.isp,
+)
+opening = dates.results
+print(f"the panel opens on {opening['departure_date']} -> {opening['arrival_date']}: "
+      f"{opening['propellant']:,.0f} kg, {opening['affordable_pairs']} pairs it affords")  # fmt: skip
+dates.set(departure=pair.departure, arrival=pair.arrival)  # section 3's pair, by its calendar days
+chosen = dates.results
+print(f"section 3's pair in the panel: C3 {chosen['c3'] / km2_per_s2:.2f} km²/s², "
+      f"{chosen['propellant']:,.0f} kg needed, {chosen['propellant_left']:,.0f} kg left")  # fmt: skip
+dates
+
+# %% [markdown]
+# Claims, checked: the readouts are `dk.transfer_pair` at the panel's dates (12:00 TDB of the calendar
+# days of section 3's pair, not midnight UTC: within a few kilograms of section 3); the pair the panel
+# opened on is the cheapest of its map, no dearer than section 3's 2-day map allows for; the booked
+# lines are the readouts' burns.
+
+# %%
+values = dates.values
+same = dk.transfer_pair(
+    "Earth", "Mars", values["departure"], values["arrival"], parking=parking, arrival_orbit=capture,
+    vehicle=(vehicle.wet_mass, vehicle.exhaust_velocity, vehicle.propellant_mass),
+)  # fmt: skip
+assert chosen["c3"] == float(same.c3) and chosen["total_dv"] == float(same.total_dv)
+assert abs(chosen["propellant"] - float(pair.propellant)) < 10.0
+assert opening["propellant"] <= float(pair.propellant) + 10.0 and opening["affordable_pairs"] > 0
+booked = dates.add_to(dk.Budget(vehicle.wet_mass, vehicle.exhaust_velocity, name="Ochrewing, from the panel"))
+assert [line.dv for line in booked.lines] == [chosen["escape_dv"], chosen["capture_dv"]]
+booked.to_frame()
 
 # %% [markdown]
 # ## 5 · The formulas behind the map

@@ -691,6 +691,7 @@ def test_constructor_value_beyond_a_slider_widens_it(panel_name):
         "EscapeFlyby": ("flyby_dv", 4000.0),
         "PlaneChangeExplorer": ("target_raan", 400 * deg),  # a node past a full turn: the same plane
         "DispersionView": ("isp_spread", 12.0),
+        "LaunchDatePicker": ("arrival", 947_548_800.0),  # 2030-01-10 12:00 TDB: the arrival range widens
     }[panel_name]
     panel = cls(**{name: far})
     assert panel.values[name] == pytest.approx(far) and panel.error == ""
