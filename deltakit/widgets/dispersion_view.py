@@ -126,6 +126,7 @@ class DispersionView(Panel):
 
     readout_spec: ClassVar[dict[str, tuple[str, float, str]]] = {
         "probability_closes": ("probability the budget closes (every tank)", percent, "%"),
+        "tank_holds": ("probability the tank shown holds", percent, "%"),
         "nominal_left": ("propellant left, as booked (tank shown)", 1.0, "kg"),
         "left_p1": ("  P1 of the samples", 1.0, "kg"),
         "left_p10": ("  P10", 1.0, "kg"),
@@ -526,16 +527,14 @@ class DispersionView(Panel):
         top = ax.get_ylim()[1]
         for row, (line, label, level, value) in enumerate(zip(art.percentiles, art.labels, LEVELS, marks)):
             line.set_xdata([value, value])
-            text = f"P{level:g}: {value:,.1f}"
+            text = f"P{level:g}"  # its value is in the readouts: a short label is cheap to redraw
             where = (value, top * (0.99 - 0.075 * (row % 4)))
             if label.get_text() != text or label.get_position() != where:
                 label.set_position(where)
                 label.set_text(text)
-        title = (
-            f"{escape_mathtext(_short(one_line(results['tank']), 26))}: holds in "
-            f"{100.0 * results['tank_holds']:.1f} %\nthe whole budget closes in "
-            f"{100.0 * results['probability_closes']:.1f} %"
-        )
+        # the probabilities are readouts; the title changes only with the tank, so a slider step
+        # redraws no long text
+        title = f"propellant left in {escape_mathtext(_short(one_line(results['tank']), 26))}"
         if self._title.get_text() != title:
             self._title.set_text(title)
         if moved:
@@ -570,9 +569,9 @@ class DispersionView(Panel):
         )
         for k, (bar, label) in enumerate(zip(self._bars, self._bar_labels)):
             share, more = (
-                (round(100.0 * ranking[k][1], 1), ranking[k][2]) if k < len(ranking) else (0.0, True)
-            )
-            text = f"{share:.1f} %" if k < len(ranking) else ""
+                (float(round(100.0 * ranking[k][1])), ranking[k][2]) if k < len(ranking) else (0.0, True)
+            )  # whole percents: what a ranking needs, and a bar and its label move only when one changes
+            text = f"{share:.0f} %" if k < len(ranking) else ""
             colour = COLOURS["hohmann"] if more else COLOURS["burn"]
             if self._shown_bars[k] == (share, colour, text):
                 continue  # unchanged at the shown precision: not touched, so not drawn again
