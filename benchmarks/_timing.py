@@ -24,12 +24,27 @@ does not meet is beyond this machine and is reported, not failed.
 
 from __future__ import annotations
 
+import resource
 import statistics
 import time
 from collections.abc import Callable, Sequence
 from typing import Any
 
-__all__ = ["Verdicts", "median_time", "spread"]
+__all__ = ["Verdicts", "median_time", "peak_rss", "spread"]
+
+
+def peak_rss() -> int:
+    """This process's peak resident size in bytes (``VmHWM`` on Linux).
+
+    ``ru_maxrss`` is not used where ``/proc`` is there: Linux carries the
+    parent's peak across the fork and exec that start an interpreter, so a
+    script started from a large process would report the parent's memory.
+    """
+    try:
+        with open("/proc/self/status") as status:
+            return next(int(line.split()[1]) for line in status if line.startswith("VmHWM")) * 1024
+    except (OSError, StopIteration):
+        return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024  # KiB on Linux, bytes on macOS
 
 
 def median_time(function: Callable[..., Any], *args: Any, repeats: int = 7) -> float:

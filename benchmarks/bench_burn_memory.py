@@ -5,7 +5,7 @@ for a smaller run; 10^8 needs about 10 GB free). Each measurement runs in its ow
 interpreter: it makes the inputs (periapsis radius, eccentricity, burn point
 and delta-v arrays: 3.2 GB at 10^8), builds the Conic (with scalar ``mu``,
 ``argp``, ``inc`` and ``raan``), burns, and reports its peak resident size
-(``ru_maxrss``, everything the process ever held: interpreter, inputs, the
+(``VmHWM``, everything the process ever held: interpreter, inputs, the
 Conic's own copies of the arrays it was given, temporaries, outputs).
 
 Target (issue 15): peak RSS at most 1.5x the bytes of the inputs plus the
@@ -27,7 +27,7 @@ from _timing import Verdicts
 TARGET = 1.5
 
 _CHILD = """
-import resource, sys
+import sys
 import numpy as np
 import deltakit as dk
 from deltakit.constants import EARTH
@@ -41,7 +41,8 @@ inputs = rp.nbytes + e.nbytes + nu.nbytes + dv.nbytes
 out = dk.burn_prograde(dk.Conic(rp, e, EARTH.mu, 0.3, 0.9, 1.2), nu, dv)
 outputs = sum(np.asarray(x).nbytes for x in (out.after.rp, out.after.e, out.after.argp, out.nu_after,
                                              out.energy_change, out.dv))
-peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024
+with open("/proc/self/status") as status:  # own peak (VmHWM): ru_maxrss would hold the parent's too
+    peak = next(int(line.split()[1]) for line in status if line.startswith("VmHWM")) * 1024
 print(inputs, outputs, peak)
 """
 

@@ -41,7 +41,6 @@ from __future__ import annotations
 
 import argparse
 import os
-import resource
 import sys
 import time
 from pathlib import Path
@@ -50,7 +49,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
 import dask
 import numpy as np
-from _timing import Verdicts, spread
+from _timing import Verdicts, peak_rss, spread
 
 import deltakit as dk
 import deltakit.sweeps as sweep_module
@@ -71,10 +70,6 @@ def axes_for(cases: float) -> dict[str, np.ndarray]:
         "ra": np.linspace(EARTH.radius + 2000e3, 400000e3, n_ra),
         "nu": np.linspace(0.0, 2.0 * np.pi, N_NU, endpoint=False),
     }
-
-
-def peak_rss() -> int:
-    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024  # Linux reports KiB
 
 
 # ---------------------------------------------------------------------- the floor, written here

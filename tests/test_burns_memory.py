@@ -21,7 +21,10 @@ import deltakit as dk
 from deltakit.constants import EARTH
 
 def peak():
-    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024
+    # this process's own peak (VmHWM): ru_maxrss would also hold the parent's peak, which Linux
+    # carries across the fork and exec that started this interpreter
+    with open("/proc/self/status") as status:
+        return next(int(line.split()[1]) for line in status if line.startswith("VmHWM")) * 1024
 
 def own_bytes(array, inputs):
     array = np.asarray(array)
