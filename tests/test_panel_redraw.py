@@ -28,7 +28,7 @@ from hypothesis.extra.numpy import arrays
 from PIL import Image
 
 import deltakit as dk
-from deltakit.widgets._png import encode_png
+from deltakit.widgets._png import FrameEncoder, encode_png
 
 SLIDER_PANELS = [name for name in dk.widgets.PANELS if name not in ("BudgetBuilder", "FormulaSheet")]
 
@@ -63,6 +63,44 @@ def test_png_decodes_to_the_same_pixels(pixels):
     if pixels.shape[2] == 4 and (pixels[..., 3] == 255).all():
         pixels = pixels[..., :3]  # an opaque picture is sent as RGB
     np.testing.assert_array_equal(back, pixels)
+
+
+@given(
+    st.integers(1, 50),
+    st.integers(1, 30),
+    st.sampled_from([3, 4]),
+    st.integers(1, 9),
+    st.lists(st.tuples(st.integers(0, 49), st.integers(0, 29), st.integers(0, 255)), max_size=6),
+    st.integers(0, 2**32 - 1),
+)
+def test_frames_reusing_unchanged_bands_decode_to_each_frame(height, width, channels, band, edits, seed):
+    # a sequence of frames through one FrameEncoder: each PNG must decode to its own frame, and
+    # only the bands holding an edited pixel are deflated again (the zlib stream is checked by
+    # Pillow's decoder, its Adler-32 included)
+    rng = np.random.default_rng(seed)
+    pixels = rng.integers(0, 4, (height, width, channels), dtype=np.uint8)
+    if channels == 4:
+        pixels[..., 3] = 255 if seed % 2 else rng.integers(0, 256, (height, width), dtype=np.uint8)
+    frames = FrameEncoder(band=band)
+    touched: set[int] | None = None  # rows edited since the last frame; None: a first frame
+    for _ in range(3):
+        expected = pixels[..., :3] if channels == 4 and (pixels[..., 3] == 255).all() else pixels
+        np.testing.assert_array_equal(np.asarray(Image.open(io.BytesIO(frames.encode(pixels)))), expected)
+        bands = -(-height // band) if touched is None else len({r // band for r in touched})
+        assert frames.deflated_bands == bands
+        before = pixels.copy()
+        for r, c, value in edits:
+            if r < height and c < width:
+                pixels[r, c, 0] = value
+        touched = set(np.flatnonzero((pixels != before).any(axis=(1, 2))).tolist())  # rows that differ
+
+
+def test_frames_of_a_new_size_start_again():
+    frames = FrameEncoder(band=4)
+    frames.encode(np.zeros((8, 5, 3), np.uint8))
+    bigger = np.full((12, 5, 3), 7, np.uint8)
+    assert decode(frames.encode(bigger))[..., :3].tolist() == bigger.tolist()
+    assert frames.deflated_bands == 3
 
 
 def test_png_of_a_panel_is_its_canvas(explorer_static):

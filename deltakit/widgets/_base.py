@@ -249,9 +249,29 @@ class Panel(widgets.VBox):
         """
         rights = [max(ax.get_position().x1 for ax in column) + room for column in columns[:-1]]
         edges = [0.0, *rights, 1.0]
+        bottom = self._above_figure_legends([ax for column in columns for ax in column])
         for column, x0, x1 in zip(columns, edges[:-1], edges[1:]):
             for ax in column:
-                self.view.cell(ax, (x0, 0.0, x1, 1.0))
+                self.view.cell(ax, (x0, bottom, x1, 1.0))
+
+    def _above_figure_legends(self, axes: list[Any]) -> float:
+        """Where cells may start (figure fraction): above a figure legend laid out below every plot.
+
+        A legend of the whole figure under the plots (PropellantTrade's) is
+        then left out of a cell's redraw. 0 when there is none, or when some
+        plot's furniture (tick labels, axis label) reaches down to it.
+        """
+        figure = self.figure
+        if not figure.legends:
+            return 0.0
+        renderer = figure.canvas.get_renderer()
+        height = figure.bbox.height
+        lowest = min(ax.get_tightbbox(renderer).y0 for ax in axes)
+        tops = [legend.get_window_extent(renderer).y1 for legend in figure.legends]
+        top = max(tops)
+        if top + 4.0 > lowest:  # four pixels apart at least: antialiased edges stay on their side
+            return 0.0
+        return 0.5 * (top + lowest) / height
 
     def _finish(
         self,

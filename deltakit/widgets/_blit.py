@@ -11,8 +11,9 @@ same order, as a full blit would make it, so the picture is identical
 slider that moves one plot leaves the others' pixels alone.
 
 Where an artist draws: inside its clip box when it is clipped (an axes'
-curves), else inside its window extent (a legend, a marker at the frame),
-with a few pixels of room for antialiasing.
+curves; a pixel of room for Agg's rounding of the box), else inside its
+window extent (a legend, a marker at the frame), with a few pixels of room
+for antialiasing.
 
 Cells: a panel may say which part of the figure holds all of an axes'
 furniture (frame, ticks, tick labels, axis labels, title, legend). When only
@@ -53,10 +54,19 @@ class Blitter:
         self.cells: dict[int, tuple[Any, list[tuple[float, float, float, float]]]] = {}
         self._scratch: Any = None
 
-    def add(self, *artists: Any) -> None:
-        self.artists.extend(artists)
+    def add(self, *artists: Any, before: Any = None) -> None:
+        """Animate ``artists``, drawn in this order after those added before (or just ``before`` one)."""
+        at = len(self.artists) if before is None else self.artists.index(before)
+        self.artists[at:at] = artists
         for artist in artists:
             artist.set_animated(True)
+
+    def release(self, *artists: Any) -> None:
+        """Stop animating ``artists`` (about to be removed from the figure)."""
+        gone = {id(artist) for artist in artists}
+        self.artists[:] = [artist for artist in self.artists if id(artist) not in gone]
+        for key in gone:
+            self._drawn.pop(key, None)
 
     def _buffer(self) -> np.ndarray:
         return np.asarray(self.figure.canvas.get_renderer().buffer_rgba())
@@ -127,6 +137,9 @@ class Blitter:
         if not artist.get_visible():
             return None
         box = artist.get_clip_box() if artist.get_clip_on() else None
+        # a clipped artist cannot spill past its clip box, which Agg rounds to whole pixels: one
+        # pixel of room, so a curve's axes does not reach the title a few pixels above it
+        room = 1 if box is not None else _ROOM
         if box is None:
             box = artist.get_window_extent(self.figure.canvas.get_renderer())
         x0, y0, x1, y1 = box.extents
@@ -135,15 +148,17 @@ class Blitter:
         height, width = (
             self._background.shape[:2] if self._background is not None else self._buffer().shape[:2]
         )
-        r0, r1 = height - math.ceil(y1) - _ROOM, height - math.floor(y0) + _ROOM
-        c0, c1 = math.floor(x0) - _ROOM, math.ceil(x1) + _ROOM
+        r0, r1 = height - math.ceil(y1) - room, height - math.floor(y0) + room
+        c0, c1 = math.floor(x0) - room, math.ceil(x1) + room
         return max(r0, 0), min(r1, height), max(c0, 0), min(c1, width)
 
-    def _draw(self, artists: list[Any]) -> None:
+    def _draw(self, artists: list[Any], places: dict[int, Region | None] | None = None) -> None:
+        """Draw ``artists`` in order and keep where each drew (``places``: already known, by id)."""
         for artist in artists:
             if artist.get_visible():
                 (artist.axes or self.figure).draw_artist(artist)
-            self._drawn[id(artist)] = self._region(artist)
+            key = id(artist)
+            self._drawn[key] = places[key] if places is not None and key in places else self._region(artist)
             artist.stale = False
 
     def update(self) -> bool:
@@ -151,8 +166,18 @@ class Blitter:
         changed = [artist for artist in self.artists if artist.stale]
         if not changed:
             return False
-        now = {id(artist): self._region(artist) for artist in self.artists}
-        regions = [r for a in changed for r in (self._drawn.get(id(a)), now[id(a)]) if r is not None]
+        # where each artist's pixels are: a changed one where it was drawn and where it will be, an
+        # unchanged one where it was drawn (it has not moved: its place is not asked again, which
+        # spares a text layout per artist and step)
+        places: dict[int, list[Region]] = {}
+        current: dict[int, Region | None] = {}
+        for artist in self.artists:
+            drawn = self._drawn.get(id(artist))
+            now = self._region(artist) if artist.stale or id(artist) not in self._drawn else drawn
+            current[id(artist)] = now
+            places[id(artist)] = [r for r in {drawn, now} if r is not None]
+        # each place once: the curves of one axes share its clip box, copied back and tested once
+        regions = list(dict.fromkeys(r for a in changed for r in places[id(a)]))
         chosen = {id(a) for a in changed}
         growing = True
         while growing:
@@ -160,13 +185,13 @@ class Blitter:
             for artist in self.artists:
                 if id(artist) in chosen:
                     continue
-                own = [r for r in (self._drawn.get(id(artist)), now[id(artist)]) if r is not None]
+                own = places[id(artist)]
                 if any(_overlap(mine, other) for mine in own for other in regions):
                     chosen.add(id(artist))
-                    regions += own
+                    regions += [r for r in own if r not in regions]
                     growing = True
         buffer = self._buffer()
         for r0, r1, c0, c1 in regions:
             buffer[r0:r1, c0:c1] = self._background[r0:r1, c0:c1]
-        self._draw([artist for artist in self.artists if id(artist) in chosen])
+        self._draw([artist for artist in self.artists if id(artist) in chosen], current)
         return True

@@ -11,7 +11,9 @@ everything else (blitting), and a full draw happens only when something else
 changed (:meth:`FigureView.invalidate`: axis limits, a body or an orbit typed
 in a number box). Pictures are PNG-encoded by :func:`~deltakit.widgets._png.encode_png`
 (unfiltered rows, zlib level 1: exact, about 4x faster than Pillow's default);
-the live canvas sends only the pixels that changed (ipympl's diff frames).
+the live canvas sends only the pixels that changed (ipympl's diff frames), the
+static view a whole PNG whose unchanged bands of rows keep their compressed
+bytes (:class:`~deltakit.widgets._png.FrameEncoder`).
 
 The notebook's own matplotlib set-up is left alone: importing ipympl would
 switch the global backend (its package ``__init__`` calls ``matplotlib.use``),
@@ -32,7 +34,7 @@ from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
 from ._blit import Blitter
-from ._png import encode_png
+from ._png import FrameEncoder, encode_png
 
 __all__ = ["FigureView", "figure_mode"]
 
@@ -134,6 +136,7 @@ class FigureView:
         self.figure = figure
         self.mode = mode or figure_mode()
         self._blitter = Blitter(figure)
+        self._frames = FrameEncoder()  # the static view's PNGs: only changed rows deflated again
         self._stale = True
         self._stale_axes: list[Any] = []
         #: Full draws and cell redraws so far (tests and benchmarks read them).
@@ -159,14 +162,22 @@ class FigureView:
         self.widget.add_class("deltakit-figure")
         figure.canvas.mpl_connect("draw_event", self._after_full_draw)
 
-    def animate(self, *artists: Any) -> None:
+    def animate(self, *artists: Any, before: Any = None) -> None:
         """Mark artists that slider steps move; they are redrawn alone over a saved background.
+
+        They are drawn in the order given, after the animated artists marked
+        earlier, or just before the animated artist ``before`` (their z-order
+        among the animated ones).
 
         After every full draw (ours, a resize, a request from the browser) the
         background is saved again and the animated artists drawn on top, so
         they are never missing from the picture.
         """
-        self._blitter.add(*artists)
+        self._blitter.add(*artists, before=before)
+
+    def release(self, *artists: Any) -> None:
+        """Stop animating ``artists`` (call it before removing them from the figure)."""
+        self._blitter.release(*artists)
 
     def cell(self, axes: Any, *rects: tuple[float, float, float, float]) -> None:
         """Say which part of the figure (rectangles in figure fractions) holds all of ``axes``' furniture.
@@ -225,7 +236,7 @@ class FigureView:
 
     def png(self) -> bytes:
         """PNG bytes of what the canvas holds now (exact, fast: it is sent often)."""
-        return encode_png(np.asarray(self.figure.canvas.buffer_rgba()))
+        return self._frames.encode(np.asarray(self.figure.canvas.buffer_rgba()))
 
     def close(self) -> None:
         """Let go of the figure: close the canvas widget (and ipympl's toolbar) and drop the artists."""
