@@ -817,6 +817,70 @@ def disperse(
     >>> bool(p.sel(percentile=10) < nominal < p.sel(percentile=90))
     True
     """
+    return _fly(
+        budget,
+        samples=samples,
+        seed=seed,
+        isp=isp,
+        dry_mass=dry_mass,
+        stage_mass=stage_mass,
+        dv=dv,
+        loss=loss,
+        margins=margins,
+        percentiles=percentiles,
+        chunks=chunks,
+    ).dataset
+
+
+class _Flown:
+    """A dispersion's arrays before they become a Dataset: what a panel reads at every step.
+
+    :func:`disperse` returns ``_fly(...).dataset``; a panel keeps the arrays
+    and builds the Dataset (a few milliseconds of xarray for a small run)
+    only when asked, once.
+    """
+
+    def __init__(self, spec: _Spec, budget: Any, levels: np.ndarray, outputs: dict, summary: dict) -> None:
+        self._parts = (spec, budget, levels, outputs, summary)
+        self._dataset: Any = None
+        order = summary["order"]
+        self.systems: list[str] = list(spec.system_names)
+        #: causes largest share first, as the Dataset's ``cause`` coordinate
+        self.causes: list[str] = [spec.causes[c][0] for c in order]
+        #: (cause, target) as the Dataset's ``correlation``: targets are the systems, then all tanks
+        self.correlation: np.ndarray = summary["correlation"][order]
+        #: (system, quantity, percentile) and (system, quantity), quantities as ``QUANTITIES``
+        self.percentiles: np.ndarray = summary["percentiles"]
+        self.nominal: np.ndarray = summary["nominal"]
+        self.levels = levels
+        self.probability_closes = float(summary["probability"])
+        self.clipped = int(summary["clipped"])
+        #: (system, sample): the propellant left above what the lines need (< 0: short)
+        self.propellant_margin: np.ndarray = outputs["propellant_margin"]
+
+    @property
+    def dataset(self) -> Any:
+        """The xarray.Dataset :func:`disperse` returns (built on first use, then the same object)."""
+        if self._dataset is None:
+            self._dataset = _dataset(*self._parts)
+        return self._dataset
+
+
+def _fly(
+    budget: Any,
+    *,
+    samples: int,
+    seed: int,
+    isp: Any = None,
+    dry_mass: Any = None,
+    stage_mass: Any = None,
+    dv: Any = None,
+    loss: Any = None,
+    margins: bool = True,
+    percentiles: Any = (1, 10, 50, 90, 99),
+    chunks: int | None = None,
+) -> _Flown:
+    """:func:`disperse`'s checks and run, its arrays kept as they are (see :class:`_Flown`)."""
     from .budget import Budget
 
     if not isinstance(budget, Budget):
@@ -844,7 +908,7 @@ def disperse(
     else:
         outputs, summary = _run_in_memory(spec, samples, levels)
     summary["nominal"] = _nominal(spec)
-    return _dataset(spec, budget, levels, outputs, summary)
+    return _Flown(spec, budget, levels, outputs, summary)
 
 
 def _finish(spec: _Spec, moments: tuple, clipped: int, percentiles: np.ndarray) -> dict[str, Any]:

@@ -46,6 +46,7 @@ from ..plotting._style import COLOURS, style_axes
 from ..plotting.dispersion import ALL_TANKS, plot_propellant_left
 from ..units import percent
 from ._base import Computed, InputError, Panel, _Plan, choice, follow_limits, number, slider, toggle
+from ._stamped import stamped, stamped_text
 
 __all__ = ["DispersionView"]
 
@@ -148,9 +149,9 @@ class DispersionView(Panel):
         path: str = "dispersion-report",
     ) -> None:
         super().__init__()
-        #: The budget shown (a copy; the last valid one) and its dispersion (an xarray.Dataset).
+        #: The budget shown (a copy; the last valid one); its dispersion is :attr:`dispersion`.
         self.budget: Budget | None = None
-        self.dispersion: Any = None
+        self._flown: Any = None
         self._budget_data: dict[str, Any] = {}
         self._control(
             "budget",
@@ -274,6 +275,15 @@ class DispersionView(Panel):
                 out["stage_mass"] = Normal(values["dry_mass_spread"], relative=True)
         return out
 
+    @property
+    def dispersion(self) -> Any:
+        """The dispersion shown (an xarray.Dataset, as :func:`deltakit.disperse` returns), or None.
+
+        Built from the run's arrays when first asked (a slider step needs only
+        the arrays), then the same object until the case changes.
+        """
+        return None if self._flown is None else self._flown.dataset
+
     def spreads(self) -> dict[str, Any]:
         """The keyword arguments of :func:`deltakit.disperse` the panel uses now (spreads and margins).
 
@@ -288,7 +298,7 @@ class DispersionView(Panel):
     @classmethod
     def compute(cls, values: Mapping[str, Any]) -> Computed:
         """Disperse the budget of ``values`` (SI, keyed like the controls) and summarise one tank."""
-        from ..dispersions import disperse
+        from ..dispersions import QUANTITIES, _fly
 
         for name, label, unit, high in (
             ("dv_spread", "delta-v spread", "%", 1.0),
@@ -320,7 +330,7 @@ class DispersionView(Panel):
             )
         margins = values["margins"] == MARGIN_CHOICES[0]
         try:
-            ds = disperse(
+            flown = _fly(  # disperse() without its Dataset: built only when the view or a report asks
                 budget,
                 samples=samples,
                 seed=seed,
@@ -332,57 +342,58 @@ class DispersionView(Panel):
             raise
         except DomainError as err:
             raise InputError(f"the dispersion of this budget: {err}", "budget") from None
-        margin = ds["propellant_margin"]
-        tracked = [s for s in names if np.isfinite(float(margin.sel(system=s)[0]))]
+        margin = np.asarray(flown.propellant_margin)  # (system, sample)
+        row = {s: k for k, s in enumerate(flown.systems)}
+        at = QUANTITIES.index("propellant_margin")
+        tracked = [s for s in names if np.isfinite(margin[row[s], 0])]
         if not tracked:
             raise InputError(
                 "no tank of this budget is tracked: give the budget a dry mass (or every load) to count "
                 "what is left.",
                 "budget",
             )
-        low = {
-            s: float(ds["percentiles"].sel(system=s, quantity="propellant_margin", percentile=1.0))
-            for s in tracked
-        }
+        p1 = list(flown.levels).index(1.0)
+        low = {s: float(flown.percentiles[row[s], at, p1]) for s in tracked}
         tightest = min(tracked, key=lambda s: low[s])
         shown = tightest if tank == TIGHTEST else tank
         if shown == ALL_TANKS:
-            left = np.asarray(margin.sel(system=tracked).sum("system"))
-            nominal = float(ds["nominal"].sel(system=tracked, quantity="propellant_margin").sum())
+            left = margin[[row[s] for s in tracked]].sum(axis=0)
+            nominal = float(sum(flown.nominal[row[s], at] for s in tracked))
         elif shown not in tracked:
             raise InputError(
                 f"tank shown {shown!r} holds what the start mass leaves, which this budget does not track.",
                 "tank",
             )
         else:
-            left = np.asarray(margin.sel(system=shown))
-            nominal = float(ds["nominal"].sel(system=shown, quantity="propellant_margin"))
+            left = margin[row[shown]]
+            nominal = float(flown.nominal[row[shown], at])
         marks = np.percentile(left, LEVELS)
         results: dict[str, Any] = {
-            "probability_closes": float(ds["probability_closes"]),
+            "probability_closes": flown.probability_closes,
             "tank": shown,
             "nominal_left": nominal,
             **{f"left_p{level:g}": float(value) for level, value in zip(LEVELS, marks)},
             "tank_holds": float(np.mean(left >= 0.0)),
             "tightest": tightest,
         }
-        target = shown if shown in list(ds.target.values) else ALL_TANKS
-        correlation = np.nan_to_num(np.asarray(ds["correlation"].sel(target=target)), nan=0.0)
+        target = shown if shown in flown.systems else ALL_TANKS
+        column = flown.systems.index(target) if target in flown.systems else len(flown.systems)
+        correlation = np.nan_to_num(flown.correlation[:, column], nan=0.0)
         share = correlation**2
         order = np.argsort(-share, kind="stable")
-        ranking = [(str(ds.cause.values[i]), float(share[i]), bool(correlation[i] >= 0.0)) for i in order]
+        ranking = [(flown.causes[i], float(share[i]), bool(correlation[i] >= 0.0)) for i in order]
         notes = [
             f"Tank shown: {shown} (the tightest at P1: {tightest})."
             if tank == TIGHTEST
             else f"Tank shown: {shown}."
         ]
-        clipped = int(ds.attrs.get("clipped_dv_samples", 0))
+        clipped = flown.clipped
         if clipped:
             notes.append(f"{clipped:,} burn draws fell below zero delta-v and were flown as zero.")
         if ranking:
             notes.append(f"Largest cause of the spread: {ranking[0][0]} ({100.0 * ranking[0][1]:.0f} %).")
         drawing = {
-            "dataset": ds,
+            "flown": flown,
             "budget": budget,
             "left": left,
             "marks": marks,
@@ -401,6 +412,8 @@ class DispersionView(Panel):
     def _first_draw(self, ds: Any) -> None:
         """Make the artists once (the plotting helper's histogram and style), then only move them."""
         left = plot_propellant_left(self.axes, ds, bins=BINS, marks=LEVELS)
+        # the percentile labels follow their marks at every step: stamped from a picture of their glyphs
+        left.labels[:] = [stamped(label) for label in left.labels]
         self._left = left
         self.twin = left.twin
         self._title = self.axes.title
@@ -442,7 +455,8 @@ class DispersionView(Panel):
         # the causes' names are texts beside the bars, not tick labels: a new order is then a blit,
         # never a redraw of the plot
         self._names = [
-            self.ranking_axes.text(
+            stamped_text(
+                self.ranking_axes,
                 -0.035,
                 yy,
                 "",
@@ -454,7 +468,9 @@ class DispersionView(Panel):
             for yy in y
         ]
         self._bar_labels = [
-            self.ranking_axes.text(0.0, yy, "", va="center", fontsize="x-small", color=COLOURS["total"])
+            stamped_text(
+                self.ranking_axes, 0.0, yy, "", va="center", fontsize="x-small", color=COLOURS["total"]
+            )
             for yy in y
         ]
         self.ranking_axes.set_xlim(0.0, 112.0)
@@ -491,8 +507,7 @@ class DispersionView(Panel):
         self._columns([self.axes, self.twin], [self.ranking_axes], room=0.075)
 
     def draw(self, computed: Computed, changed: set[str]) -> None:
-        ds = computed.drawing["dataset"]
-        self.dispersion = ds
+        self._flown = computed.drawing["flown"]
         self.budget = computed.drawing["budget"]
         results = computed.results
         tank = self.controls["tank"]
@@ -503,7 +518,7 @@ class DispersionView(Panel):
                 tank.options = options
                 tank.value = value if value in options else TIGHTEST
         if self._left is None:
-            self._first_draw(ds)
+            self._first_draw(self.dispersion)
             self.view.invalidate()
         self._move_histogram(computed.drawing["left"], computed.drawing["marks"], results)
         self._move_ranking(computed.drawing["ranking"])
