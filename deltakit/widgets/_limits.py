@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 from typing import Any
 
-__all__ = ["FARTHEST", "follow_limits", "follow_square", "nice_ceiling"]
+__all__ = ["COARSE", "FARTHEST", "follow_limits", "follow_square", "nice_ceiling"]
 
 #: The largest distance (m) a panel draws, about 6700 au: beyond any orbit around one of the bodies
 #: of :mod:`deltakit.constants`; a larger radius or altitude is refused with a message.
@@ -28,36 +28,43 @@ BALANCE = 0.25
 #: Rungs of the ladder of round values within each power of ten (a view is at most twice the data it
 #: was fitted to, plus PAD).
 _RUNGS = (1.0, 1.5, 2.0, 3.0, 5.0, 10.0)
+#: A coarser ladder for data that a slider sweeps over decades (a view is at most 2.5 times the data):
+#: fewer rungs to cross, so fewer redraws of the axes.
+COARSE = (1.0, 2.0, 5.0, 10.0)
 
 
-def nice_ceiling(x: float) -> float:
+def nice_ceiling(x: float, rungs: tuple[float, ...] = _RUNGS) -> float:
     """The smallest round value (1, 1.5, 2, 3 or 5 times a power of ten) that is >= ``x`` (> 0).
+
+    ``rungs`` are the round values within a power of ten (from 1 to 10).
 
     >>> nice_ceiling(0.46), nice_ceiling(2.0), nice_ceiling(5.01), nice_ceiling(2.6e4)
     (0.5, 2.0, 10.0, 30000.0)
+    >>> nice_ceiling(2.6e4, COARSE)
+    50000.0
     """
     power = 10.0 ** math.floor(math.log10(x))
-    for rung in _RUNGS:
+    for rung in rungs:
         if x <= rung * power * (1.0 + 1e-12):
             return rung * power
     return 10.0 * power  # pragma: no cover - the last rung always holds
 
 
-def _lower_rung(level: float) -> float:
+def _lower_rung(level: float, rungs: tuple[float, ...] = _RUNGS) -> float:
     """The rung below ``level`` on the ladder of round values."""
     power = 10.0 ** math.floor(math.log10(level) + 1e-12)
     rung = level / power
-    below = max((r for r in _RUNGS if r < rung - 1e-9), default=None)
+    below = max((r for r in rungs if r < rung - 1e-9), default=None)
     return below * power if below is not None else 0.5 * power
 
 
-def _side(current: float, needed: float, force: bool) -> float:
+def _side(current: float, needed: float, force: bool, rungs: tuple[float, ...] = _RUNGS) -> float:
     """One end of a zero-based view: the rung to use for data reaching ``needed`` (> 0)."""
     if not needed > 0.0:
         return current if current > 0.0 and not force else 1.0
-    if not force and current >= needed and needed > SPARE * _lower_rung(current):
+    if not force and current >= needed and needed > SPARE * _lower_rung(current, rungs):
         return current
-    return nice_ceiling(needed * (1.0 + PAD))
+    return nice_ceiling(needed * (1.0 + PAD), rungs)
 
 
 def follow_limits(
@@ -69,6 +76,7 @@ def follow_limits(
     include_zero: bool = True,
     force: bool = False,
     headroom: float = 0.3,
+    rungs: tuple[float, ...] = _RUNGS,
 ) -> bool:
     """Keep data spanning [low, high] in view of ``axis``; True if the limits changed.
 
@@ -77,7 +85,8 @@ def follow_limits(
     above the data; it moves only when the data leave it or a lower round
     value would hold them with room to spare. Without, the view is the data
     with ``headroom`` beyond each end, moved when the data leave it or fill
-    less than a third of it.
+    less than a third of it. ``rungs`` are the round values of the ladder
+    within a power of ten (:data:`COARSE`: fewer, for data swept over decades).
 
     Examples
     --------
@@ -99,8 +108,10 @@ def follow_limits(
         # data come back near zero: values crossing zero do not walk down the ladder of small rungs
         keep_top = current_high > 0.0 and not force and high > -BALANCE * size
         keep_bottom = current_low < 0.0 and not force and low < BALANCE * size
-        top = _side(current_high, max(high, BALANCE * size), force) if high > 0.0 or keep_top else 0.0
-        bottom = -_side(-current_low, max(-low, BALANCE * size), force) if low < 0.0 or keep_bottom else 0.0
+        top = _side(current_high, max(high, BALANCE * size), force, rungs) if high > 0.0 or keep_top else 0.0
+        bottom = (
+            -_side(-current_low, max(-low, BALANCE * size), force, rungs) if low < 0.0 or keep_bottom else 0.0
+        )
         if top == bottom == 0.0:
             top = current_high if current_high > 0.0 and not force else 1.0
         want_low, want_high = bottom, top

@@ -43,6 +43,7 @@ from ._base import (
     number,
     slider,
 )
+from ._limits import COARSE
 
 __all__ = ["DIRECTIONS", "VIEW_RADII", "BurnPointExplorer"]
 
@@ -324,7 +325,8 @@ class BurnPointExplorer(Panel):
         if follow_square(self.orbit_axes, self._orbit_extent(), centre=centre, base=base, force=new_orbit):
             self.view.invalidate(self.orbit_axes)
         art["curve"].set_data(*d["curve"])
-        if follow_limits(self.energy_axes, *d["energy_range"], force=new_orbit):
+        # the energies scale with the delta-v, swept over a decade: a coarse ladder, crossed less often
+        if follow_limits(self.energy_axes, *d["energy_range"], force=new_orbit, rungs=COARSE):
             self.view.invalidate(self.energy_axes)
         art["apoapsis"].set_data([180.0], [r["energy_change_at_apoapsis"] / MJ_per_kg])
         shown_nu = math.degrees(math.remainder(nu, 2 * math.pi))

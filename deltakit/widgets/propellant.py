@@ -34,6 +34,7 @@ from ..propulsion import burn_energy, exhaust_velocity, propulsive_efficiency, r
 from ..twobody import circular_speed
 from ..units import km_per_s, percent
 from ._base import Computed, InputError, Panel, follow_limits, number, slider, toggle
+from ._limits import COARSE
 
 __all__ = ["PropellantTrade"]
 
@@ -348,7 +349,8 @@ class PropellantTrade(Panel):
         widths = d["bars"]
         for bar, width in zip(self._bars, widths):
             bar.set_width(width)
-        if follow_limits(self.energy_axes, min(widths), max(widths), axis="x", force=first):
+        # the energies grow with the square of the speed: a coarse ladder of limits, crossed less often
+        if follow_limits(self.energy_axes, min(widths), max(widths), axis="x", force=first, rungs=COARSE):
             self.view.invalidate(self.energy_axes)
         if first or changed - {"speed"}:  # a new vehicle or engine: the share curve (animated) and its axis
             share = d["share_curve"]
