@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import datetime as dt
 import html
+import io
 import json
 import re
 
@@ -38,6 +39,12 @@ def panel():
     panel = LaunchDatePicker()
     yield panel
     panel.close()
+
+
+def decode(data: bytes) -> np.ndarray:
+    from PIL import Image
+
+    return np.asarray(Image.open(io.BytesIO(data)).convert("RGBA"))
 
 
 def _pair_of(values):
@@ -284,9 +291,39 @@ def test_slider_steps_reuse_the_map_and_only_blit(panel):
     assert _window_map.cache_info().misses == misses  # no map computed for the five steps
     assert view.full_draws == draws  # and none drawn: the marker moved by blitting
     wet_mass = panel.values["wet_mass"]
-    panel.set(wet_mass=8000.0)  # a new tank: a new map and a full draw
-    assert _window_map.cache_info().misses == misses + 1 and view.full_draws > draws
-    panel.set(wet_mass=wet_mass)
+    panel.set(wet_mass=8000.0)  # a new tank: a new map, the same fill: only the affordable region moves
+    assert _window_map.cache_info().misses == misses + 1 and view.full_draws == draws
+    picture = decode(view.widget.value)
+    view.invalidate()
+    view.refresh()  # the long way round: the same picture
+    np.testing.assert_array_equal(picture, decode(view.widget.value))
+    panel.set(contours="total delta-v")  # another field: drawn anew
+    assert view.full_draws > draws + 1
+    panel.set(wet_mass=wet_mass, contours="C3")
+
+
+def test_the_hatched_region_is_the_pairs_the_tank_affords(panel):
+    # the region's outline comes from contourpy directly (as matplotlib's contourf would draw it):
+    # every pair of the grid deep inside the affordable set is inside it, every pair deep outside
+    # is outside, for tanks from small to large
+    from scipy.ndimage import binary_erosion
+
+    from deltakit.widgets.launch_dates import _AXIS_J2000, _window_map
+
+    first = panel.values["wet_mass"]
+    for wet_mass in (0.9 * first, 0.95 * first, first):  # from a wide region to a small one
+        panel.set(wet_mass=wet_mass)
+        window = _window_map(panel._case)
+        x = _AXIS_J2000 + window.departures / 86400.0
+        y = _AXIS_J2000 + window.arrivals / 86400.0
+        X, Y = np.meshgrid(x, y, indexing="ij")
+        points = np.column_stack([X.ravel(), Y.ravel()])
+        inside = panel._hatch.get_path().contains_points(points).reshape(X.shape)
+        mask = window.affordable
+        assert mask.any() and (~mask).any(), wet_mass
+        deep_in, deep_out = binary_erosion(mask), binary_erosion(~mask)
+        assert inside[deep_in].all() and not inside[deep_out].any(), wet_mass
+    panel.set(wet_mass=first)
 
 
 # ---------------------------------------------------------------------- budgets

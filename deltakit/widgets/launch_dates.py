@@ -58,6 +58,7 @@ from ..plotting._style import COLOURS, style_axes
 from ..units import day, deg, km, km2_per_s2, km_per_s
 from ._base import Computed, InputError, Panel, _Plan, choice, fmt, number, radius_at, slider, toggle
 from ._format import html_notes, html_table
+from ._stamped import stamped
 
 __all__ = ["CONTOURS", "LaunchDatePicker", "PLANETS"]
 
@@ -341,8 +342,11 @@ class LaunchDatePicker(Panel):
         self._choose_cheapest = {name for name, value in asked_dates.items() if value is None}
         self._map: _WindowMap | None = None
         self._map_artists: list[Any] = []
+        self._tof_labels: list[Any] = []  # the time-of-flight lines' labels (animated, stamped)
         self._colorbar: Any = None
         self._shown_fill: tuple[int, str] | None = None
+        self._shown_layers: tuple[np.ndarray, ...] | None = None  # what the map's fill and lines show
+        self._shown_names: tuple[str, str] | None = None  # ... and the planets its labels name
         self._pair: Any = None
         self._case: _Case | None = None
         #: The budget the button adds pairs to: made empty for the panel's tank (New budget starts again).
@@ -763,15 +767,74 @@ class LaunchDatePicker(Panel):
             handlelength=1.8,
             columnspacing=1.0,
         )
-        self.view.animate(self._cross_x, self._cross_y, self._marker)
+        import matplotlib
+        from matplotlib.patches import PathPatch
+        from matplotlib.path import Path as MplPath
+
+        # the region the tank affords, hatched and outlined: two artists made once, their outlines
+        # set for each map; animated (in z-order, under the cheapest star and the chosen pair) so a
+        # new tank redraws them alone over the map
+        empty = MplPath(np.zeros((0, 2)))
+        self._hatch = PathPatch(
+            empty, facecolor="none", edgecolor=COLOURS["after"], hatch="///", linewidth=0.0, zorder=2
+        )
+        self._outline = PathPatch(  # joined and capped as a contour line is
+            empty,
+            facecolor="none",
+            edgecolor=COLOURS["after"],
+            linewidth=2.0,
+            zorder=3,
+            joinstyle=matplotlib.rcParams["lines.solid_joinstyle"],
+            capstyle=matplotlib.rcParams["lines.solid_capstyle"],
+        )
+        for patch in (self._hatch, self._outline):
+            ax.add_patch(patch)
+        self.view.animate(
+            self._hatch, self._outline, self._cheapest, self._cross_x, self._cross_y, self._marker
+        )
         fig.canvas.mpl_connect("button_press_event", self._on_click)
 
+    def _layers(self, window: _WindowMap, contours: str) -> tuple[np.ndarray, ...]:
+        """What the fill and the time-of-flight lines show: equal layers, the same picture under them."""
+        field = window.c3 if contours == "C3" else window.total_dv
+        return (window.departures, window.arrivals, field, window.time_of_flight)
+
+    def _same_layers(self, layers: tuple[np.ndarray, ...]) -> bool:
+        shown = self._shown_layers
+        return shown is not None and all(
+            a.shape == b.shape and np.array_equal(a, b, equal_nan=True) for a, b in zip(shown, layers)
+        )
+
+    def _draw_affordable(self, window: _WindowMap) -> None:
+        """The hatched region the tank affords and its outline (animated artists, moved in place)."""
+        import contourpy
+        from matplotlib.path import Path as MplPath
+
+        x = _AXIS_J2000 + window.departures / day
+        y = _AXIS_J2000 + window.arrivals / day
+        mask = window.affordable.T.astype(float)
+        if mask.any() and mask.shape[0] >= 2 and mask.shape[1] >= 2:
+            # the outlines matplotlib's contourf and contour would draw (the same contourpy generator)
+            generator = contourpy.contour_generator(
+                x, y, mask, fill_type="OuterCode", line_type="SeparateCode"
+            )
+            points, codes = generator.filled(0.5, 1.5)
+            region = MplPath(np.concatenate(points), np.concatenate(codes)) if points else None
+            points, codes = generator.lines(0.5)
+            edge = MplPath(np.concatenate(points), np.concatenate(codes)) if points else None
+        else:
+            region = edge = None
+        empty = MplPath(np.zeros((0, 2)))
+        self._hatch.set_path(region or empty)
+        self._outline.set_path(edge or empty)
+
     def _draw_map(self, window: _WindowMap, case: _Case, contours: str) -> None:
-        """The map's fill, time-of-flight lines, affordable region and colour bar, drawn anew."""
+        """The map's fill, time-of-flight lines and colour bar, drawn anew."""
         ax = self.axes
+        self.view.release(*self._tof_labels)
         for artist in self._map_artists:
             artist.remove()
-        self._map_artists = []
+        self._map_artists, self._tof_labels = [], []
         x = _AXIS_J2000 + window.departures / day
         y = _AXIS_J2000 + window.arrivals / day
         c3_shown = contours == "C3"
@@ -806,15 +869,11 @@ class LaunchDatePicker(Panel):
                         linestyles=":",
                     )
                     ax.clabel(lines, fmt="%.0f", fontsize="x-small", inline=True)  # removed with the lines
+                    # the labels stay above the hatched region, as their z-order says: animated after
+                    # it, and stamped (a blit over the map draws them again at little cost)
+                    lines.labelTexts[:] = self._tof_labels = [stamped(text) for text in lines.labelTexts]
+                    self.view.animate(*self._tof_labels, before=self._outline)
                     self._map_artists.append(lines)
-            mask = window.affordable.T.astype(float)
-            if mask.any():
-                hatch = ax.contourf(x, y, mask, levels=[0.5, 1.5], colors="none", hatches=["///"], zorder=2)
-                outline = ax.contour(
-                    x, y, mask, levels=[0.5], colors=COLOURS["after"], linewidths=2.0, zorder=3
-                )
-                hatch.set_edgecolor(COLOURS["after"])
-                self._map_artists += [hatch, outline]
         if window.cheapest is not None:
             i, j = window.cheapest
             self._cheapest.set_data([x[i]], [y[j]])
@@ -849,9 +908,20 @@ class LaunchDatePicker(Panel):
         window, case, pair = d["map"], d["case"], d["pair"]
         fill = (id(window), d["contours"])
         if fill != self._shown_fill or window is not self._map:
-            self._draw_map(window, case, d["contours"])
+            layers = self._layers(window, d["contours"])
+            if self._same_layers(layers) and self._shown_names == (case.origin, case.target):
+                # the same fill and lines (a new tank or vehicle mass): only the affordable region and
+                # the cheapest star move, blitted over the map as it is
+                x = _AXIS_J2000 + window.departures / day
+                y = _AXIS_J2000 + window.arrivals / day
+                cheapest = window.cheapest
+                self._cheapest.set_data(*(([x[cheapest[0]]], [y[cheapest[1]]]) if cheapest else ([], [])))
+            else:
+                self._draw_map(window, case, d["contours"])
+                self._shown_layers, self._shown_names = layers, (case.origin, case.target)
+                self.view.invalidate()
+            self._draw_affordable(window)
             self._map, self._shown_fill = window, fill
-            self.view.invalidate()
         self._case, self._pair = case, pair
         values = self.values
         x = _AXIS_J2000 + values["departure"] / day
@@ -886,7 +956,7 @@ class LaunchDatePicker(Panel):
         self.set(**chosen)
 
     def close(self) -> None:
-        self._map_artists = []
+        self._map_artists, self._tof_labels = [], []
         self._colorbar = None
         self._pair = None
         super().close()
