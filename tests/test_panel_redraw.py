@@ -18,6 +18,7 @@ import json
 import subprocess
 import sys
 import textwrap
+import zlib
 
 import ipywidgets as widgets
 import numpy as np
@@ -93,6 +94,17 @@ def test_frames_reusing_unchanged_bands_decode_to_each_frame(height, width, chan
             if r < height and c < width:
                 pixels[r, c, 0] = value
         touched = set(np.flatnonzero((pixels != before).any(axis=(1, 2))).tolist())  # rows that differ
+
+
+@given(st.binary(max_size=300), st.binary(max_size=300), st.integers(0, 300))
+def test_checksums_of_bands_join_as_the_checksum_of_the_rows(first, second, repeat):
+    # zlib's own Adler-32 of the joined bytes is the reference (RFC 1950); long strings (over
+    # 65521 bytes, the modulus) come from repeating the second part
+    from deltakit.widgets._png import _adler32_combine
+
+    second = second * repeat
+    joined = _adler32_combine(zlib.adler32(first), zlib.adler32(second), len(second))
+    assert joined == zlib.adler32(first + second)
 
 
 def test_frames_of_a_new_size_start_again():

@@ -106,7 +106,12 @@ def _live_canvas_class() -> type:
             self._last_buff = buff.copy()
             self._force_full = False
             self._png_is_old = False
-            return encode_png(output, keep_alpha=self._current_image_mode == "diff" or None)
+            if self._current_image_mode == "diff":
+                # the rows a step leaves alone are transparent in every diff frame: their deflated
+                # bands are reused, only the rows that changed are deflated
+                frames = self.__dict__.setdefault("_diff_frames", FrameEncoder())
+                return frames.encode(output, keep_alpha=True)
+            return encode_png(output)
 
         def send_binary(self, data: bytes) -> None:
             if self.syncing_data_url:  # no browser yet: keep a picture for a saved notebook's widget state
