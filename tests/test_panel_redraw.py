@@ -107,6 +107,17 @@ def test_checksums_of_bands_join_as_the_checksum_of_the_rows(first, second, repe
     assert joined == zlib.adler32(first + second)
 
 
+def test_frames_that_turn_transparent_and_back_keep_their_alpha_right():
+    frames = FrameEncoder(band=3)
+    pixels = np.full((7, 5, 4), 255, np.uint8)
+    for alpha in (255, 40, 255):
+        pixels[2, 1, 3] = alpha
+        back = np.asarray(Image.open(io.BytesIO(frames.encode(pixels))))
+        expected = pixels[..., :3] if alpha == 255 else pixels  # opaque frames are sent as RGB
+        np.testing.assert_array_equal(back, expected)
+        assert frames.deflated_bands == 3  # the channels changed: every band again
+
+
 def test_frames_of_a_new_size_start_again():
     frames = FrameEncoder(band=4)
     frames.encode(np.zeros((8, 5, 3), np.uint8))

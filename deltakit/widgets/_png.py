@@ -32,24 +32,32 @@ def _chunk(tag: bytes, data: bytes) -> bytes:
     return struct.pack(">I", len(data)) + tag + data + struct.pack(">I", zlib.crc32(tag + data))
 
 
-def _rgb_or_rgba(pixels: np.ndarray, keep_alpha: bool | None) -> np.ndarray:
-    """The pixels checked, without the alpha channel unless it is kept (None: kept when not opaque)."""
+def _checked(pixels: np.ndarray) -> np.ndarray:
     pixels = np.asarray(pixels)
     if pixels.dtype != np.uint8 or pixels.ndim != 3 or pixels.shape[2] not in (3, 4):
         raise ValueError(f"`pixels` must be uint8 of shape (h, w, 3 or 4), got {pixels.dtype} {pixels.shape}")
-    if pixels.shape[2] == 4:
-        if keep_alpha is None:
-            keep_alpha = not bool((pixels[:, :, 3] == 255).all())
-        if not keep_alpha:
-            # Pillow drops the alpha channel in one pass (about 0.7 ms for a panel's figure);
-            # NumPy's strided copy of three bytes in four takes about 3 ms
-            from PIL import Image
+    return pixels
 
-            height, width = pixels.shape[:2]
-            rgba = Image.frombuffer(
-                "RGBA", (width, height), np.ascontiguousarray(pixels), "raw", "RGBA", 0, 1
-            )
-            pixels = np.asarray(rgba.convert("RGB"))
+
+def _opaque(pixels: np.ndarray) -> bool:
+    return pixels.shape[2] == 3 or bool((pixels[:, :, 3] == 255).all())
+
+
+def _without_alpha(pixels: np.ndarray) -> np.ndarray:
+    """RGB of RGBA pixels. Pillow drops the channel in one pass (about 0.7 ms for a panel's figure);
+    NumPy's strided copy of three bytes in four takes about 3 ms."""
+    from PIL import Image
+
+    height, width = pixels.shape[:2]
+    rgba = Image.frombuffer("RGBA", (width, height), np.ascontiguousarray(pixels), "raw", "RGBA", 0, 1)
+    return np.asarray(rgba.convert("RGB"))
+
+
+def _rgb_or_rgba(pixels: np.ndarray, keep_alpha: bool | None) -> np.ndarray:
+    """The pixels checked, without the alpha channel unless it is kept (None: kept when not opaque)."""
+    pixels = _checked(pixels)
+    if pixels.shape[2] == 4 and not (not _opaque(pixels) if keep_alpha is None else keep_alpha):
+        pixels = _without_alpha(pixels)
     return pixels
 
 
@@ -130,28 +138,34 @@ class FrameEncoder:
         self.band = int(band)
         self.level = int(level)
         self._last: np.ndarray | None = None  # the last frame's pixel rows, as words to compare
+        self._kind: tuple = ()  # their shape, type and whether the alpha channel is dropped
         self._pieces: list[tuple[bytes, int, int]] = []  # per band: deflated bytes, Adler-32, length
         #: bands deflated by the last :meth:`encode` (all of them for a first or a resized frame)
         self.deflated_bands = 0
 
     def encode(self, pixels: np.ndarray, *, keep_alpha: bool | None = None) -> bytes:
         """PNG bytes of an (height, width, 3 or 4) uint8 image (see :func:`encode_png`)."""
-        pixels = np.ascontiguousarray(_rgb_or_rgba(pixels, keep_alpha))
+        pixels = np.ascontiguousarray(_checked(pixels))
         height, width, channels = pixels.shape
+        if channels == 4 and keep_alpha is None:
+            keep_alpha = not _opaque(pixels)
+        drop = channels == 4 and not keep_alpha  # the alpha channel dropped band by band, as needed
         flat = pixels.reshape(height, width * channels)
         words = flat.view(np.uint32) if flat.shape[1] % 4 == 0 else flat  # a quarter of the comparisons
         band = self.band
         starts = range(0, height, band)
-        if self._last is None or self._last.shape != words.shape or self._last.dtype != words.dtype:
+        kind = (words.shape, words.dtype, drop)
+        if self._last is None or self._kind != kind:
             dirty = [True] * len(starts)
             self._pieces = [(b"", 1, 0)] * len(starts)
         else:
             changed = (words != self._last).any(axis=1)
             dirty = [bool(changed[k : k + band].any()) for k in starts]
-        self._last = words.copy()
+        self._last, self._kind = words.copy(), kind
         for i, k in enumerate(starts):
             if dirty[i]:
-                rows = _rows(pixels[k : k + band])
+                part = pixels[k : k + band]
+                rows = _rows(_without_alpha(part) if drop else part)
                 deflate = zlib.compressobj(self.level, zlib.DEFLATED, -15)
                 piece = deflate.compress(rows.data) + deflate.flush(zlib.Z_SYNC_FLUSH)
                 self._pieces[i] = (piece, zlib.adler32(rows.data), rows.size)
@@ -160,7 +174,7 @@ class FrameEncoder:
         for _, adler, size in self._pieces:
             check = _adler32_combine(check, adler, size)
         idat = b"".join([_ZLIB_HEADER, *(piece for piece, _, _ in self._pieces), _LAST_BLOCK])
-        return _png(width, height, channels, idat + struct.pack(">I", check))
+        return _png(width, height, 3 if drop else channels, idat + struct.pack(">I", check))
 
 
 _ADLER_BASE = 65521  # the largest prime below 2**16 (RFC 1950, section 9)
