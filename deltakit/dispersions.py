@@ -55,6 +55,7 @@ Examples
 
 from __future__ import annotations
 
+import inspect
 import math
 import numbers
 from collections.abc import Mapping
@@ -817,19 +818,7 @@ def disperse(
     >>> bool(p.sel(percentile=10) < nominal < p.sel(percentile=90))
     True
     """
-    return _fly(
-        budget,
-        samples=samples,
-        seed=seed,
-        isp=isp,
-        dry_mass=dry_mass,
-        stage_mass=stage_mass,
-        dv=dv,
-        loss=loss,
-        margins=margins,
-        percentiles=percentiles,
-        chunks=chunks,
-    ).dataset
+    return _flown(locals()).dataset  # the arguments as given, by name
 
 
 class _Flown:
@@ -866,21 +855,17 @@ class _Flown:
         return self._dataset
 
 
-def _fly(
-    budget: Any,
-    *,
-    samples: int,
-    seed: int,
-    isp: Any = None,
-    dry_mass: Any = None,
-    stage_mass: Any = None,
-    dv: Any = None,
-    loss: Any = None,
-    margins: bool = True,
-    percentiles: Any = (1, 10, 50, 90, 99),
-    chunks: int | None = None,
-) -> _Flown:
-    """:func:`disperse`'s checks and run, its arrays kept as they are (see :class:`_Flown`)."""
+def _fly(budget: Any, **options: Any) -> _Flown:
+    """:func:`disperse` with its keywords and defaults, its arrays kept as they are (see :class:`_Flown`)."""
+    bound = inspect.signature(disperse).bind(budget, **options)
+    bound.apply_defaults()
+    return _flown(bound.arguments)
+
+
+def _flown(arguments: Mapping[str, Any]) -> _Flown:
+    """:func:`disperse`'s checks and run for its arguments by name."""
+    budget, samples, seed = arguments["budget"], arguments["samples"], arguments["seed"]
+    margins, percentiles, chunks = arguments["margins"], arguments["percentiles"], arguments["chunks"]
     from .budget import Budget
 
     if not isinstance(budget, Budget):
@@ -899,7 +884,8 @@ def _fly(
     ):
         raise DomainError(f"`chunks` must be a whole number of samples >= 1, got {chunks!r}")
     samples, seed = int(samples), int(seed)
-    spec = _specify(budget, seed, isp, dry_mass, stage_mass, dv, loss, margins)
+    spreads = (arguments[name] for name in ("isp", "dry_mass", "stage_mass", "dv", "loss"))
+    spec = _specify(budget, seed, *spreads, margins)
     spec.meta["margins"] = margins
     lazy = chunks is not None or samples > EAGER_LIMIT
     if lazy:

@@ -19,6 +19,13 @@ from matplotlib.figure import Figure
 
 from deltakit.widgets._stamped import StampedText, stamped, stamped_text
 
+#: Labels as the panels draw them: a percentile mark, a bar's share, a cause's name (right-aligned).
+LABELS = [
+    ("P10", {"fontsize": "small", "va": "top"}),
+    ("83 %", {"fontsize": "x-small", "va": "center", "color": "#1f3b6f"}),
+    ("dv: line 3 (capture)", {"fontsize": "small", "ha": "right", "va": "center"}),
+]
+
 
 def _picture(x: float, text: str, stamp: bool, **style) -> np.ndarray:
     fig = Figure(figsize=(3.0, 1.5), dpi=100)
@@ -36,14 +43,7 @@ def _ink(picture: np.ndarray) -> np.ndarray:
 
 
 @pytest.mark.parametrize("x", [0.3, 0.3137, 0.5521, 0.71])
-@pytest.mark.parametrize(
-    "text, style",
-    [
-        ("P10", {"fontsize": "small", "va": "top"}),
-        ("83 %", {"fontsize": "x-small", "va": "center", "color": "#1f3b6f"}),
-        ("dv: line 3 (capture)", {"fontsize": "small", "ha": "right", "va": "center"}),
-    ],
-)
+@pytest.mark.parametrize("text, style", LABELS)
 def test_a_stamped_label_draws_where_and_as_the_text_does(x, text, style):
     plain, stamp = _picture(x, text, False, **style), _picture(x, text, True, **style)
     inside = np.s_[20:-20, 35:-35]  # within the axes frame: only the label has ink there
@@ -61,14 +61,7 @@ def test_a_stamped_label_draws_where_and_as_the_text_does(x, text, style):
 
 
 @pytest.mark.parametrize("x", [0.25, 0.3, 0.625])  # anchors on whole pixels: 90, 102, 180 px from the left
-@pytest.mark.parametrize(
-    "text, style",
-    [
-        ("P10", {"fontsize": "small", "va": "top"}),
-        ("83 %", {"fontsize": "x-small", "va": "center", "color": "#1f3b6f"}),
-        ("dv: line 3 (capture)", {"fontsize": "small", "ha": "right", "va": "center"}),
-    ],
-)
+@pytest.mark.parametrize("text, style", LABELS)
 def test_a_label_anchored_on_a_whole_pixel_is_the_text_exactly(x, text, style):
     # the axes span 30-270 px across and 15-135 px up: these anchors land on whole pixels, where
     # the stamp must be matplotlib's own rendering of the text, pixel for pixel
