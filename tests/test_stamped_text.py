@@ -107,3 +107,79 @@ def test_a_stamp_keeps_the_place_and_look_of_the_text_it_replaces():
         "red",
         13.0,
     )
+
+
+# ---------------------------------------------------------------------- legends and tick labels
+def _figure(stamp_the_legend: bool, stamp_the_ticks: bool, xlim=None, framealpha=0.8):
+    from deltakit.widgets._stamped import stamp_legend, stamp_tick_labels
+
+    fig = Figure(figsize=(4.0, 3.0), dpi=100)
+    FigureCanvasAgg(fig)
+    ax = fig.add_subplot()
+    ax.plot([0, 1], [0, 1], label="burn at periapsis")
+    ax.plot([0, 1], [1, 0], "--", label="escape, then burn far away")
+    ax.fill_between([0, 1], [0, 0], [1, 1], alpha=0.3, color="C2", label="the tank affords")
+    legend = ax.legend(framealpha=framealpha, loc="center")
+    if stamp_the_legend:
+        stamp_legend(legend)
+    if stamp_the_ticks:
+        stamp_tick_labels(ax.xaxis)
+        stamp_tick_labels(ax.yaxis)
+    if xlim is not None:
+        ax.set_xlim(*xlim)
+    fig.canvas.draw()
+    return fig, ax, legend, np.asarray(fig.canvas.buffer_rgba()).astype(int)
+
+
+@pytest.mark.parametrize("framealpha", [0.8, 1.0, 0.3])
+def test_a_stamped_legend_is_the_legend_to_a_level_of_rounding(framealpha):
+    # the legend is drawn alone on a transparent canvas and laid over the figure: the blend of its
+    # semi-transparent frame may round one level differently, nothing more
+    *_, plain = _figure(False, False, framealpha=framealpha)
+    *_, stamp = _figure(True, False, framealpha=framealpha)
+    assert np.abs(plain - stamp).max() <= 2
+
+
+def test_a_stamped_legend_is_drawn_again_only_when_it_changes():
+    fig, ax, legend, _ = _figure(True, False)
+    ax.set_xlim(0.0, 2.0)  # new limits: the same legend at the same place
+    fig.canvas.draw()
+    assert len(legend._stamps) == 1
+    legend.get_texts()[0].set_text("burn at apoapsis")
+    fig.canvas.draw()
+    assert len(legend._stamps) == 2
+    buffer = io.StringIO()
+    with matplotlib.rc_context({"svg.fonttype": "none"}):
+        fig.savefig(buffer, format="svg")  # a vector file: the legend as itself, its text as text
+    assert "burn at apoapsis" in buffer.getvalue()
+
+
+def test_stamped_tick_labels_return_to_the_same_picture():
+    # limits moved away and back: the labels come back from the shared pictures, pixel for pixel,
+    # and the labels are the ones matplotlib chose (texts and places)
+    from deltakit.widgets import _stamped
+
+    fig, ax, _, first = _figure(False, True, xlim=(0.0, 1.0))
+    plain_fig, plain_ax, _, plain = _figure(False, False, xlim=(0.0, 1.0))
+    labels = [t.get_text() for t in ax.get_xticklabels()]
+    assert labels == [t.get_text() for t in plain_ax.get_xticklabels()]
+    assert all(type(t).__name__ == "_StampedTickLabel" for t in ax.get_xticklabels())
+    ax.set_xlim(0.0, 37.0)
+    fig.canvas.draw()
+    kept = len(_stamped._SHARED)
+    ax.set_xlim(0.0, 1.0)
+    fig.canvas.draw()
+    np.testing.assert_array_equal(np.asarray(fig.canvas.buffer_rgba()).astype(int), first)
+    assert len(_stamped._SHARED) == kept  # no label laid out again
+    # the pictures differ from matplotlib's only inside the tick labels' boxes (anchors rounded)
+    renderer = fig.canvas.get_renderer()
+    where = np.zeros(first.shape[:2], bool)
+    height = first.shape[0]
+    for text in [*ax.get_xticklabels(), *ax.get_yticklabels()]:
+        box = text.get_window_extent(renderer)
+        where[
+            max(height - int(np.ceil(box.y1)) - 2, 0) : height - int(np.floor(box.y0)) + 2,
+            max(int(np.floor(box.x0)) - 2, 0) : int(np.ceil(box.x1)) + 2,
+        ] = True
+    differs = np.abs(first - plain).max(axis=2) > 0
+    assert differs.any() and not differs[~where].any()

@@ -1,4 +1,4 @@
-"""Labels that slider steps move, drawn from a picture of their glyphs made once.
+"""Labels, tick labels and legends drawn from a picture of themselves made once.
 
 Laying out and rasterising a text costs matplotlib about 0.6 ms however short
 it is, and a label that follows a moving mark (a percentile, a bar's share) is
@@ -8,6 +8,13 @@ draws only stamp that picture at the label's place, its anchor on a whole
 pixel (so the picture is the same at every place). Every draw of the label,
 blitted or full, goes through the same stamp, so a blitted frame still equals
 a full redraw pixel for pixel (``tests/test_panel_redraw.py``).
+
+Two more kinds of stamps serve full draws (a body or a map typed anew):
+tick labels (:func:`stamp_tick_labels`: their pictures are shared by every
+axis, so the "0", "20" or "Nov 2028" drawn before costs nothing) and
+legends (:func:`stamp_legend`: laid out and drawn once per place and
+content, within a level of rounding of matplotlib's own picture). Panels
+stamp the tick labels and legends of their figures when they are made.
 
 Only on matplotlib's Agg canvases (the panels, PNG files); any other renderer
 (PDF, SVG, a report's vector figure) draws the label as the plain
@@ -23,23 +30,37 @@ from typing import Any
 import numpy as np
 from matplotlib.backends.backend_agg import RendererAgg
 from matplotlib.colors import to_rgba
+from matplotlib.legend import Legend
 from matplotlib.text import Text
 from matplotlib.transforms import IdentityTransform
 
-__all__ = ["StampedText", "stamped", "stamped_text"]
+__all__ = ["StampedText", "stamp_legend", "stamp_tick_labels", "stamped", "stamped_text"]
 
 #: Pictures kept per label (one per text it has shown); the oldest is dropped beyond this.
 _KEPT = 64
+#: Pictures kept for tick labels, shared by every axis (the same "0" or "Nov 2028" serves all).
+_KEPT_SHARED = 1024
+_SHARED: dict[tuple, tuple[np.ndarray, int, int]] = {}
 #: Transparent pixels around a label's glyphs in its picture (antialiased edges).
 _PAD = 3
+
+
+def _figure_of(artist: Any, *, root: bool) -> Any:
+    """The figure an artist is in (``get_figure(root=...)`` since matplotlib 3.10, ``.figure`` before)."""
+    try:
+        return artist.get_figure(root=root)
+    except TypeError:
+        return artist.figure
 
 
 class StampedText(Text):
     """A :class:`~matplotlib.text.Text` drawn on Agg canvases from a cached picture of its glyphs."""
 
-    def __init__(self, *args: Any, **kwargs: Any) -> None:
-        super().__init__(*args, **kwargs)
-        self._stamps: dict[tuple, tuple[np.ndarray, int, int]] = {}
+    _kept = _KEPT
+
+    def _store(self) -> dict[tuple, tuple[np.ndarray, int, int]]:
+        """This label's pictures (made on first use: a Text turned stamped has none yet)."""
+        return self.__dict__.setdefault("_stamps", {})
 
     def _plain(self, renderer: Any) -> bool:
         return (
@@ -60,10 +81,11 @@ class StampedText(Text):
             self._multialignment,
             self.get_rotation(),
             self._linespacing,
-            self._antialiased,
+            getattr(self, "_antialiased", None),  # a Text property since matplotlib 3.8
             renderer.dpi,
         )
-        found = self._stamps.get(key)
+        store = self._store()
+        found = store.get(key)
         if found is not None:
             return found
         box = self.get_window_extent(renderer)
@@ -77,12 +99,12 @@ class StampedText(Text):
         proto.set_transform(IdentityTransform())
         proto.set_clip_on(False)
         proto.set_clip_path(None)
-        proto.set_figure(self.get_figure(root=True))
+        proto.set_figure(_figure_of(self, root=True))
         proto.draw(small)
         picture = np.ascontiguousarray(np.asarray(small.buffer_rgba())[::-1])  # draw_image: bottom row first
-        if len(self._stamps) >= _KEPT:
-            self._stamps.pop(next(iter(self._stamps)))
-        self._stamps[key] = found = (picture, anchor_x, anchor_y)
+        if len(store) >= self._kept:
+            store.pop(next(iter(store)))
+        store[key] = found = (picture, anchor_x, anchor_y)
         return found
 
     def draw(self, renderer: Any) -> None:
@@ -101,6 +123,44 @@ class StampedText(Text):
         renderer.draw_image(gc, int(posx) - anchor_x, int(posy) - anchor_y, picture)
         gc.restore()
         self.stale = False
+
+
+class _StampedTickLabel(StampedText):
+    """A tick label: its pictures are shared with every other tick label of the same look."""
+
+    _kept = _KEPT_SHARED
+
+    def _store(self) -> dict[tuple, tuple[np.ndarray, int, int]]:
+        return _SHARED
+
+
+def stamp_tick_labels(axis: Any) -> None:
+    """Draw the tick labels of ``axis`` as stamps: those it has and those it makes later.
+
+    A change of limits gives new tick labels, most of them texts drawn
+    before ("0", "20", "Nov 2028"): their pictures are found in a cache
+    shared by all axes, so a full draw of the figure lays out and rasterises
+    only the texts it has never shown. The labels' places and sizes (and so
+    the layout of the axes) are matplotlib's own; only their anchors are
+    rounded to whole pixels when drawn.
+
+    >>> from matplotlib.figure import Figure
+    >>> ax = Figure().add_subplot()
+    >>> stamp_tick_labels(ax.xaxis)
+    >>> type(ax.xaxis.get_major_ticks()[0].label1).__name__
+    '_StampedTickLabel'
+    """
+    make = axis._get_tick  # matplotlib makes every tick here (Axis._get_tick, matplotlib >= 3.1)
+
+    def stamped_labels(tick: Any) -> Any:
+        for text in (tick.label1, tick.label2):
+            if type(text) is Text:
+                text.__class__ = _StampedTickLabel  # the same object: its axis keeps every reference
+        return tick
+
+    axis._get_tick = lambda major: stamped_labels(make(major))
+    for tick in [*axis.majorTicks, *axis.minorTicks]:
+        stamped_labels(tick)
 
 
 def stamped(text: Text) -> StampedText:
@@ -122,7 +182,7 @@ def stamped(text: Text) -> StampedText:
     if axes is not None:
         axes._add_text(new)  # where Axes.text puts a text: ax.texts, clipped to the axes patch
     else:
-        text.get_figure(root=False).add_artist(new)
+        _figure_of(text, root=False).add_artist(new)
     new.set_transform(transform)
     new.set_clip_on(text.get_clip_on())
     return new
@@ -137,3 +197,91 @@ def stamped_text(ax: Any, x: float, y: float, text: str, **kwargs: Any) -> Stamp
     'StampedText'
     """
     return stamped(ax.text(x, y, text, **kwargs))
+
+
+def _look(handle: Any) -> tuple:
+    """What a legend handle shows (a change of any of these draws the legend anew)."""
+    keys = []
+    for name in (
+        "get_color",
+        "get_facecolor",
+        "get_edgecolor",
+        "get_linestyle",
+        "get_linewidth",
+        "get_marker",
+        "get_markersize",
+        "get_hatch",
+        "get_alpha",
+        "get_visible",
+    ):
+        getter = getattr(handle, name, None)
+        if getter is not None:
+            value = getter()
+            keys.append(tuple(np.ravel(value).tolist()) if isinstance(value, np.ndarray) else value)
+    return (type(handle).__name__, *map(str, keys))
+
+
+class _StampedLegend(Legend):
+    """A legend drawn on Agg canvases from a picture of itself, made once per place and content."""
+
+    def _key(self, renderer: Any) -> tuple:
+        anchor = self.get_bbox_to_anchor()
+        return (
+            renderer.dpi,
+            renderer.width,
+            renderer.height,
+            str(self._loc),
+            tuple(anchor.bounds) if anchor is not None else None,
+            tuple(self.parent.bbox.bounds),
+            self.get_title().get_text(),
+            tuple(text.get_text() for text in self.get_texts()),
+            tuple(_look(handle) for handle in self.legend_handles),
+            self.get_frame_on(),
+        )
+
+    def draw(self, renderer: Any) -> None:
+        if type(renderer) is not RendererAgg or not self.get_visible():
+            Legend.draw(self, renderer)
+            return
+        key = self._key(renderer)
+        store = self.__dict__.setdefault("_stamps", {})
+        found = store.get(key)
+        if found is None:
+            # the legend drawn alone on a transparent canvas of the same size: the same layout and
+            # pixels as on the figure, then cut out around it
+            scratch = RendererAgg(int(renderer.width), int(renderer.height), renderer.dpi)
+            Legend.draw(self, scratch)
+            box = self.get_window_extent(scratch)
+            width, height = int(renderer.width), int(renderer.height)
+            x0, x1 = max(math.floor(box.x0) - _PAD, 0), min(math.ceil(box.x1) + _PAD, width)
+            y0, y1 = max(math.floor(box.y0) - _PAD, 0), min(math.ceil(box.y1) + _PAD, height)
+            if x1 <= x0 or y1 <= y0:
+                return
+            pixels = np.asarray(scratch.buffer_rgba())[height - y1 : height - y0, x0:x1]
+            if len(store) >= 8:
+                store.pop(next(iter(store)))
+            store[key] = found = (np.ascontiguousarray(pixels[::-1]), x0, y0)  # draw_image: bottom row first
+        picture, x0, y0 = found
+        gc = renderer.new_gc()
+        renderer.draw_image(gc, x0, y0, picture)
+        gc.restore()
+        self.stale = False
+
+
+def stamp_legend(legend: Legend) -> None:
+    """Draw ``legend`` from a picture of itself, made again only when its place or content changes.
+
+    Laying out a legend (its boxes of handles and texts) and drawing it
+    takes several milliseconds per legend at every full draw of a panel,
+    for a picture that a new body or orbit does not change.
+
+    >>> from matplotlib.figure import Figure
+    >>> ax = Figure().add_subplot()
+    >>> _ = ax.plot([0, 1], label="burn")
+    >>> legend = ax.legend()
+    >>> stamp_legend(legend)
+    >>> isinstance(legend, Legend), type(legend).__name__
+    (True, '_StampedLegend')
+    """
+    if type(legend) is Legend:
+        legend.__class__ = _StampedLegend  # the same object: its axes or figure keeps its reference
