@@ -126,7 +126,7 @@ class StampedText(Text):
 
 
 class _StampedTickLabel(StampedText):
-    """A tick label: its pictures are shared with every other tick label of the same look."""
+    """A tick label (or another label whose texts recur): its pictures are shared with every other."""
 
     _kept = _KEPT_SHARED
 
@@ -163,8 +163,11 @@ def stamp_tick_labels(axis: Any) -> None:
         stamped_labels(tick)
 
 
-def stamped(text: Text) -> StampedText:
+def stamped(text: Text, *, shared: bool = False) -> StampedText:
     """A :class:`StampedText` in place of ``text``: the same look and place, in the same axes or figure.
+
+    ``shared``: its pictures go to the cache the tick labels share (for labels
+    made anew with texts that recur, such as a contour's values).
 
     >>> from matplotlib.figure import Figure
     >>> ax = Figure().add_subplot()
@@ -172,7 +175,7 @@ def stamped(text: Text) -> StampedText:
     >>> label.get_text(), label.get_horizontalalignment(), label in ax.texts
     ('P10', 'center', True)
     """
-    new = StampedText(*text.get_position(), text.get_text())
+    new = (_StampedTickLabel if shared else StampedText)(*text.get_position(), text.get_text())
     new.update_from(text)
     new.set_zorder(text.get_zorder())
     new.set_animated(text.get_animated())

@@ -58,7 +58,7 @@ from ..plotting._style import COLOURS, style_axes
 from ..units import day, deg, km, km2_per_s2, km_per_s
 from ._base import Computed, InputError, Panel, _Plan, choice, fmt, number, radius_at, slider, toggle
 from ._format import html_notes, html_table
-from ._stamped import stamped
+from ._stamped import stamp_tick_labels, stamped
 
 __all__ = ["CONTOURS", "LaunchDatePicker", "PLANETS"]
 
@@ -871,7 +871,9 @@ class LaunchDatePicker(Panel):
                     ax.clabel(lines, fmt="%.0f", fontsize="x-small", inline=True)  # removed with the lines
                     # the labels stay above the hatched region, as their z-order says: animated after
                     # it, and stamped (a blit over the map draws them again at little cost)
-                    lines.labelTexts[:] = self._tof_labels = [stamped(text) for text in lines.labelTexts]
+                    lines.labelTexts[:] = self._tof_labels = [
+                        stamped(text, shared=True) for text in lines.labelTexts
+                    ]
                     self.view.animate(*self._tof_labels, before=self._outline)
                     self._map_artists.append(lines)
         if window.cheapest is not None:
@@ -897,6 +899,7 @@ class LaunchDatePicker(Panel):
             self._colorbar = self.figure.colorbar(
                 fill, cax=self.figure.add_axes(self._colorbar_rect), label=label
             )
+            stamp_tick_labels(self._colorbar.ax.yaxis)  # made after the panel's other axes were stamped
             return
         bar.ax.set_visible(True)
         bar.boundaries, bar.values = fill._levels, fill.cvalues  # what Colorbar takes from a fill when made
