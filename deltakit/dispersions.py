@@ -857,9 +857,12 @@ class _Flown:
 
 def _fly(budget: Any, **options: Any) -> _Flown:
     """:func:`disperse` with its keywords and defaults, its arrays kept as they are (see :class:`_Flown`)."""
-    bound = inspect.signature(disperse).bind(budget, **options)
+    bound = _DISPERSE.bind(budget, **options)
     bound.apply_defaults()
     return _flown(bound.arguments)
+
+
+_DISPERSE = inspect.signature(disperse)  # read once: _fly binds a panel's keywords to it
 
 
 def _flown(arguments: Mapping[str, Any]) -> _Flown:

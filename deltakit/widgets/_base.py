@@ -39,7 +39,6 @@ from ..errors import DomainError
 from ._controls import choice, is_slider, number, number_width, on_slider_grid, slider, slider_plan, toggle
 from ._format import fmt, html_notes, html_table, json_ready
 from ._limits import FARTHEST, follow_limits, follow_square
-from ._stamped import stamp_legend, stamp_tick_labels
 from ._view import FigureView, figure_mode
 
 __all__ = [
@@ -303,15 +302,6 @@ class Panel(widgets.VBox):
         self.add_class("deltakit-panel")
         for widget in self.controls.values():
             widget.observe(self._on_change, names="value")
-        if self.figure is not None:  # tick labels and legends drawn as stamps: a full draw lays out less
-            for ax in self.figure.axes:
-                if ax.name == "rectilinear":
-                    stamp_tick_labels(ax.xaxis)
-                    stamp_tick_labels(ax.yaxis)
-                if ax.get_legend() is not None:
-                    stamp_legend(ax.get_legend())
-            for legend in self.figure.legends:
-                stamp_legend(legend)
         self._pending = set(self.controls)  # the first view draws everything
         self._apply(dict(initial), touched=self._given(initial), strict=True)
 

@@ -13,8 +13,9 @@ Two more kinds of stamps serve full draws (a body or a map typed anew):
 tick labels (:func:`stamp_tick_labels`: their pictures are shared by every
 axis, so the "0", "20" or "Nov 2028" drawn before costs nothing) and
 legends (:func:`stamp_legend`: laid out and drawn once per place and
-content, within a level of rounding of matplotlib's own picture). Panels
-stamp the tick labels and legends of their figures when they are made.
+content, within a level of rounding of matplotlib's own picture). A panel's
+view stamps its figure's tick labels and legends before every full or cell
+draw (:func:`stamp_figure`), whenever the panel made them.
 
 Only on matplotlib's Agg canvases (the panels, PNG files); any other renderer
 (PDF, SVG, a report's vector figure) draws the label as the plain
@@ -34,7 +35,7 @@ from matplotlib.legend import Legend
 from matplotlib.text import Text
 from matplotlib.transforms import IdentityTransform
 
-__all__ = ["StampedText", "stamp_legend", "stamp_tick_labels", "stamped", "stamped_text"]
+__all__ = ["StampedText", "stamp_figure", "stamp_legend", "stamp_tick_labels", "stamped", "stamped_text"]
 
 #: Pictures kept per label (one per text it has shown); the oldest is dropped beyond this.
 _KEPT = 64
@@ -150,6 +151,9 @@ def stamp_tick_labels(axis: Any) -> None:
     >>> type(ax.xaxis.get_major_ticks()[0].label1).__name__
     '_StampedTickLabel'
     """
+    if getattr(axis, "_deltakit_stamped", False):
+        return  # stamped already: its tick factory is wrapped once
+    axis._deltakit_stamped = True
     make = axis._get_tick  # matplotlib makes every tick here (Axis._get_tick, matplotlib >= 3.1)
 
     def stamped_labels(tick: Any) -> Any:
@@ -288,3 +292,31 @@ def stamp_legend(legend: Legend) -> None:
     """
     if type(legend) is Legend:
         legend.__class__ = _StampedLegend  # the same object: its axes or figure keeps its reference
+
+
+def stamp_figure(figure: Any) -> None:
+    """Stamp the tick labels of every 2-D axes and every legend of ``figure`` not stamped yet.
+
+    :class:`~deltakit.widgets._view.FigureView` calls it before each full or
+    cell draw, so axes, colour bars and legends a panel makes at any time
+    (at its first draw, with a new map) are drawn from stamps too. Cheap when
+    all are stamped already.
+
+    >>> from matplotlib.figure import Figure
+    >>> figure = Figure()
+    >>> ax = figure.add_subplot()
+    >>> _ = ax.plot([0, 1], label="burn")
+    >>> _ = ax.legend()
+    >>> stamp_figure(figure)
+    >>> type(ax.get_legend()).__name__, type(ax.xaxis.get_major_ticks()[0].label1).__name__
+    ('_StampedLegend', '_StampedTickLabel')
+    """
+    for ax in figure.axes:
+        if ax.name == "rectilinear":
+            stamp_tick_labels(ax.xaxis)
+            stamp_tick_labels(ax.yaxis)
+        legend = ax.get_legend()
+        if legend is not None:
+            stamp_legend(legend)
+    for legend in figure.legends:
+        stamp_legend(legend)

@@ -35,6 +35,7 @@ from matplotlib.figure import Figure
 
 from ._blit import Blitter
 from ._png import FrameEncoder, encode_png
+from ._stamped import stamp_figure
 
 __all__ = ["FigureView", "figure_mode"]
 
@@ -222,6 +223,8 @@ class FigureView:
         canvas = self.figure.canvas
         full = self.stale
         axes, self._stale, self._stale_axes = self._stale_axes, False, []
+        if full or axes:  # tick labels and legends made since the last draw become stamps too
+            stamp_figure(self.figure)
         if not full and axes:
             full = not self._blitter.redraw(axes)
             self.cell_draws += not full

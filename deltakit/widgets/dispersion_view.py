@@ -46,7 +46,7 @@ from ..plotting._style import COLOURS, style_axes
 from ..plotting.dispersion import ALL_TANKS, plot_propellant_left
 from ..units import percent
 from ._base import Computed, InputError, Panel, _Plan, choice, follow_limits, number, slider, toggle
-from ._stamped import stamp_legend, stamp_tick_labels, stamped, stamped_text
+from ._stamped import stamped, stamped_text
 
 __all__ = ["DispersionView"]
 
@@ -493,11 +493,6 @@ class DispersionView(Panel):
         for bar in self._bars:
             bar.set_clip_on(False)  # within the axes anyway: each bar then redraws only its own place
         self._order: list[str] = []
-        # made after the panel stamped its figure: the twin's tick labels and both legends are
-        # stamps too, so a new tank or margin choice that moves the limits lays out less
-        stamp_tick_labels(self.twin.yaxis)
-        for legend in (self.axes.get_legend(), self.ranking_axes.get_legend()):
-            stamp_legend(legend)
         self.view.animate(
             self._close_bins,
             self._short_bins,

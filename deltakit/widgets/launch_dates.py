@@ -58,7 +58,7 @@ from ..plotting._style import COLOURS, style_axes
 from ..units import day, deg, km, km2_per_s2, km_per_s
 from ._base import Computed, InputError, Panel, _Plan, choice, fmt, number, radius_at, slider, toggle
 from ._format import html_notes, html_table
-from ._stamped import stamp_tick_labels, stamped
+from ._stamped import stamped
 
 __all__ = ["CONTOURS", "LaunchDatePicker", "PLANETS"]
 
@@ -181,6 +181,11 @@ def _window_map(case: _Case) -> _WindowMap:
     affordable = np.asarray(grid.affordable, dtype=bool)
     tof = np.broadcast_to(np.asarray(grid.time_of_flight, dtype=float), total.shape)
     return _WindowMap(departures, arrivals, *fields, affordable, tof, cheapest)
+
+
+def _day_axes(window: _WindowMap) -> tuple[np.ndarray, np.ndarray]:
+    """The map's departure and arrival dates as matplotlib date numbers (days)."""
+    return _AXIS_J2000 + window.departures / day, _AXIS_J2000 + window.arrivals / day
 
 
 def _case_of(values: Mapping[str, Any]) -> _Case:
@@ -801,17 +806,20 @@ class LaunchDatePicker(Panel):
 
     def _same_layers(self, layers: tuple[np.ndarray, ...]) -> bool:
         shown = self._shown_layers
-        return shown is not None and all(
-            a.shape == b.shape and np.array_equal(a, b, equal_nan=True) for a, b in zip(shown, layers)
-        )
+        return shown is not None and all(np.array_equal(a, b, equal_nan=True) for a, b in zip(shown, layers))
+
+    def _show_cheapest(self, window: _WindowMap) -> None:
+        """The star on the pair of least total delta-v (none when the map has no transfer)."""
+        x, y = _day_axes(window)
+        cheapest = window.cheapest
+        self._cheapest.set_data(*(([x[cheapest[0]]], [y[cheapest[1]]]) if cheapest else ([], [])))
 
     def _draw_affordable(self, window: _WindowMap) -> None:
         """The hatched region the tank affords and its outline (animated artists, moved in place)."""
         import contourpy
         from matplotlib.path import Path as MplPath
 
-        x = _AXIS_J2000 + window.departures / day
-        y = _AXIS_J2000 + window.arrivals / day
+        x, y = _day_axes(window)
         mask = window.affordable.T.astype(float)
         if mask.any() and mask.shape[0] >= 2 and mask.shape[1] >= 2:
             # the outlines matplotlib's contourf and contour would draw (the same contourpy generator)
@@ -835,8 +843,7 @@ class LaunchDatePicker(Panel):
         for artist in self._map_artists:
             artist.remove()
         self._map_artists, self._tof_labels = [], []
-        x = _AXIS_J2000 + window.departures / day
-        y = _AXIS_J2000 + window.arrivals / day
+        x, y = _day_axes(window)
         c3_shown = contours == "C3"
         field, scale, span = (window.c3, km2_per_s2, 40.0) if c3_shown else (window.total_dv, km_per_s, 4.0)
         label = "departure C3 (km²/s²)" if c3_shown else "delta-v of both burns (km/s)"
@@ -876,11 +883,6 @@ class LaunchDatePicker(Panel):
                     ]
                     self.view.animate(*self._tof_labels, before=self._outline)
                     self._map_artists.append(lines)
-        if window.cheapest is not None:
-            i, j = window.cheapest
-            self._cheapest.set_data([x[i]], [y[j]])
-        else:
-            self._cheapest.set_data([], [])
         origin, target = escape_mathtext(case.origin), escape_mathtext(case.target)
         ax.set_xlabel("")
         ax.set_ylabel("")
@@ -899,7 +901,6 @@ class LaunchDatePicker(Panel):
             self._colorbar = self.figure.colorbar(
                 fill, cax=self.figure.add_axes(self._colorbar_rect), label=label
             )
-            stamp_tick_labels(self._colorbar.ax.yaxis)  # made after the panel's other axes were stamped
             return
         bar.ax.set_visible(True)
         bar.boundaries, bar.values = fill._levels, fill.cvalues  # what Colorbar takes from a fill when made
@@ -912,17 +913,13 @@ class LaunchDatePicker(Panel):
         fill = (id(window), d["contours"])
         if fill != self._shown_fill or window is not self._map:
             layers = self._layers(window, d["contours"])
-            if self._same_layers(layers) and self._shown_names == (case.origin, case.target):
-                # the same fill and lines (a new tank or vehicle mass): only the affordable region and
-                # the cheapest star move, blitted over the map as it is
-                x = _AXIS_J2000 + window.departures / day
-                y = _AXIS_J2000 + window.arrivals / day
-                cheapest = window.cheapest
-                self._cheapest.set_data(*(([x[cheapest[0]]], [y[cheapest[1]]]) if cheapest else ([], [])))
-            else:
+            # the same fill and lines (a new tank or vehicle mass): only the affordable region and the
+            # cheapest star move, blitted over the map as it is
+            if not (self._same_layers(layers) and self._shown_names == (case.origin, case.target)):
                 self._draw_map(window, case, d["contours"])
                 self._shown_layers, self._shown_names = layers, (case.origin, case.target)
                 self.view.invalidate()
+            self._show_cheapest(window)
             self._draw_affordable(window)
             self._map, self._shown_fill = window, fill
         self._case, self._pair = case, pair
